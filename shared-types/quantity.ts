@@ -1,0 +1,259 @@
+/**
+ * Quantities and units of the model format.
+ *
+ * A quantity field holds either a plain number in SI base units or a string
+ * "<number> <unit>". This module knows the catalogue of units by kind and turns
+ * either form into an SI number, or into a `QuantityProblem` that names what is
+ * wrong. It is shared by the engine, the server and the browser client, so it
+ * imports nothing.
+ *
+ * Torque and energy share the dimension N·m, and mass moment of inertia (kg·m²)
+ * is not the polar second moment of area (m⁴): each gets its own kind here, so a
+ * value of one can never be read as the other.
+ */
+
+/** The kinds of quantity that the model format uses. */
+export type QuantityKind =
+  | 'length'
+  | 'torque'
+  | 'stress'
+  | 'angle'
+  | 'rotationalStiffness'
+  | 'linearStiffness'
+  | 'torquePerLength'
+  | 'twistRate'
+  | 'density'
+  | 'massInertia'
+  | 'power'
+  | 'angularSpeed';
+
+/** One unit: its symbol as written and the factor that turns it into SI. */
+export interface UnitDef {
+  readonly symbol: string;
+  readonly kind: QuantityKind;
+  /** SI value of one of this unit. */
+  readonly toSI: number;
+}
+
+// Exact definitions: 1 in = 0.0254 m, 1 lbf = 0.45359237 kg × 9.80665 m/s².
+const IN = 0.0254; // m
+const FT = 0.3048; // m
+const LBF = 0.45359237 * 9.80665; // N
+const LB = 0.45359237; // kg
+const PSI = LBF / (IN * IN); // Pa
+const DEG = Math.PI / 180; // rad
+const HP = 550 * FT * LBF; // W, mechanical horsepower (550 ft·lbf/s)
+
+/** SI base unit of each kind, as the solution reports it. */
+export const SI_UNIT: Readonly<Record<QuantityKind, string>> = {
+  length: 'm',
+  torque: 'N*m',
+  stress: 'Pa',
+  angle: 'rad',
+  rotationalStiffness: 'N*m/rad',
+  linearStiffness: 'N/m',
+  torquePerLength: 'N*m/m',
+  twistRate: 'rad/m',
+  density: 'kg/m3',
+  massInertia: 'kg*m2',
+  power: 'W',
+  angularSpeed: 'rad/s',
+};
+
+const table: Array<[QuantityKind, string, number]> = [
+  ['length', 'm', 1],
+  ['length', 'mm', 1e-3],
+  ['length', 'cm', 1e-2],
+  ['length', 'in', IN],
+  ['length', 'ft', FT],
+  ['torque', 'N*m', 1],
+  ['torque', 'N*mm', 1e-3],
+  ['torque', 'kN*m', 1e3],
+  ['torque', 'lbf*in', LBF * IN],
+  ['torque', 'lbf*ft', LBF * FT],
+  ['torque', 'kip*in', 1e3 * LBF * IN],
+  ['torque', 'kip*ft', 1e3 * LBF * FT],
+  ['stress', 'Pa', 1],
+  ['stress', 'kPa', 1e3],
+  ['stress', 'MPa', 1e6],
+  ['stress', 'GPa', 1e9],
+  ['stress', 'N/mm2', 1e6],
+  ['stress', 'psi', PSI],
+  ['stress', 'ksi', 1e3 * PSI],
+  ['stress', 'Msi', 1e6 * PSI],
+  ['angle', 'rad', 1],
+  ['angle', 'mrad', 1e-3],
+  ['angle', 'deg', DEG],
+  ['rotationalStiffness', 'N*m/rad', 1],
+  ['rotationalStiffness', 'kN*m/rad', 1e3],
+  ['rotationalStiffness', 'N*mm/rad', 1e-3],
+  ['rotationalStiffness', 'N*m/deg', 1 / DEG],
+  ['rotationalStiffness', 'lbf*in/rad', LBF * IN],
+  ['rotationalStiffness', 'lbf*ft/rad', LBF * FT],
+  ['rotationalStiffness', 'kip*in/rad', 1e3 * LBF * IN],
+  ['linearStiffness', 'N/m', 1],
+  ['linearStiffness', 'N/mm', 1e3],
+  ['linearStiffness', 'kN/mm', 1e6],
+  ['linearStiffness', 'N/um', 1e6],
+  ['linearStiffness', 'lbf/in', LBF / IN],
+  ['torquePerLength', 'N*m/m', 1],
+  ['torquePerLength', 'N*mm/mm', 1],
+  ['torquePerLength', 'kN*m/m', 1e3],
+  ['torquePerLength', 'lbf*in/in', LBF],
+  ['torquePerLength', 'lbf*ft/ft', LBF],
+  ['twistRate', 'rad/m', 1],
+  ['twistRate', 'deg/m', DEG],
+  ['twistRate', 'deg/ft', DEG / FT],
+  ['twistRate', 'deg/in', DEG / IN],
+  ['density', 'kg/m3', 1],
+  ['density', 'g/cm3', 1e3],
+  ['density', 'lb/in3', LB / (IN * IN * IN)],
+  ['density', 'lb/ft3', LB / (FT * FT * FT)],
+  ['massInertia', 'kg*m2', 1],
+  ['massInertia', 'kg*mm2', 1e-6],
+  ['massInertia', 'lb*in2', LB * IN * IN],
+  ['massInertia', 'lb*ft2', LB * FT * FT],
+  ['power', 'W', 1],
+  ['power', 'kW', 1e3],
+  ['power', 'MW', 1e6],
+  ['power', 'hp', HP],
+  ['angularSpeed', 'rad/s', 1],
+  ['angularSpeed', 'rpm', (2 * Math.PI) / 60],
+];
+
+/** Every unit the format accepts, keyed by its canonical symbol. */
+export const UNITS: ReadonlyMap<string, UnitDef> = new Map(
+  table.map(([kind, symbol, toSI]) => [symbol, Object.freeze({ symbol, kind, toSI })]),
+);
+
+/** The accepted symbols of one kind, in catalogue order. */
+export function unitsOfKind(kind: QuantityKind): string[] {
+  return table.filter((row) => row[0] === kind).map((row) => row[1]);
+}
+
+/** Spellings that mean the same symbol: `·` or a space for `*`, `²`/`³`/`^2` for 2/3, `μ` for u. */
+export function canonicalUnit(text: string): string {
+  return text
+    .trim()
+    .replace(/[·⋅×]/g, '*')
+    .replace(/\s*\*\s*/g, '*')
+    .replace(/\s*\/\s*/g, '/')
+    .replace(/\s+/g, '*')
+    .replace(/\^?²/g, '2')
+    .replace(/\^?³/g, '3')
+    .replace(/\^([23])/g, '$1')
+    .replace(/[μµ]/g, 'u');
+}
+
+/** Why a value could not be read as a quantity; `code` is one of the error registry's. */
+export interface QuantityProblem {
+  readonly code: 'SN_NOT_FINITE' | 'SN_QUANTITY_SYNTAX' | 'SN_UNIT_UNKNOWN' | 'SN_UNIT_KIND' | 'SN_UNIT_MISSING';
+  readonly message: string;
+}
+
+const NUMBER_AND_UNIT = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$/;
+
+/**
+ * Reads a quantity of the given kind into SI, or says why it cannot.
+ * A plain number is already SI; a string needs a unit of the right kind.
+ */
+export function readQuantity(value: unknown, kind: QuantityKind): number | QuantityProblem {
+  if (typeof value === 'number') {
+    if (!Number.isFinite(value)) return { code: 'SN_NOT_FINITE', message: 'must be a finite number' };
+    return value;
+  }
+  if (typeof value !== 'string') {
+    return { code: 'SN_QUANTITY_SYNTAX', message: `must be a number in ${SI_UNIT[kind]} or a string like "${example(kind)}"` };
+  }
+  if (/^\s*[+-]?(nan|inf(inity)?)\b/i.test(value)) {
+    return { code: 'SN_NOT_FINITE', message: `"${value}" is not a finite number` };
+  }
+  const match = NUMBER_AND_UNIT.exec(value);
+  if (!match) {
+    return { code: 'SN_QUANTITY_SYNTAX', message: `"${value}" is not "<number> <unit>", e.g. "${example(kind)}"` };
+  }
+  const magnitude = Number(match[1]);
+  if (!Number.isFinite(magnitude)) return { code: 'SN_NOT_FINITE', message: `"${value}" is not a finite number` };
+  const unitText = match[2];
+  if (unitText === '') {
+    return {
+      code: 'SN_UNIT_MISSING',
+      message: `"${value}" has no unit: write e.g. "${example(kind)}", or a plain number for ${SI_UNIT[kind]}`,
+    };
+  }
+  const unit = UNITS.get(canonicalUnit(unitText));
+  if (!unit) {
+    return {
+      code: 'SN_UNIT_UNKNOWN',
+      message: `unknown unit "${unitText}"; for ${describeKind(kind)} use one of ${unitsOfKind(kind).join(', ')}`,
+    };
+  }
+  if (unit.kind !== kind) {
+    return {
+      code: 'SN_UNIT_KIND',
+      message: `"${unitText}" is a unit of ${describeKind(unit.kind)}, but this field is ${describeKind(kind)} (${unitsOfKind(kind).join(', ')})`,
+    };
+  }
+  const si = magnitude * unit.toSI;
+  if (!Number.isFinite(si)) return { code: 'SN_NOT_FINITE', message: `"${value}" overflows` };
+  return si;
+}
+
+/** True when `readQuantity` answered a problem rather than a number. */
+export function isProblem(x: number | QuantityProblem): x is QuantityProblem {
+  return typeof x !== 'number';
+}
+
+/** Converts an SI number to the named unit (which must exist). */
+export function fromSI(si: number, symbol: string): number {
+  const unit = UNITS.get(canonicalUnit(symbol));
+  if (!unit) throw new Error(`unknown unit ${symbol}`);
+  return si / unit.toSI;
+}
+
+/** Converts a number in the named unit to SI (which must exist). */
+export function toSI(value: number, symbol: string): number {
+  const unit = UNITS.get(canonicalUnit(symbol));
+  if (!unit) throw new Error(`unknown unit ${symbol}`);
+  return value * unit.toSI;
+}
+
+const KIND_WORDS: Record<QuantityKind, string> = {
+  length: 'length',
+  torque: 'torque',
+  stress: 'stress or modulus',
+  angle: 'angle',
+  rotationalStiffness: 'torsional stiffness',
+  linearStiffness: 'linear stiffness',
+  torquePerLength: 'torque per length',
+  twistRate: 'twist per length',
+  density: 'density',
+  massInertia: 'mass moment of inertia',
+  power: 'power',
+  angularSpeed: 'rotational speed',
+};
+
+/** A reader's word for a kind, for messages. */
+export function describeKind(kind: QuantityKind): string {
+  return KIND_WORDS[kind];
+}
+
+const EXAMPLES: Record<QuantityKind, string> = {
+  length: '40 mm',
+  torque: '350 N*m',
+  stress: '79.3 GPa',
+  angle: '0.5 deg',
+  rotationalStiffness: '12 kN*m/rad',
+  linearStiffness: '400 N/mm',
+  torquePerLength: '-40 N*m/m',
+  twistRate: '0.25 deg/m',
+  density: '7850 kg/m3',
+  massInertia: '0.8 kg*m2',
+  power: '15 kW',
+  angularSpeed: '1450 rpm',
+};
+
+/** A typical value of a kind, for messages and placeholders. */
+export function example(kind: QuantityKind): string {
+  return EXAMPLES[kind];
+}

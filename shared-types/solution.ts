@@ -1,0 +1,156 @@
+/**
+ * The solution format, version 1: what the engine answers for a model. All
+ * numbers are SI (m, rad, N·m, Pa, N, rad/m). Signs follow the model format:
+ * right-hand rule about each shaft's own +z.
+ */
+import Type, { type Static } from 'typebox';
+
+/** Current solution format identifier. */
+export const SOLUTION_FORMAT = 'shaftnet-solution/1';
+
+const Num = Type.Number();
+const NullableNum = Type.Union([Type.Number(), Type.Null()]);
+
+export const Station = Type.Object({
+  z: Num,
+  rotation: Num,
+  /** T(z−): internal torque just before z; null at the start of the shaft. */
+  torqueLeft: NullableNum,
+  /** T(z+): internal torque just after z; null at the end of the shaft. */
+  torqueRight: NullableNum,
+});
+export type Station = Static<typeof Station>;
+
+export const LayerResult = Type.Object({
+  material: Type.String(),
+  /** Outer radius of the layer, m: where its shear stress peaks. */
+  outerRadius: Num,
+  /** Largest |τ| in the layer over the segment, Pa. */
+  maxShear: Num,
+  allowableShear: NullableNum,
+  /** maxShear / allowableShear, or null without an allowable. */
+  utilisation: NullableNum,
+  shearYield: NullableNum,
+});
+export type LayerResult = Static<typeof LayerResult>;
+
+export const SegmentResult = Type.Object({
+  index: Type.Integer(),
+  section: Type.String(),
+  from: Num,
+  to: Num,
+  /** Σ G·J over the layers, N·m². */
+  torsionalRigidity: Num,
+  maxAbsTorque: Num,
+  /** z where |T| peaks in the segment (the governing point). */
+  governingZ: Num,
+  maxTwistRate: Num,
+  /** φ(to) − φ(from), rad. */
+  twist: Num,
+  layers: Type.Array(LayerResult),
+});
+export type SegmentResult = Static<typeof SegmentResult>;
+
+export const Diagram = Type.Object({
+  z: Type.Array(Num),
+  torque: Type.Array(Num),
+  rotation: Type.Array(Num),
+  /** Signed shear stress at the outer fibre of the layer that governs, Pa. */
+  shear: Type.Array(Num),
+});
+export type Diagram = Static<typeof Diagram>;
+
+export const ShaftResult = Type.Object({
+  id: Type.String(),
+  name: Type.Optional(Type.String()),
+  length: Num,
+  stations: Type.Array(Station),
+  segments: Type.Array(SegmentResult),
+  /** max φ − min φ along the shaft, rad: the largest relative twist between two sections. */
+  totalTwist: Num,
+  diagram: Diagram,
+});
+export type ShaftResult = Static<typeof ShaftResult>;
+
+export const ReactionResult = Type.Object({
+  support: Type.String(),
+  shaft: Type.String(),
+  kind: Type.Union([Type.Literal('fixed'), Type.Literal('spring')]),
+  /** Torque the support puts on the shaft, N·m. */
+  torque: Num,
+  /** Rotation of the shaft at the support, rad. */
+  rotation: Num,
+});
+export type ReactionResult = Static<typeof ReactionResult>;
+
+export const GearMeshResult = Type.Object({
+  gearMesh: Type.String(),
+  /** Tangential force F of the contract (F = stiffness·g), N. */
+  force: Num,
+  /** Torque the mesh puts on shaft a, N·m. */
+  torqueA: Num,
+  /** Torque the mesh puts on shaft b, N·m. */
+  torqueB: Num,
+  radiusA: Num,
+  radiusB: Num,
+  /** g = r_a φ_a − s r_b φ_b − offset, m (zero for a rigid mesh). */
+  gap: Num,
+});
+export type GearMeshResult = Static<typeof GearMeshResult>;
+
+export const CouplingResult = Type.Object({
+  coupling: Type.String(),
+  torqueA: Num,
+  torqueB: Num,
+  /** c = φ_a − φ_b − misfit, rad (zero for a rigid coupling). */
+  twist: Num,
+});
+export type CouplingResult = Static<typeof CouplingResult>;
+
+export const CheckResult = Type.Object({
+  kind: Type.Union([Type.Literal('shear'), Type.Literal('twistRate'), Type.Literal('totalTwist')]),
+  shaft: Type.String(),
+  segment: Type.Optional(Type.Integer()),
+  material: Type.Optional(Type.String()),
+  layer: Type.Optional(Type.Integer()),
+  value: Num,
+  limit: Num,
+  utilisation: Num,
+  pass: Type.Boolean(),
+});
+export type CheckResult = Static<typeof CheckResult>;
+
+export const Warning = Type.Object({
+  code: Type.String(),
+  message: Type.String(),
+  shafts: Type.Optional(Type.Array(Type.String())),
+  connections: Type.Optional(Type.Array(Type.String())),
+});
+export type Warning = Static<typeof Warning>;
+
+export const Solution = Type.Object(
+  {
+    format: Type.Literal(SOLUTION_FORMAT),
+    name: Type.String(),
+    shafts: Type.Array(ShaftResult),
+    reactions: Type.Array(ReactionResult),
+    gearMeshes: Type.Array(GearMeshResult),
+    couplings: Type.Array(CouplingResult),
+    equilibrium: Type.Object({
+      /** Largest |Σ torques on a shaft| over all shafts, N·m. */
+      maxResidual: Num,
+      shafts: Type.Array(Type.Object({ shaft: Type.String(), residual: Num })),
+    }),
+    /** Every check, worst utilisation first. */
+    checks: Type.Array(CheckResult),
+    warnings: Type.Array(Warning),
+    stats: Type.Object({
+      stations: Type.Integer(),
+      unknowns: Type.Integer(),
+      /** Nonzeros of the factor L (without the diagonal): fill. */
+      factorNonzeros: Type.Integer(),
+    }),
+  },
+  { $id: 'Solution', description: 'The answer for a model, SI units.' },
+);
+export type Solution = Static<typeof Solution>;
