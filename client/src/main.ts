@@ -1,0 +1,2 @@
+/** Entry point: registers the elements; index.html places <sn-app>. */
+import './sn-app.js';

@@ -1,0 +1,31 @@
+import { LitElement, css, html } from 'lit';
+
+/** What the results are and are not: shown under the results and in the printed report. */
+export class SnCautions extends LitElement {
+  static override styles = css`
+    :host { display: block; }
+    aside { border-left: 4px solid #d48a1a; background: #fbf5e8; padding: 6px 12px; font-size: 12.5px; color: #4a4030; }
+    strong { color: #7a4f00; }
+    ul { margin: 4px 0; padding-left: 18px; }
+    @media print { aside { background: none; } }
+  `;
+
+  override render() {
+    return html`<aside class="cautions" aria-label="Cautions">
+      <strong>Cautions.</strong>
+      <ul>
+        <li>Linear-elastic Saint-Venant torsion of circular shafts: plane sections stay plane, no warping, no yielding, no buckling.</li>
+        <li>No stress concentration (shoulders, keyways, splines, holes) and no fatigue unless you modelled them, e.g. through a reduced allowable stress.</li>
+        <li>Results must be checked by a qualified engineer against the codes and standards that apply locally before any design decision.</li>
+      </ul>
+    </aside>`;
+  }
+}
+
+customElements.define('sn-cautions', SnCautions);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'sn-cautions': SnCautions;
+  }
+}

@@ -1,0 +1,275 @@
+import { LitElement, css, html, nothing } from 'lit';
+import { live } from 'lit/directives/live.js';
+import type { EditModel } from './store.js';
+import type { Column, EditDetail } from './sn-table.js';
+import type { UnitSystem } from './units.js';
+import './sn-table.js';
+
+type Row = Record<string, unknown>;
+
+/**
+ * The model editor: a table per list of the contract, sub-tables for the
+ * segments of each shaft and the layers of each layered section, and the
+ * model's name, notes and limits. Edits go up as events; the model comes down.
+ *
+ * @fires sn-edit - bubbled from the tables, and for the name and notes
+ * @fires sn-row-add - bubbled from the tables
+ * @fires sn-row-remove - bubbled from the tables
+ * @fires sn-select - bubbled from the tables
+ */
+export class SnEditor extends LitElement {
+  static override styles = css`
+    :host { display: block; }
+    details { border-top: 1px solid #dcd7cd; padding: 6px 0 8px; }
+    summary { cursor: pointer; font-weight: 600; color: #1d3a4a; padding: 2px 0; user-select: none; }
+    summary .count { color: #8a857c; font-weight: 400; margin-left: 4px; }
+    .hint { color: #6b665e; font-size: 12px; margin: 2px 0 6px; }
+    .sub { margin: 8px 0 4px 14px; }
+    .sub h4 { margin: 0 0 2px; font-size: 12px; font-weight: 600; color: #4a5258; }
+    label.field { display: grid; grid-template-columns: 4.5em 1fr; gap: 6px; align-items: start; margin: 4px 0; font-size: 13px; }
+    input.name, textarea { font: inherit; font-size: 13px; padding: 3px 5px; border: 1px solid #c8c4bb; border-radius: 3px; width: 100%; box-sizing: border-box; }
+    textarea { min-height: 3.2em; resize: vertical; }
+    .invalid { border-color: #b3261e; background: #fdf0ef; }
+    .msg { color: #b3261e; font-size: 12px; }
+  `;
+
+  static override properties = {
+    model: { attribute: false },
+    system: { type: String },
+    errors: { attribute: false },
+    selected: { type: String },
+    flagged: { attribute: false },
+  };
+
+  declare model: EditModel | null;
+  declare system: UnitSystem;
+  declare errors: Readonly<Record<string, string>>;
+  declare selected: string;
+  /** Pointers of rows to mark as in trouble (shafts free to spin). */
+  declare flagged: readonly string[];
+
+  constructor() {
+    super();
+    this.model = null;
+    this.system = 'SI';
+    this.errors = {};
+    this.selected = '';
+    this.flagged = [];
+  }
+
+  override render() {
+    const m = this.model;
+    if (!m) return html`<p class="hint">No model loaded.</p>`;
+    const shafts = m.shafts.map((s) => s.id);
+    const sections = m.sections.map((s) => s.id);
+    const materials = m.materials.map((s) => s.id);
+    return html`
+      <details open>
+        <summary>Model</summary>
+        <label class="field"
+          >Name
+          <span>
+            <input class="name ${this.errors['/name'] ? 'invalid' : ''}" data-pointer="/name" .value=${live(m.name)}
+              @change=${(e: Event) => this.edit('/name', (e.target as HTMLInputElement).value)} />
+            ${this.errors['/name'] ? html`<div class="msg">${this.errors['/name']}</div>` : nothing}
+          </span>
+        </label>
+        <label class="field"
+          >Notes
+          <textarea data-pointer="/notes" .value=${live(m.notes ?? '')}
+            @change=${(e: Event) => this.edit('/notes', (e.target as HTMLTextAreaElement).value || undefined)}></textarea>
+        </label>
+      </details>
+      ${this.section('Materials', 'materials', 'material', m.materials as Row[], materialColumns(), 'G directly, or E with Poisson’s ratio ν. Allowable shear drives the checks.')}
+      ${this.section('Sections', 'sections', 'section', m.sections as Row[], sectionColumns(), 'Layered sections list bonded layers inside out, one row each.', html`
+        ${m.sections.map((s, i) =>
+          s.shape === 'layered'
+            ? html`<div class="sub">
+                <h4>Layers of ${s.id}</h4>
+                ${this.table(`/sections/${i}/layers`, 'layer', (s.layers ?? []) as Row[], layerColumns(materials))}
+              </div>`
+            : nothing,
+        )}`)}
+      ${this.section('Shafts', 'shafts', 'shaft', m.shafts.map((s) => ({ id: s.id, name: s.name })), shaftColumns(), 'Each shaft runs along its own z from 0; segments follow one another.', html`
+        ${m.shafts.map(
+          (s, i) => html`<div class="sub">
+            <h4>Segments of ${s.id}</h4>
+            ${this.table(`/shafts/${i}/segments`, 'segment', s.segments as Row[], segmentColumns(sections, materials))}
+          </div>`,
+        )}`)}
+      ${this.section('Supports', 'supports', 'support', (m.supports ?? []) as Row[], supportColumns(shafts), 'Fixed: rotation held (0 unless given). Spring: torque −kφ.')}
+      ${this.section('Point torques', 'torques', 'torque', (m.torques ?? []) as Row[], torqueColumns(shafts), 'A torque, or a power with a speed (torque = power / speed). Right-hand rule about +z.')}
+      ${this.section('Distributed torques', 'distributedTorques', 'distributed torque', (m.distributedTorques ?? []) as Row[], distributedColumns(shafts), 'Linear from start (at "from") to end (at "to").')}
+      ${this.section('Gear meshes', 'gearMeshes', 'gear mesh', (m.gearMeshes ?? []) as Row[], gearColumns(shafts), 'Pitch radius, or teeth with the mesh module. Blank stiffness = rigid. Opposite: external pair; same: internal, belt or chain.')}
+      ${this.section('Couplings', 'couplings', 'coupling', (m.couplings ?? []) as Row[], couplingColumns(shafts), 'Blank stiffness = rigid. Misfit: angular mismatch at assembly.')}
+      ${this.section('Discs', 'discs', 'disc', (m.discs ?? []) as Row[], discColumns(shafts), 'Mass inertia, drawn on the schematic (kept for modal analysis).')}
+      <details open>
+        <summary>Limits</summary>
+        <p class="hint">Optional: twist per length and total twist, checked on every shaft.</p>
+        <sn-table .rows=${[(m.limits ?? {}) as Row]} .columns=${limitColumns()} pointer="/limits" single noun="limits"
+          .system=${this.system} .errors=${this.errors} .selected=${this.selected}></sn-table>
+      </details>
+    `;
+  }
+
+  /** Scrolls the selected row into view in whichever table holds it. */
+  revealSelected(): void {
+    for (const t of this.renderRoot.querySelectorAll('sn-table')) t.revealSelected();
+  }
+
+  private section(title: string, list: string, noun: string, rows: Row[], columns: Column[], hint: string, extra: unknown = nothing) {
+    return html`<details open data-list=${list}>
+      <summary>${title}<span class="count">(${rows.length})</span></summary>
+      <p class="hint">${hint}</p>
+      ${this.table(`/${list}`, noun, rows, columns)} ${extra}
+    </details>`;
+  }
+
+  private table(pointer: string, noun: string, rows: Row[], columns: Column[]) {
+    return html`<sn-table .rows=${rows} .columns=${columns} pointer=${pointer} noun=${noun} .system=${this.system}
+      .errors=${this.errors} .selected=${this.selected} .flagged=${this.flagged}></sn-table>`;
+  }
+
+  private edit(pointer: string, value: unknown): void {
+    this.dispatchEvent(new CustomEvent<EditDetail>('sn-edit', { detail: { pointer, value }, bubbles: true, composed: true }));
+  }
+}
+
+const has = (k: string) => (r: Row) => r[k] !== undefined;
+
+function materialColumns(): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 7 },
+    { key: 'name', label: 'Name', type: 'text', width: 12 },
+    { key: '@elastic', label: 'Elastic', type: 'select', options: ['G', 'E'], get: (r) => (r.E !== undefined && r.G === undefined ? 'E' : 'G'), hint: 'Give G, or E with ν' },
+    { key: 'G', label: 'G', type: 'quantity', kind: 'modulus', enabled: (r) => !(r.E !== undefined && r.G === undefined), width: 6 },
+    { key: 'E', label: 'E', type: 'quantity', kind: 'modulus', enabled: has('E'), width: 6 },
+    { key: 'nu', label: 'ν', type: 'number', enabled: has('E'), width: 5 },
+    { key: 'allowableShear', label: 'τ allow', type: 'quantity', kind: 'stress', width: 6, hint: 'Allowable shear stress (for checks)' },
+    { key: 'shearYield', label: 'τ yield', type: 'quantity', kind: 'stress', width: 6 },
+    { key: 'density', label: 'Density', type: 'quantity', kind: 'density', width: 6 },
+  ];
+}
+
+function sectionColumns(): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 7 },
+    { key: 'shape', label: 'Shape', type: 'select', options: ['solid', 'hollow', 'layered'] },
+    { key: 'd', label: 'Outer d', type: 'quantity', kind: 'length', enabled: (r) => r.shape !== 'layered' },
+    { key: 'di', label: 'Bore di', type: 'quantity', kind: 'length', enabled: (r) => r.shape !== 'solid' },
+    { key: 'name', label: 'Name', type: 'text', width: 12 },
+  ];
+}
+
+function layerColumns(materials: string[]): Column[] {
+  return [
+    { key: 'd', label: 'Outer d', type: 'quantity', kind: 'length' },
+    { key: 'material', label: 'Material', type: 'select', options: materials },
+  ];
+}
+
+function shaftColumns(): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 9 },
+    { key: 'name', label: 'Name', type: 'text', width: 18 },
+  ];
+}
+
+function segmentColumns(sections: string[], materials: string[]): Column[] {
+  return [
+    { key: 'length', label: 'Length', type: 'quantity', kind: 'length' },
+    { key: 'section', label: 'Section', type: 'select', options: sections },
+    { key: 'material', label: 'Material', type: 'select', options: materials, blank: '(per layer)' },
+  ];
+}
+
+function supportColumns(shafts: string[]): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 6 },
+    { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
+    { key: 'at', label: 'At z', type: 'quantity', kind: 'length' },
+    { key: 'kind', label: 'Kind', type: 'select', options: ['fixed', 'spring'] },
+    { key: 'rotation', label: 'Rotation', type: 'quantity', kind: 'angle', enabled: (r) => r.kind === 'fixed', width: 6 },
+    { key: 'stiffness', label: 'Stiffness', type: 'quantity', kind: 'rotationalStiffness', enabled: (r) => r.kind === 'spring' },
+  ];
+}
+
+function torqueColumns(shafts: string[]): Column[] {
+  const isPower = (r: Row) => r.power !== undefined || r.speed !== undefined;
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 7 },
+    { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
+    { key: 'at', label: 'At z', type: 'quantity', kind: 'length' },
+    { key: '@form', label: 'Given as', type: 'select', options: ['torque', 'power'], get: (r) => (isPower(r) ? 'power' : 'torque') },
+    { key: 'torque', label: 'Torque', type: 'quantity', kind: 'torque', enabled: (r) => !isPower(r) },
+    { key: 'power', label: 'Power', type: 'quantity', kind: 'power', enabled: isPower, width: 6 },
+    { key: 'speed', label: 'Speed', type: 'quantity', kind: 'angularSpeed', enabled: isPower, width: 6 },
+  ];
+}
+
+function distributedColumns(shafts: string[]): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 7 },
+    { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
+    { key: 'from', label: 'From z', type: 'quantity', kind: 'length' },
+    { key: 'to', label: 'To z', type: 'quantity', kind: 'length' },
+    { key: 'start', label: 'Start', type: 'quantity', kind: 'torquePerLength' },
+    { key: 'end', label: 'End', type: 'quantity', kind: 'torquePerLength' },
+  ];
+}
+
+function gearColumns(shafts: string[]): Column[] {
+  const teeth = (r: Row) => r.module !== undefined || (r.a as Row | undefined)?.teeth !== undefined;
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 5 },
+    { key: '@sizing', label: 'Size by', type: 'select', options: ['radius', 'teeth'], get: (r) => (teeth(r) ? 'teeth' : 'radius') },
+    { key: 'a/shaft', label: 'A shaft', type: 'select', options: shafts },
+    { key: 'a/at', label: 'A at z', type: 'quantity', kind: 'length', width: 6 },
+    { key: 'a/radius', label: 'A radius', type: 'quantity', kind: 'length', enabled: (r) => !teeth(r), width: 6 },
+    { key: 'a/teeth', label: 'A teeth', type: 'integer', enabled: teeth, width: 4 },
+    { key: 'b/shaft', label: 'B shaft', type: 'select', options: shafts },
+    { key: 'b/at', label: 'B at z', type: 'quantity', kind: 'length', width: 6 },
+    { key: 'b/radius', label: 'B radius', type: 'quantity', kind: 'length', enabled: (r) => !teeth(r), width: 6 },
+    { key: 'b/teeth', label: 'B teeth', type: 'integer', enabled: teeth, width: 4 },
+    { key: 'module', label: 'Module', type: 'quantity', kind: 'length', enabled: teeth, width: 5 },
+    { key: 'sense', label: 'Sense', type: 'select', options: ['opposite', 'same'] },
+    { key: 'stiffness', label: 'Stiffness', type: 'quantity', kind: 'linearStiffness', width: 6, hint: 'Tangential mesh stiffness; blank = rigid' },
+    { key: 'offset', label: 'Offset', type: 'quantity', kind: 'length', width: 6, hint: 'Tangential gap or timing error' },
+  ];
+}
+
+function couplingColumns(shafts: string[]): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 5 },
+    { key: 'a/shaft', label: 'A shaft', type: 'select', options: shafts },
+    { key: 'a/at', label: 'A at z', type: 'quantity', kind: 'length' },
+    { key: 'b/shaft', label: 'B shaft', type: 'select', options: shafts },
+    { key: 'b/at', label: 'B at z', type: 'quantity', kind: 'length' },
+    { key: 'stiffness', label: 'Stiffness', type: 'quantity', kind: 'rotationalStiffness', hint: 'Blank = rigid' },
+    { key: 'misfit', label: 'Misfit', type: 'quantity', kind: 'angle', width: 6 },
+  ];
+}
+
+function discColumns(shafts: string[]): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 7 },
+    { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
+    { key: 'at', label: 'At z', type: 'quantity', kind: 'length' },
+    { key: 'inertia', label: 'Inertia', type: 'quantity', kind: 'massInertia' },
+  ];
+}
+
+function limitColumns(): Column[] {
+  return [
+    { key: 'twistRate', label: 'Twist rate', type: 'quantity', kind: 'twistRate' },
+    { key: 'totalTwist', label: 'Total twist', type: 'quantity', kind: 'angle' },
+  ];
+}
+
+customElements.define('sn-editor', SnEditor);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'sn-editor': SnEditor;
+  }
+}

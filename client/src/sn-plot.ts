@@ -1,0 +1,124 @@
+import { LitElement, css, html, nothing, svg } from 'lit';
+import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, prettyUnit, toDisplay } from './units.js';
+
+const PW = 440; // px, viewBox width
+const PH = 170; // px, viewBox height
+const ML = 58; // px, left margin for tick labels
+const MR = 12;
+const MT = 22;
+const MB = 30;
+
+/** Round tick values covering [lo, hi]. */
+export function niceTicks(lo: number, hi: number, count = 5): number[] {
+  if (!(hi > lo)) return [lo];
+  const raw = (hi - lo) / count;
+  const p = Math.pow(10, Math.floor(Math.log10(raw)));
+  const step = [1, 2, 2.5, 5, 10].map((k) => k * p).find((s) => s >= raw) ?? 10 * p;
+  const out: number[] = [];
+  for (let v = Math.ceil(lo / step - 1e-9) * step; v <= hi + step * 1e-9; v += step) out.push(Math.abs(v) < step * 1e-9 ? 0 : v);
+  return out;
+}
+
+/**
+ * A diagram of one quantity along a shaft's z: a line through the given points
+ * (two points at one z draw a jump), shaded to zero, with the governing point
+ * marked and labelled. Values come in SI and are shown in the system's units.
+ */
+export class SnPlot extends LitElement {
+  static override styles = css`
+    :host { display: block; }
+    svg { width: 100%; height: auto; display: block; font-family: system-ui, sans-serif; }
+    .tick { font-size: 10px; fill: #6b665e; }
+    .title { font-size: 12px; font-weight: 600; fill: #1d3a4a; }
+    .mark { font-size: 10.5px; font-weight: 600; }
+  `;
+
+  static override properties = {
+    z: { attribute: false },
+    values: { attribute: false },
+    kind: { type: String },
+    system: { type: String },
+    label: { type: String },
+    color: { type: String },
+    markIndex: { type: Number },
+    breaks: { attribute: false },
+  };
+
+  declare z: readonly number[];
+  declare values: readonly number[];
+  /** Field kind of the values (torque, angle, stress). */
+  declare kind: FieldKind;
+  declare system: UnitSystem;
+  declare label: string;
+  declare color: string;
+  /** Index of the governing point to mark, or -1. */
+  declare markIndex: number;
+  /** z of segment boundaries, drawn as faint verticals. */
+  declare breaks: readonly number[];
+
+  constructor() {
+    super();
+    this.z = [];
+    this.values = [];
+    this.kind = 'torque';
+    this.system = 'SI';
+    this.label = '';
+    this.color = '#2b6f8e';
+    this.markIndex = -1;
+    this.breaks = [];
+  }
+
+  override render() {
+    if (this.z.length === 0) return nothing;
+    const xs = this.z.map((z) => toDisplay(z, 'length', this.system));
+    const ys = this.values.map((v) => toDisplay(v, this.kind, this.system));
+    const x0 = Math.min(...xs);
+    const x1 = Math.max(...xs, x0 + 1e-12);
+    let y0 = Math.min(0, ...ys);
+    let y1 = Math.max(0, ...ys);
+    if (y1 - y0 < 1e-12 * Math.max(1, Math.abs(y1))) {
+      y0 -= 1;
+      y1 += 1;
+    }
+    const pad = (y1 - y0) * 0.08;
+    y0 -= y0 < 0 ? pad : 0;
+    y1 += pad;
+    const X = (x: number) => ML + ((x - x0) / (x1 - x0)) * (PW - ML - MR);
+    const Y = (y: number) => PH - MB - ((y - y0) / (y1 - y0)) * (PH - MT - MB);
+    const pts = xs.map((x, i) => `${X(x).toFixed(2)},${Y(ys[i]).toFixed(2)}`).join(' ');
+    const area = `${X(xs[0]).toFixed(2)},${Y(0).toFixed(2)} ${pts} ${X(xs[xs.length - 1]).toFixed(2)},${Y(0).toFixed(2)}`;
+    const yt = niceTicks(y0, y1, 4);
+    const xt = niceTicks(x0, x1, 6);
+    const mi = this.markIndex;
+    const unit = prettyUnit(displayUnit(this.kind, this.system));
+    const mark =
+      mi >= 0 && mi < xs.length
+        ? svg`<g class="gov" data-z=${this.z[mi]} data-value=${this.values[mi]}>
+            <circle cx=${X(xs[mi])} cy=${Y(ys[mi])} r="4.5" fill="#fff" stroke="#b3261e" stroke-width="2"/>
+            <text class="mark" x=${Math.min(X(xs[mi]) + 7, PW - 150)} y=${Math.max(Y(ys[mi]) - 6, MT + 10)} fill="#b3261e">
+              ${formatQuantity(this.values[mi], this.kind, this.system, 4)} at z = ${formatQuantity(this.z[mi], 'length', this.system, 4)}
+            </text>
+          </g>`
+        : nothing;
+    return html`<svg viewBox="0 0 ${PW} ${PH}" role="img" aria-label=${this.label}>
+      <text class="title" x=${ML} y="13">${this.label} [${unit}]</text>
+      ${yt.map((t) => svg`<line x1=${ML} x2=${PW - MR} y1=${Y(t)} y2=${Y(t)} stroke="#e4e0d8"/>
+        <text class="tick" x=${ML - 5} y=${Y(t) + 3} text-anchor="end">${formatNumber(t, 4)}</text>`)}
+      ${this.breaks.map((b) => svg`<line x1=${X(toDisplay(b, 'length', this.system))} x2=${X(toDisplay(b, 'length', this.system))} y1=${MT} y2=${PH - MB} stroke="#d6d1c7" stroke-dasharray="3 3"/>`)}
+      ${xt.map((t) => svg`<text class="tick" x=${X(t)} y=${PH - MB + 13} text-anchor="middle">${formatNumber(t, 4)}</text>`)}
+      <text class="tick" x=${PW - MR} y=${PH - 3} text-anchor="end">z [${prettyUnit(displayUnit('length', this.system))}]</text>
+      <polygon points=${area} fill=${this.color} fill-opacity="0.13" />
+      <line x1=${ML} x2=${PW - MR} y1=${Y(0)} y2=${Y(0)} stroke="#6b665e" />
+      <polyline points=${pts} fill="none" stroke=${this.color} stroke-width="1.8" stroke-linejoin="round" />
+      ${mark}
+    </svg>`;
+  }
+}
+
+customElements.define('sn-plot', SnPlot);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'sn-plot': SnPlot;
+  }
+}

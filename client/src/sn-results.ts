@@ -1,0 +1,241 @@
+import { LitElement, css, html, nothing } from 'lit';
+import type { CheckResult, Solution } from '../../shared-types/solution.js';
+import type { EditModel } from './store.js';
+import type { SelectDetail } from './sn-table.js';
+import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatValue, prettyUnit } from './units.js';
+import './sn-plot.js';
+
+/** Where the results stand against the model on screen. */
+export type ResultState = 'none' | 'fresh' | 'stale' | 'solving' | 'invalid' | 'failed';
+
+const CHECK_KIND: Record<CheckResult['kind'], { label: string; kind: FieldKind }> = {
+  shear: { label: 'Shear stress', kind: 'stress' },
+  twistRate: { label: 'Twist rate', kind: 'twistRate' },
+  totalTwist: { label: 'Total twist', kind: 'angle' },
+};
+
+/** Index of the largest |value|. */
+function peakIndex(values: readonly number[]): number {
+  let best = -1;
+  let bestAbs = -1;
+  values.forEach((v, i) => {
+    if (Math.abs(v) > bestAbs) {
+      bestAbs = Math.abs(v);
+      best = i;
+    }
+  });
+  return best;
+}
+
+/**
+ * The answer for a model: state banner, reactions, mesh and coupling results,
+ * the equilibrium residual, warnings, the check table (worst first) and, per
+ * shaft, diagrams of torque, rotation and shear along z.
+ *
+ * @fires sn-select - {pointer}: a result row for a model item was clicked
+ */
+export class SnResults extends LitElement {
+  static override styles = css`
+    :host { display: block; }
+    .banner { padding: 6px 10px; border-radius: 4px; margin: 0 0 8px; font-size: 13px; display: flex; gap: 8px; align-items: center; }
+    .banner.fresh { background: #e3f1e8; color: #1f5a3a; }
+    .banner.stale, .banner.solving { background: #fdf1d8; color: #7a4f00; }
+    .banner.invalid, .banner.failed { background: #fbe3e1; color: #8c1d18; }
+    .spinner { width: 10px; height: 10px; border: 2px solid currentColor; border-right-color: transparent; border-radius: 50%; animation: spin 0.8s linear infinite; }
+    @keyframes spin { to { transform: rotate(360deg); } }
+    .body.dim { opacity: 0.45; filter: grayscale(0.6); }
+    h3 { font-size: 14px; margin: 14px 0 4px; color: #1d3a4a; }
+    h4 { font-size: 13px; margin: 10px 0 2px; color: #1d3a4a; }
+    table { border-collapse: collapse; font-size: 13px; margin-bottom: 4px; }
+    th { text-align: left; font-size: 12px; color: #4a5258; font-weight: 600; padding: 2px 8px 2px 0; border-bottom: 1px solid #dcd7cd; white-space: nowrap; }
+    td { padding: 2px 8px 2px 0; border-bottom: 1px solid #ece8e0; white-space: nowrap; }
+    td.num { text-align: right; font-variant-numeric: tabular-nums; }
+    tr.click { cursor: pointer; }
+    tr.click:hover td { background: #f3efe6; }
+    tr.selected td { background: #fbeed3; }
+    .fail { color: #b3261e; font-weight: 600; }
+    .ok { color: #1f5a3a; }
+    .bar { display: inline-block; height: 8px; background: #2b6f8e; vertical-align: middle; border-radius: 2px; }
+    .bar.over { background: #b3261e; }
+    .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; }
+    .warn { background: #fdf1d8; color: #7a4f00; padding: 4px 8px; border-radius: 4px; margin: 4px 0; font-size: 13px; }
+    .plots { display: grid; grid-template-columns: repeat(auto-fit, minmax(300px, 1fr)); gap: 4px 12px; }
+    .muted { color: #6b665e; font-size: 12px; }
+    .shaft { break-inside: avoid; page-break-inside: avoid; }
+    @media print { .banner.fresh { display: none; } .body.dim { opacity: 1; filter: none; } .plots { grid-template-columns: 1fr 1fr 1fr; } }
+  `;
+
+  static override properties = {
+    solution: { attribute: false },
+    model: { attribute: false },
+    system: { type: String },
+    state: { type: String },
+    message: { type: String },
+    selected: { type: String },
+  };
+
+  declare solution: Solution | null;
+  declare model: EditModel | null;
+  declare system: UnitSystem;
+  declare state: ResultState;
+  /** Why the results are not fresh (an API message), shown in the banner. */
+  declare message: string;
+  declare selected: string;
+
+  constructor() {
+    super();
+    this.solution = null;
+    this.model = null;
+    this.system = 'SI';
+    this.state = 'none';
+    this.message = '';
+    this.selected = '';
+  }
+
+  override render() {
+    const s = this.solution;
+    return html`${this.banner()}
+      ${s
+        ? html`<div class="body ${this.state === 'fresh' ? '' : 'dim'}" data-state=${this.state}>
+            ${s.warnings.map((w) => html`<div class="warn">⚠ ${w.message}</div>`)} ${this.reactions(s)} ${this.connections(s)}
+            <p class="muted" data-residual=${s.equilibrium.maxResidual}>
+              Equilibrium: largest residual of Σ torques on a shaft = ${formatValue(s.equilibrium.maxResidual, 'torque', this.system, 3)}
+              ${prettyUnit(displayUnit('torque', this.system))}.
+            </p>
+            ${this.checks(s)} ${s.shafts.map((sh) => this.shaftPlots(sh))}
+          </div>`
+        : nothing}`;
+  }
+
+  private banner() {
+    switch (this.state) {
+      case 'fresh':
+        return html`<div class="banner fresh" role="status" data-status="fresh">Results are up to date with the model.</div>`;
+      case 'stale':
+        return html`<div class="banner stale" role="status" data-status="stale">Results are out of date: the model changed; solving shortly…</div>`;
+      case 'solving':
+        return html`<div class="banner solving" role="status" data-status="solving"><span class="spinner"></span>Solving… results below are out of date.</div>`;
+      case 'invalid':
+        return html`<div class="banner invalid" role="alert" data-status="invalid">
+          Not solved: ${this.message || 'the model has errors'}. ${this.solution ? 'Results below are for an earlier version.' : ''}
+        </div>`;
+      case 'failed':
+        return html`<div class="banner failed" role="alert" data-status="failed">Solve failed: ${this.message}. ${this.solution ? 'Results below are for an earlier version.' : ''}</div>`;
+      default:
+        return html`<div class="banner stale" data-status="none">No results yet.</div>`;
+    }
+  }
+
+  private unit(kind: FieldKind): string {
+    return prettyUnit(displayUnit(kind, this.system));
+  }
+
+  private indexOf(list: 'supports' | 'gearMeshes' | 'couplings', id: string): number {
+    return ((this.model?.[list] ?? []) as Array<{ id: string }>).findIndex((r) => r.id === id);
+  }
+
+  private rowClass(list: 'supports' | 'gearMeshes' | 'couplings', id: string): string {
+    const i = this.indexOf(list, id);
+    return i >= 0 && this.selected === `/${list}/${i}` ? 'click selected' : 'click';
+  }
+
+  private pickRow(list: 'supports' | 'gearMeshes' | 'couplings', id: string): void {
+    const i = this.indexOf(list, id);
+    if (i >= 0) this.dispatchEvent(new CustomEvent<SelectDetail>('sn-select', { detail: { pointer: `/${list}/${i}` }, bubbles: true, composed: true }));
+  }
+
+  private reactions(s: Solution) {
+    return html`<h3>Reactions at the supports</h3>
+      <table class="reactions">
+        <thead><tr><th>Support</th><th>Shaft</th><th>Kind</th><th>Torque [${this.unit('torque')}]</th><th>Rotation [${this.unit('angle')}]</th></tr></thead>
+        <tbody>
+          ${s.reactions.map(
+            (r) => html`<tr class=${this.rowClass('supports', r.support)} data-support=${r.support} @click=${() => this.pickRow('supports', r.support)}>
+              <td>${r.support}</td><td>${r.shaft}</td><td>${r.kind}</td>
+              <td class="num torque" data-si=${r.torque}>${formatValue(r.torque, 'torque', this.system)}</td>
+              <td class="num">${formatValue(r.rotation, 'angle', this.system)}</td>
+            </tr>`,
+          )}
+        </tbody>
+      </table>`;
+  }
+
+  private connections(s: Solution) {
+    return html`${s.gearMeshes.length
+      ? html`<h3>Gear meshes</h3>
+          <table class="meshes">
+            <thead><tr><th>Mesh</th><th>Tangential force [${this.unit('force')}]</th><th>Torque on A [${this.unit('torque')}]</th><th>Torque on B [${this.unit('torque')}]</th><th>Gap [${this.unit('length')}]</th></tr></thead>
+            <tbody>
+              ${s.gearMeshes.map(
+                (g) => html`<tr class=${this.rowClass('gearMeshes', g.gearMesh)} data-mesh=${g.gearMesh} @click=${() => this.pickRow('gearMeshes', g.gearMesh)}>
+                  <td>${g.gearMesh}</td><td class="num">${formatValue(g.force, 'force', this.system)}</td>
+                  <td class="num">${formatValue(g.torqueA, 'torque', this.system)}</td><td class="num">${formatValue(g.torqueB, 'torque', this.system)}</td>
+                  <td class="num">${formatValue(g.gap, 'length', this.system)}</td>
+                </tr>`,
+              )}
+            </tbody>
+          </table>`
+      : nothing}
+    ${s.couplings.length
+      ? html`<h3>Couplings</h3>
+          <table class="couplings">
+            <thead><tr><th>Coupling</th><th>Torque on A [${this.unit('torque')}]</th><th>Torque on B [${this.unit('torque')}]</th><th>Twist across [${this.unit('angle')}]</th></tr></thead>
+            <tbody>
+              ${s.couplings.map(
+                (c) => html`<tr class=${this.rowClass('couplings', c.coupling)} data-coupling=${c.coupling} @click=${() => this.pickRow('couplings', c.coupling)}>
+                  <td>${c.coupling}</td><td class="num">${formatValue(c.torqueA, 'torque', this.system)}</td>
+                  <td class="num">${formatValue(c.torqueB, 'torque', this.system)}</td><td class="num">${formatValue(c.twist, 'angle', this.system)}</td>
+                </tr>`,
+              )}
+            </tbody>
+          </table>`
+      : nothing}`;
+  }
+
+  private checks(s: Solution) {
+    const rows = [...s.checks].sort((a, b) => b.utilisation - a.utilisation);
+    if (rows.length === 0) return html`<h3>Checks</h3><p class="muted">No checks: give materials an allowable shear stress, or set limits.</p>`;
+    return html`<h3>Checks, worst first</h3>
+      <table class="checks">
+        <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value</th><th>Allowed</th><th>Utilisation</th><th></th></tr></thead>
+        <tbody>
+          ${rows.map((c) => {
+            const k = CHECK_KIND[c.kind];
+            const u = c.utilisation;
+            return html`<tr data-check=${c.kind}>
+              <td>${c.shaft}</td><td>${c.segment === undefined ? '—' : c.segment + 1}</td>
+              <td>${c.layer === undefined ? '—' : `${c.layer + 1}${c.material ? ` (${c.material})` : ''}`}</td>
+              <td>${k.label}</td>
+              <td class="num">${formatValue(c.value, k.kind, this.system, 4)} ${this.unit(k.kind)}</td>
+              <td class="num">${formatValue(c.limit, k.kind, this.system, 4)} ${this.unit(k.kind)}</td>
+              <td class="num"><span class="barbox"><span class="bar ${u > 1 ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
+              <td class=${c.pass ? 'ok' : 'fail'}>${c.pass ? 'ok' : 'EXCEEDS'}</td>
+            </tr>`;
+          })}
+        </tbody>
+      </table>`;
+  }
+
+  private shaftPlots(sh: Solution['shafts'][number]) {
+    const d = sh.diagram;
+    const breaks = sh.segments.slice(1).map((g) => g.from);
+    return html`<div class="shaft" data-shaft=${sh.id}>
+      <h4>${sh.name ? `${sh.name} (${sh.id})` : sh.id}
+        <span class="muted">— length ${formatValue(sh.length, 'length', this.system)} ${this.unit('length')}, largest relative twist
+        ${formatValue(sh.totalTwist, 'angle', this.system, 4)} ${this.unit('angle')}</span></h4>
+      <div class="plots">
+        <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label="Internal torque T" color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.rotation} kind="angle" .system=${this.system} label="Rotation φ" color="#2f7d5b" .markIndex=${peakIndex(d.rotation)} .breaks=${breaks}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.shear} kind="stress" .system=${this.system} label="Peak shear τ" color="#b3261e" .markIndex=${peakIndex(d.shear)} .breaks=${breaks}></sn-plot>
+      </div>
+    </div>`;
+  }
+}
+
+customElements.define('sn-results', SnResults);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'sn-results': SnResults;
+  }
+}

@@ -1,0 +1,278 @@
+import { LitElement, css, html, nothing } from 'lit';
+import { live } from 'lit/directives/live.js';
+import { type FieldKind, type UnitSystem, displayUnit, inputText, parseInput, parsePlainNumber, prettyUnit } from './units.js';
+
+/** One column of an editable table. */
+export interface Column {
+  /** Path of the field inside a row, '/'-separated ("a/shaft"), or a virtual key starting with "@". */
+  readonly key: string;
+  readonly label: string;
+  readonly type: 'text' | 'quantity' | 'number' | 'integer' | 'select';
+  /** For quantities: what the field holds (sets the unit shown and how a plain number is read). */
+  readonly kind?: FieldKind;
+  /** For selects: the values offered. */
+  readonly options?: readonly string[];
+  /** For selects of an optional field: the label of "none". */
+  readonly blank?: string;
+  /** Value of a virtual column. */
+  readonly get?: (row: Record<string, unknown>) => unknown;
+  /** When false the cell is shown greyed and cannot be edited (a field this row's form does not use). */
+  readonly enabled?: (row: Record<string, unknown>) => boolean;
+  /** Tooltip of the header. */
+  readonly hint?: string;
+  /** Input width, in characters. */
+  readonly width?: number;
+}
+
+/** Detail of `sn-edit`. */
+export interface EditDetail { pointer: string; value: unknown }
+/** Detail of `sn-row-add` and `sn-row-remove`. */
+export interface RowDetail { pointer: string; index: number }
+/** Detail of `sn-select`. */
+export interface SelectDetail { pointer: string }
+
+function valueAt(row: Record<string, unknown>, col: Column): unknown {
+  if (col.get) return col.get(row);
+  let cur: unknown = row;
+  for (const k of col.key.split('/')) {
+    if (cur === null || typeof cur !== 'object') return undefined;
+    cur = (cur as Record<string, unknown>)[k];
+  }
+  return cur;
+}
+
+/**
+ * An editable table of one list of the model (or of one object, with `single`).
+ * Tab moves through the cells; Enter commits the cell and adds a row below.
+ * Each input carries `data-pointer`, the JSON pointer of its field, and shows the
+ * API's message for that pointer.
+ *
+ * @fires sn-edit - {pointer, value}: a cell was committed (value undefined removes an optional field)
+ * @fires sn-row-add - {pointer, index}: add a row to the list at pointer, at index
+ * @fires sn-row-remove - {pointer, index}: remove a row
+ * @fires sn-select - {pointer}: a row was focused or clicked
+ */
+export class SnTable extends LitElement {
+  static override styles = css`
+    :host { display: block; }
+    .wrap { overflow-x: auto; }
+    table { border-collapse: collapse; font-size: 13px; }
+    th { text-align: left; font-weight: 600; color: #4a5258; padding: 2px 4px; white-space: nowrap; font-size: 12px; }
+    td { padding: 1px 2px; vertical-align: top; }
+    tr.row > td:first-child { border-left: 3px solid transparent; }
+    tr.row.selected > td { background: #fbeed3; }
+    tr.row.selected > td:first-child { border-left-color: #d48a1a; }
+    tr.row.flagged > td:first-child { border-left-color: #b3261e; }
+    input, select { font: inherit; font-size: 13px; padding: 2px 4px; border: 1px solid #c8c4bb; border-radius: 3px;
+      background: #fff; box-sizing: border-box; }
+    input:focus, select:focus { outline: 2px solid #2b6f8e; outline-offset: -1px; border-color: #2b6f8e; }
+    input:disabled, select:disabled { background: #ece9e3; color: #9a968e; }
+    .invalid { border-color: #b3261e; background: #fdf0ef; }
+    .msg { color: #b3261e; font-size: 11px; max-width: 18em; line-height: 1.25; padding: 1px 2px; }
+    .rowmsg td { color: #b3261e; font-size: 12px; padding: 0 6px 4px; }
+    button { font: inherit; font-size: 12px; cursor: pointer; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; }
+    button.remove { border: none; background: none; color: #8a857c; font-size: 15px; padding: 0 5px; }
+    button.remove:hover { color: #b3261e; }
+    button.add { margin-top: 4px; padding: 2px 8px; }
+    .empty { color: #8a857c; font-style: italic; padding: 4px; font-size: 12px; }
+    @media print { button { display: none; } }
+  `;
+
+  static override properties = {
+    rows: { attribute: false },
+    columns: { attribute: false },
+    pointer: { type: String },
+    system: { type: String },
+    errors: { attribute: false },
+    selected: { type: String },
+    single: { type: Boolean },
+    noun: { type: String },
+    flagged: { attribute: false },
+  };
+
+  declare rows: ReadonlyArray<Record<string, unknown>>;
+  declare columns: readonly Column[];
+  /** JSON pointer of the list (or of the object, with `single`). */
+  declare pointer: string;
+  declare system: UnitSystem;
+  /** Messages by JSON pointer. */
+  declare errors: Readonly<Record<string, string>>;
+  /** Pointer of the selected item (a row or a field inside it). */
+  declare selected: string;
+  /** One object, not a list: no add or remove. */
+  declare single: boolean;
+  /** What a row is called, for the add button ("support"). */
+  declare noun: string;
+  /** Row pointers to mark (shafts free to spin). */
+  declare flagged: readonly string[];
+
+  private focusRow = -1;
+
+  constructor() {
+    super();
+    this.rows = [];
+    this.columns = [];
+    this.pointer = '';
+    this.system = 'SI';
+    this.errors = {};
+    this.selected = '';
+    this.single = false;
+    this.noun = 'row';
+    this.flagged = [];
+  }
+
+  override render() {
+    return html`<div class="wrap">
+        ${this.rows.length === 0
+          ? html`<div class="empty">None yet.</div>`
+          : html`<table>
+              <thead>
+                <tr>
+                  ${this.columns.map((c) => html`<th title=${c.hint ?? ''}>${this.header(c)}</th>`)}
+                  ${this.single ? nothing : html`<th></th>`}
+                </tr>
+              </thead>
+              <tbody>
+                ${this.rows.map((row, i) => this.renderRow(row, i))}
+              </tbody>
+            </table>`}
+      </div>
+      ${this.single
+        ? nothing
+        : html`<button class="add" data-add=${this.pointer} @click=${() => this.add(this.rows.length)}>+ Add ${this.noun}</button>`}`;
+  }
+
+  override updated(): void {
+    if (this.focusRow >= 0 && this.focusRow < this.rows.length) {
+      const target = this.renderRoot.querySelector<HTMLElement>(`tr[data-index="${this.focusRow}"] input:not(:disabled), tr[data-index="${this.focusRow}"] select:not(:disabled)`);
+      this.focusRow = -1;
+      target?.focus();
+      if (target instanceof HTMLInputElement) target.select();
+    }
+  }
+
+  /** Scrolls the selected row into view unless focus is already inside this table. */
+  revealSelected(): void {
+    const row = this.renderRoot.querySelector<HTMLElement>('tr.selected');
+    if (row && !this.matches(':focus-within')) row.scrollIntoView({ block: 'nearest' });
+  }
+
+  private header(c: Column) {
+    if (c.type !== 'quantity' || !c.kind) return c.label;
+    return html`${c.label} <span style="font-weight:400">[${prettyUnit(displayUnit(c.kind, this.system))}]</span>`;
+  }
+
+  private rowPointer(i: number): string {
+    return this.single ? this.pointer : `${this.pointer}/${i}`;
+  }
+
+  private renderRow(row: Record<string, unknown>, i: number) {
+    const rp = this.rowPointer(i);
+    const sel = this.selected !== '' && (this.selected === rp || this.selected.startsWith(rp + '/'));
+    const rowMsg = this.errors[rp];
+    return html`<tr
+        class="row ${sel ? 'selected' : ''} ${this.flagged.includes(rp) ? 'flagged' : ''}"
+        data-pointer=${rp}
+        data-index=${i}
+        @focusin=${() => this.select(rp)}
+        @click=${() => this.select(rp)}
+      >
+        ${this.columns.map((c) => html`<td>${this.renderCell(row, i, c)}</td>`)}
+        ${this.single
+          ? nothing
+          : html`<td><button class="remove" title="Remove this ${this.noun}" aria-label="Remove ${this.noun} ${i + 1}" @click=${() => this.removeAt(i)}>×</button></td>`}
+      </tr>
+      ${rowMsg ? html`<tr class="rowmsg"><td colspan=${this.columns.length + 1}>${rowMsg}</td></tr>` : nothing}`;
+  }
+
+  private renderCell(row: Record<string, unknown>, i: number, c: Column) {
+    const ptr = `${this.rowPointer(i)}/${c.key}`;
+    const msg = this.errors[ptr];
+    const value = valueAt(row, c);
+    const disabled = c.enabled ? !c.enabled(row) : false;
+    const label = `${c.label} of ${this.noun} ${i + 1}`;
+    if (c.type === 'select') {
+      const opts = c.options ?? [];
+      const v = value === undefined ? '' : String(value);
+      const all = v !== '' && !opts.includes(v) ? [...opts, v] : opts;
+      return html`<select
+          data-pointer=${ptr}
+          aria-label=${label}
+          class=${msg ? 'invalid' : ''}
+          ?disabled=${disabled}
+          @change=${(e: Event) => this.commitSelect(e, ptr)}
+        >
+          ${c.blank !== undefined ? html`<option value="" ?selected=${v === ''}>${c.blank}</option>` : nothing}
+          ${all.map((o) => html`<option value=${o} ?selected=${o === v}>${o}</option>`)}
+        </select>
+        ${msg ? html`<div class="msg">${msg}</div>` : nothing}`;
+    }
+    let text: string;
+    if (c.type === 'quantity' && c.kind) text = inputText(value, c.kind, this.system);
+    else text = value === undefined || value === null ? '' : String(value);
+    const title = c.type === 'quantity' && typeof value === 'string' ? `stored as "${value}"` : '';
+    return html`<input
+        data-pointer=${ptr}
+        aria-label=${label}
+        title=${title}
+        class=${msg ? 'invalid' : ''}
+        size=${c.width ?? (c.type === 'text' ? 10 : 8)}
+        .value=${live(disabled ? '' : text)}
+        ?disabled=${disabled}
+        spellcheck="false"
+        autocomplete="off"
+        @change=${(e: Event) => this.commitInput(e.target as HTMLInputElement, c, ptr)}
+        @keydown=${(e: KeyboardEvent) => this.onKey(e, c, ptr, i)}
+      />
+      ${msg ? html`<div class="msg">${msg}</div>` : nothing}`;
+  }
+
+  private parse(text: string, c: Column): unknown {
+    if (c.type === 'quantity' && c.kind) return parseInput(text, c.kind, this.system).value;
+    if (c.type === 'number') return parsePlainNumber(text, false).value;
+    if (c.type === 'integer') return parsePlainNumber(text, true).value;
+    return text.trim() === '' && c.key !== 'id' ? undefined : text.trim();
+  }
+
+  private commitInput(input: HTMLInputElement, c: Column, ptr: string): void {
+    this.emit<EditDetail>('sn-edit', { pointer: ptr, value: this.parse(input.value, c) });
+  }
+
+  private commitSelect(e: Event, ptr: string): void {
+    const v = (e.target as HTMLSelectElement).value;
+    this.emit<EditDetail>('sn-edit', { pointer: ptr, value: v === '' ? undefined : v });
+  }
+
+  private onKey(e: KeyboardEvent, c: Column, ptr: string, i: number): void {
+    if (e.key !== 'Enter' || e.isComposing) return;
+    e.preventDefault();
+    this.commitInput(e.target as HTMLInputElement, c, ptr);
+    if (!this.single) this.add(i + 1);
+  }
+
+  private add(index: number): void {
+    this.focusRow = index;
+    this.emit<RowDetail>('sn-row-add', { pointer: this.pointer, index });
+  }
+
+  private removeAt(index: number): void {
+    this.emit<RowDetail>('sn-row-remove', { pointer: this.pointer, index });
+  }
+
+  private select(pointer: string): void {
+    if (this.selected === pointer || this.selected.startsWith(pointer + '/')) return;
+    this.emit<SelectDetail>('sn-select', { pointer });
+  }
+
+  private emit<T>(type: string, detail: T): void {
+    this.dispatchEvent(new CustomEvent<T>(type, { detail, bubbles: true, composed: true }));
+  }
+}
+
+customElements.define('sn-table', SnTable);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'sn-table': SnTable;
+  }
+}

@@ -1,0 +1,399 @@
+/**
+ * The editor's data flow, free of the DOM: JSON pointers, immutable edits of a
+ * model, new rows, and an undo/redo history. Every edit returns a new model and
+ * leaves the old one untouched, so Lit elements re-render and undo is a pointer move.
+ */
+import type { Model } from '../../shared-types/model.js';
+
+/** A model as the editor holds it: the contract's shape, values as typed. */
+export type EditModel = Model;
+
+/** The lists of a model that the editor shows as tables. */
+export type ListName =
+  | 'materials'
+  | 'sections'
+  | 'shafts'
+  | 'supports'
+  | 'torques'
+  | 'distributedTorques'
+  | 'gearMeshes'
+  | 'couplings'
+  | 'discs';
+
+type Json = unknown;
+type Key = string | number;
+
+/** Splits a JSON pointer (RFC 6901) into keys; array indices become numbers. */
+export function parsePointer(pointer: string): Key[] {
+  if (pointer === '') return [];
+  if (!pointer.startsWith('/')) throw new Error(`not a JSON pointer: ${pointer}`);
+  return pointer
+    .slice(1)
+    .split('/')
+    .map((k) => k.replace(/~1/g, '/').replace(/~0/g, '~'))
+    .map((k) => (/^(0|[1-9]\d*)$/.test(k) ? Number(k) : k));
+}
+
+/** Joins keys into a JSON pointer. */
+export function toPointer(keys: readonly Key[]): string {
+  return keys.map((k) => '/' + String(k).replace(/~/g, '~0').replace(/\//g, '~1')).join('');
+}
+
+/** The value at a pointer, or undefined. */
+export function getAt(doc: Json, pointer: string | Key[]): Json {
+  const keys = typeof pointer === 'string' ? parsePointer(pointer) : pointer;
+  let cur: Json = doc;
+  for (const k of keys) {
+    if (cur === null || typeof cur !== 'object') return undefined;
+    cur = (cur as Record<Key, Json>)[k];
+  }
+  return cur;
+}
+
+/**
+ * A copy of `doc` with the value at `keys` replaced; `undefined` deletes an
+ * object key. Only the objects along the path are copied.
+ */
+export function setIn<T>(doc: T, keys: readonly Key[], value: Json): T {
+  if (keys.length === 0) return value as T;
+  const [head, ...rest] = keys;
+  const container = (doc ?? (typeof head === 'number' ? [] : {})) as Json;
+  const child = (container as Record<Key, Json>)[head];
+  const next = setIn(child, rest, value);
+  if (Array.isArray(container)) {
+    const copy = container.slice();
+    copy[head as number] = next;
+    return copy as T;
+  }
+  const copy = { ...(container as Record<string, Json>) };
+  if (next === undefined) delete copy[head as string];
+  else copy[head as string] = next;
+  return copy as T;
+}
+
+/** The ids already used in a list. */
+function idsOf(list: unknown): string[] {
+  return Array.isArray(list) ? list.map((r) => String((r as { id?: unknown }).id ?? '')) : [];
+}
+
+/** A fresh id: prefix + the smallest number not yet used ("S1", "S2", ...). */
+export function nextId(prefix: string, used: readonly string[]): string {
+  for (let i = 1; ; i++) {
+    const id = `${prefix}${i}`;
+    if (!used.includes(id)) return id;
+  }
+}
+
+const ID_PREFIX: Record<ListName, string> = {
+  materials: 'mat',
+  sections: 'sec',
+  shafts: 'shaft',
+  supports: 'S',
+  torques: 'T',
+  distributedTorques: 'q',
+  gearMeshes: 'G',
+  couplings: 'C',
+  discs: 'D',
+};
+
+/** A new row for a list, with a fresh id and values that reference existing items. */
+export function newRow(model: EditModel, list: ListName): Record<string, Json> {
+  const id = nextId(ID_PREFIX[list], idsOf(model[list]));
+  const shaft = model.shafts[0]?.id ?? '';
+  const shaft2 = model.shafts[1]?.id ?? shaft;
+  switch (list) {
+    case 'materials':
+      return { id, G: '79.3 GPa', allowableShear: '55 MPa' };
+    case 'sections':
+      return { id, shape: 'solid', d: '40 mm' };
+    case 'shafts':
+      return { id, segments: [newSegment(model)] };
+    case 'supports':
+      return { id, shaft, at: 0, kind: 'fixed' };
+    case 'torques':
+      return { id, shaft, at: 0, torque: '100 N*m' };
+    case 'distributedTorques':
+      return { id, shaft, from: 0, to: 0, start: '0 N*m/m', end: '0 N*m/m' };
+    case 'gearMeshes':
+      return { id, a: { shaft, at: 0, radius: '40 mm' }, b: { shaft: shaft2, at: 0, radius: '80 mm' }, sense: 'opposite' };
+    case 'couplings':
+      return { id, a: { shaft, at: 0 }, b: { shaft: shaft2, at: 0 } };
+    case 'discs':
+      return { id, shaft, at: 0, inertia: '0.1 kg*m2' };
+  }
+}
+
+/** A new segment: the first section and material of the model. */
+export function newSegment(model: EditModel): Record<string, Json> {
+  const seg: Record<string, Json> = { length: '100 mm', section: model.sections[0]?.id ?? '' };
+  const sec = model.sections[0];
+  if (sec && sec.shape !== 'layered' && model.materials[0]) seg.material = model.materials[0].id;
+  return seg;
+}
+
+/** A new layer of a layered section: a little larger than the last one. */
+export function newLayer(model: EditModel, sectionIndex: number): Record<string, Json> {
+  const layers = model.sections[sectionIndex]?.layers ?? [];
+  return { d: layers.length ? `${10 * (layers.length + 3)} mm` : '30 mm', material: model.materials[0]?.id ?? '' };
+}
+
+/** Inserts a row into the array at `listPointer` (at `index`, default the end). */
+export function insertRow(model: EditModel, listPointer: string, row: Json, index?: number): EditModel {
+  const keys = parsePointer(listPointer);
+  const list = (getAt(model, keys) as Json[] | undefined) ?? [];
+  const at = index === undefined ? list.length : Math.max(0, Math.min(index, list.length));
+  return setIn(model, keys, [...list.slice(0, at), row, ...list.slice(at)]);
+}
+
+/** Removes the row at `index` of the array at `listPointer`; an emptied optional list is dropped. */
+export function removeRow(model: EditModel, listPointer: string, index: number): EditModel {
+  const keys = parsePointer(listPointer);
+  const list = (getAt(model, keys) as Json[] | undefined) ?? [];
+  const next = list.filter((_, i) => i !== index);
+  return setIn(model, keys, next);
+}
+
+/** The row to add for a list pointer: a top-level list, a shaft's segments, a section's layers. */
+export function rowFor(model: EditModel, listPointer: string): Json {
+  const keys = parsePointer(listPointer);
+  if (keys.length === 1) return newRow(model, keys[0] as ListName);
+  if (keys[0] === 'shafts' && keys[2] === 'segments') return newSegment(model);
+  if (keys[0] === 'sections' && keys[2] === 'layers') return newLayer(model, keys[1] as number);
+  throw new Error(`no rows at ${listPointer}`);
+}
+
+/** Lists whose items other fields refer to by id, and where those references live. */
+const REFERENCES: Record<'shafts' | 'sections' | 'materials', Array<(m: EditModel, from: string, to: string) => EditModel>> = {
+  shafts: [
+    (m, a, b) => renameIn(m, 'supports', ['shaft'], a, b),
+    (m, a, b) => renameIn(m, 'torques', ['shaft'], a, b),
+    (m, a, b) => renameIn(m, 'distributedTorques', ['shaft'], a, b),
+    (m, a, b) => renameIn(m, 'discs', ['shaft'], a, b),
+    (m, a, b) => renameIn(m, 'gearMeshes', ['a', 'shaft'], a, b),
+    (m, a, b) => renameIn(m, 'gearMeshes', ['b', 'shaft'], a, b),
+    (m, a, b) => renameIn(m, 'couplings', ['a', 'shaft'], a, b),
+    (m, a, b) => renameIn(m, 'couplings', ['b', 'shaft'], a, b),
+  ],
+  sections: [(m, a, b) => mapSegments(m, (s) => (s.section === a ? { ...s, section: b } : s))],
+  materials: [
+    (m, a, b) => mapSegments(m, (s) => (s.material === a ? { ...s, material: b } : s)),
+    (m, a, b) => ({
+      ...m,
+      sections: m.sections.map((sec) =>
+        sec.layers && sec.layers.some((l) => l.material === a)
+          ? { ...sec, layers: sec.layers.map((l) => (l.material === a ? { ...l, material: b } : l)) }
+          : sec,
+      ),
+    }),
+  ],
+};
+
+function renameIn(m: EditModel, list: ListName, path: string[], from: string, to: string): EditModel {
+  const rows = m[list] as Json[] | undefined;
+  if (!rows) return m;
+  let out = m;
+  rows.forEach((row, i) => {
+    if (getAt(row, path) === from) out = setIn(out, [list, i, ...path], to);
+  });
+  return out;
+}
+
+function mapSegments(m: EditModel, f: (s: Model['shafts'][number]['segments'][number]) => Model['shafts'][number]['segments'][number]): EditModel {
+  return { ...m, shafts: m.shafts.map((sh) => ({ ...sh, segments: sh.segments.map(f) })) };
+}
+
+/**
+ * Applies one edit from the editor: sets the field at `pointer` to `value`
+ * (undefined removes it), and keeps the model coherent where one field implies
+ * others:
+ * - renaming a shaft, section or material id renames the references to it;
+ * - a section's shape brings or drops its bore and layers;
+ * - a support's kind brings or drops its stiffness and rotation;
+ * - the virtual fields `@form` (point torque: "torque" | "power"),
+ *   `@elastic` (material: "G" | "E") and `@sizing` (gear mesh: "radius" | "teeth")
+ *   switch between the alternative forms the contract allows.
+ */
+export function applyEdit(model: EditModel, pointer: string, value: Json): EditModel {
+  const keys = parsePointer(pointer);
+  const [list, index, field] = keys as [string, number, string];
+  const row = typeof index === 'number' ? (getAt(model, [list, index]) as Record<string, Json> | undefined) : undefined;
+
+  if (keys.length === 3 && field === '@form' && list === 'torques' && row) {
+    const { torque: _t, power: _p, speed: _s, ...rest } = row;
+    const next = value === 'power' ? { ...rest, power: row.power ?? '1 kW', speed: row.speed ?? '1000 rpm' } : { ...rest, torque: row.torque ?? '100 N*m' };
+    return setIn(model, [list, index], next);
+  }
+  if (keys.length === 3 && field === '@elastic' && list === 'materials' && row) {
+    const { G: _g, E: _e, nu: _n, ...rest } = row;
+    const next = value === 'E' ? { ...rest, E: row.E ?? '206 GPa', nu: row.nu ?? 0.3 } : { ...rest, G: row.G ?? '79.3 GPa' };
+    return setIn(model, [list, index], next);
+  }
+  if (keys.length === 3 && field === '@sizing' && list === 'gearMeshes' && row) {
+    const a = row.a as Record<string, Json>;
+    const b = row.b as Record<string, Json>;
+    if (value === 'teeth') {
+      const { radius: _ra, ...ra } = a;
+      const { radius: _rb, ...rb } = b;
+      return setIn(model, [list, index], { ...row, a: { ...ra, teeth: a.teeth ?? 20 }, b: { ...rb, teeth: b.teeth ?? 40 }, module: row.module ?? '2 mm' });
+    }
+    const { teeth: _ta, ...ra } = a;
+    const { teeth: _tb, ...rb } = b;
+    const { module: _m, ...rest } = row;
+    return setIn(model, [list, index], { ...rest, a: { ...ra, radius: a.radius ?? '40 mm' }, b: { ...rb, radius: b.radius ?? '80 mm' } });
+  }
+  if (keys.length === 3 && field === 'shape' && list === 'sections' && row) {
+    const { d, di, layers, ...rest } = row;
+    if (value === 'solid') return setIn(model, [list, index], { ...rest, shape: 'solid', d: d ?? '40 mm' });
+    if (value === 'hollow') return setIn(model, [list, index], { ...rest, shape: 'hollow', d: d ?? '50 mm', di: di ?? '30 mm' });
+    const firstMat = model.materials[0]?.id ?? '';
+    const next: Record<string, Json> = { ...rest, shape: 'layered', layers: layers ?? [{ d: d ?? '40 mm', material: firstMat }] };
+    if (di !== undefined) next.di = di;
+    return setIn(model, [list, index], next);
+  }
+  if (keys.length === 3 && field === 'kind' && list === 'supports' && row) {
+    const { rotation, stiffness, ...rest } = row;
+    if (value === 'spring') return setIn(model, [list, index], { ...rest, kind: 'spring', stiffness: stiffness ?? '10 kN*m/rad' });
+    const next: Record<string, Json> = { ...rest, kind: 'fixed' };
+    if (rotation !== undefined) next.rotation = rotation;
+    return setIn(model, [list, index], next);
+  }
+  if (keys.length === 3 && field === 'id' && row && (list === 'shafts' || list === 'sections' || list === 'materials')) {
+    const from = row.id as string;
+    let out = setIn(model, keys, value);
+    if (typeof value === 'string' && value !== '' && from !== value) {
+      for (const f of REFERENCES[list]) out = f(out, from, value);
+    }
+    return out;
+  }
+  if (keys.length === 2 && keys[0] === 'limits') {
+    const out = setIn(model, keys, value);
+    if (out.limits && Object.keys(out.limits).length === 0) return setIn(out, ['limits'], undefined);
+    return out;
+  }
+  return setIn(model, keys, value);
+}
+
+/** Undo/redo over immutable snapshots. */
+export class History<T> {
+  private past: T[] = [];
+  private future: T[] = [];
+  private current: T;
+  private readonly limit: number;
+
+  /** `limit`: most undo steps kept. */
+  constructor(initial: T, limit = 200) {
+    this.current = initial;
+    this.limit = limit;
+  }
+
+  /** The snapshot shown now. */
+  get present(): T {
+    return this.current;
+  }
+
+  get canUndo(): boolean {
+    return this.past.length > 0;
+  }
+
+  get canRedo(): boolean {
+    return this.future.length > 0;
+  }
+
+  /** Records a new snapshot; clears the redo list. A snapshot identical to the present is ignored. */
+  commit(next: T): T {
+    if (next === this.current) return next;
+    this.past.push(this.current);
+    if (this.past.length > this.limit) this.past.shift();
+    this.future = [];
+    this.current = next;
+    return next;
+  }
+
+  /** Steps back; returns the new present (unchanged when there is nothing to undo). */
+  undo(): T {
+    const prev = this.past.pop();
+    if (prev === undefined) return this.current;
+    this.future.push(this.current);
+    this.current = prev;
+    return prev;
+  }
+
+  /** Steps forward; returns the new present. */
+  redo(): T {
+    const next = this.future.pop();
+    if (next === undefined) return this.current;
+    this.past.push(this.current);
+    this.current = next;
+    return next;
+  }
+
+  /** Starts over from a snapshot (a model opened or loaded): no undo across documents. */
+  reset(value: T): T {
+    this.past = [];
+    this.future = [];
+    this.current = value;
+    return value;
+  }
+}
+
+/** Issues from the API keyed by pointer, messages joined. */
+export function issuesByPointer(issues: ReadonlyArray<{ pointer: string; message: string }>): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const i of issues) out[i.pointer] = out[i.pointer] ? `${out[i.pointer]}; ${i.message}` : i.message;
+  return out;
+}
+
+const LIST_WORDS: Record<string, string> = {
+  materials: 'material',
+  sections: 'section',
+  shafts: 'shaft',
+  supports: 'support',
+  torques: 'torque',
+  distributedTorques: 'distributed torque',
+  gearMeshes: 'gear mesh',
+  couplings: 'coupling',
+  discs: 'disc',
+  segments: 'segment',
+  layers: 'layer',
+};
+
+/**
+ * A reader's name for the place a pointer names:
+ * "/shafts/0/segments/1/length" → "shaft input › segment 2 › length".
+ */
+export function describePointer(model: EditModel | null, pointer: string): string {
+  if (pointer === '') return 'the model';
+  let keys: Key[];
+  try {
+    keys = parsePointer(pointer);
+  } catch {
+    return pointer;
+  }
+  const parts: string[] = [];
+  let cur: unknown = model;
+  for (let i = 0; i < keys.length; i++) {
+    const k = keys[i];
+    const next = keys[i + 1];
+    if (typeof k === 'string' && typeof next === 'number' && LIST_WORDS[k]) {
+      const item = (getAt(cur, [k, next]) ?? {}) as { id?: unknown };
+      parts.push(typeof item.id === 'string' && item.id ? `${LIST_WORDS[k]} ${item.id}` : `${LIST_WORDS[k]} ${next + 1}`);
+      cur = getAt(cur, [k, next]);
+      i++;
+    } else {
+      parts.push(String(k));
+      cur = getAt(cur, [k]);
+    }
+  }
+  return parts.join(' › ');
+}
+
+/** Structural equality of JSON values (for skipping edits that change nothing). */
+export function sameJson(a: unknown, b: unknown): boolean {
+  if (a === b) return true;
+  if (typeof a !== 'object' || typeof b !== 'object' || a === null || b === null) return false;
+  if (Array.isArray(a) !== Array.isArray(b)) return false;
+  const ka = Object.keys(a);
+  const kb = Object.keys(b);
+  if (ka.length !== kb.length) return false;
+  return ka.every((k) => sameJson((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k]));
+}
