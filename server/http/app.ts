@@ -1,0 +1,187 @@
+/**
+ * buildApp(opts): the whole HTTP server as a Fastify instance, ready for
+ * `inject()` in tests or `listen()` in main.ts. It never listens itself.
+ */
+import cookie from '@fastify/cookie';
+import helmet from '@fastify/helmet';
+import swagger from '@fastify/swagger';
+import swaggerUi from '@fastify/swagger-ui';
+import type { TypeBoxTypeProvider } from '@fastify/type-provider-typebox';
+import Fastify, { type FastifyInstance, type FastifyServerOptions } from 'fastify';
+import type { ModelStore } from '../store/store.js';
+import { authHook } from './auth.js';
+import { loadDemos, seedDemos } from './demos.js';
+import { toErrorReply } from './errors.js';
+import { defaultClientDir, defaultDemosDir, packageVersion } from './paths.js';
+import clientRoutes from './routes/client.js';
+import demosRoutes from './routes/demos.js';
+import healthRoutes from './routes/health.js';
+import modelsRoutes from './routes/models.js';
+import sessionRoutes from './routes/session.js';
+import solveRoutes from './routes/solve.js';
+import { parseJsonText, type SizeLimits } from './solve-core.js';
+import { SolverPool } from './solver-pool.js';
+import { DeferredBody, validatorCompiler } from './validation.js';
+
+export interface AppOptions {
+  /** The model library. The app does not close it: whoever opened it does. */
+  readonly store: ModelStore;
+  /** Team token; undefined = open server. */
+  readonly token?: string;
+  /** Largest request body, bytes (default 64 MiB). */
+  readonly maxBodyBytes?: number;
+  /** Model size limits (default 2,000,000 stations, 10,000 shafts). */
+  readonly limits?: SizeLimits;
+  /** Time limit of a worker solve, ms (default 60,000). */
+  readonly solveTimeoutMs?: number;
+  /** Solves above this many stations run in a worker (default 20,000). */
+  readonly workerThreshold?: number;
+  /** Bodies of /api/solve above this many bytes are parsed in a worker (default 1 MiB). */
+  readonly deferBytes?: number;
+  /** Worker threads (default 1). */
+  readonly workers?: number;
+  /** Large solves that may wait for a worker (default 8). */
+  readonly queueLimit?: number;
+  /** Solves per minute per address; 0 = off (default 1200). */
+  readonly rateLimitPerMinute?: number;
+  /** Built client directory; null = none (placeholder page). Default dist/client. */
+  readonly clientDir?: string | null;
+  /** Demo models directory (default server/demos). */
+  readonly demosDir?: string;
+  /** Seed the demos into an empty library (default true). */
+  readonly seedDemos?: boolean;
+  /** Fastify logger option (default off). */
+  readonly logger?: FastifyServerOptions['logger'];
+  /** Reported by /api/health (default: package.json's). */
+  readonly version?: string;
+}
+
+/** The Content-Security-Policy the browser client runs under. */
+export const CLIENT_CSP = {
+  defaultSrc: ["'self'"],
+  scriptSrc: ["'self'"],
+  styleSrc: ["'self'", "'unsafe-inline'"],
+  imgSrc: ["'self'", 'data:', 'blob:'],
+  connectSrc: ["'self'"],
+  objectSrc: ["'none'"],
+  frameAncestors: ["'none'"],
+};
+
+function positiveInt(name: string, value: number, min = 1): number {
+  if (!Number.isInteger(value) || value < min) throw new Error(`buildApp: ${name} must be a whole number >= ${min}, not ${value}`);
+  return value;
+}
+
+export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
+  const maxBodyBytes = positiveInt('maxBodyBytes', opts.maxBodyBytes ?? 64 * 1024 * 1024);
+  const limits: SizeLimits = opts.limits ?? { maxStations: 2_000_000, maxShafts: 10_000 };
+  positiveInt('limits.maxStations', limits.maxStations);
+  positiveInt('limits.maxShafts', limits.maxShafts);
+  const workerThreshold = positiveInt('workerThreshold', opts.workerThreshold ?? 20_000, 0);
+  const deferBytes = positiveInt('deferBytes', opts.deferBytes ?? 1024 * 1024);
+  const rateLimitPerMinute = positiveInt('rateLimitPerMinute', opts.rateLimitPerMinute ?? 1200, 0);
+  const token = opts.token;
+  if (token !== undefined && token.length === 0) throw new Error('buildApp: token must not be empty');
+
+  const app = Fastify({
+    logger: opts.logger ?? false,
+    bodyLimit: maxBodyBytes,
+    // Request logs carry method, URL, status and time, never bodies (models stay out of the logs).
+    disableRequestLogging: false,
+    return503OnClosing: true,
+    forceCloseConnections: true,
+  }).withTypeProvider<TypeBoxTypeProvider>();
+
+  app.setValidatorCompiler(validatorCompiler);
+  // Plain JSON.stringify: the response schemas document the API but never filter what is sent.
+  app.setSerializerCompiler(() => (data) => JSON.stringify(data));
+
+  // Our own JSON parser: error messages with the position, and large solve bodies left for a worker.
+  app.removeContentTypeParser(['application/json']);
+  app.addContentTypeParser('application/json', { parseAs: 'string', bodyLimit: maxBodyBytes }, (req, body, done) => {
+    const text = body as string;
+    if (text.length > deferBytes && req.routeOptions.url === '/api/solve') {
+      done(null, new DeferredBody(text));
+      return;
+    }
+    try {
+      done(null, parseJsonText(text));
+    } catch (err) {
+      done(err as Error, undefined);
+    }
+  });
+
+  app.setErrorHandler((err, req, reply) => {
+    const { status, body, internal } = toErrorReply(err);
+    if (internal) req.log.error({ err }, 'internal error');
+    else req.log.info({ code: body.error.code, status }, 'request refused');
+    return reply.code(status).send(body);
+  });
+
+  const pool = new SolverPool({
+    size: positiveInt('workers', opts.workers ?? 1),
+    queueLimit: positiveInt('queueLimit', opts.queueLimit ?? 8, 0),
+    timeoutMs: positiveInt('solveTimeoutMs', opts.solveTimeoutMs ?? 60_000),
+    onInternalError: (message) => app.log.error({ worker: message }, 'solver worker fault'),
+  });
+  app.addHook('onClose', async () => pool.close());
+
+  await app.register(helmet, {
+    contentSecurityPolicy: { useDefaults: false, directives: CLIENT_CSP },
+    // The server speaks plain HTTP on the team's network; TLS, if any, is a proxy's business.
+    strictTransportSecurity: false,
+  });
+  await app.register(cookie);
+  await app.register(swagger, {
+    openapi: {
+      openapi: '3.0.3',
+      info: {
+        title: 'Shaftnet team server',
+        description:
+          'Solves statically indeterminate torsion of shaft systems and keeps the team\'s model library. Errors: `{ error: { code, message, issues } }`.',
+        version: opts.version ?? packageVersion(),
+      },
+      components: {
+        securitySchemes: {
+          bearer: { type: 'http', scheme: 'bearer', description: 'The team token (token mode only).' },
+          session: { type: 'apiKey', in: 'cookie', name: 'shaftnet_session', description: 'Set by POST /api/session.' },
+        },
+      },
+      security: token === undefined ? [] : [{ bearer: [] }, { session: [] }],
+    },
+  });
+  await app.register(swaggerUi, {
+    routePrefix: '/api/docs',
+    // The docs page has inline scripts and styles of its own: allow exactly those (hashes), nothing more.
+    transformStaticCSP: () => {
+      const csp = (app as unknown as { swaggerCSP: { script: string[]; style: string[] } }).swaggerCSP;
+      return [
+        "default-src 'self'",
+        `script-src 'self' ${csp.script.join(' ')}`,
+        `style-src 'self' 'unsafe-inline'`,
+        "img-src 'self' data:",
+        "connect-src 'self'",
+        "object-src 'none'",
+        "frame-ancestors 'none'",
+      ].join('; ');
+    },
+  });
+  app.get('/api/openapi.json', { schema: { hide: true } }, async () => app.swagger());
+
+  app.addHook('onRequest', authHook(token));
+
+  const demos = loadDemos(opts.demosDir ?? defaultDemosDir());
+  if (opts.seedDemos ?? true) {
+    const n = seedDemos(opts.store, demos);
+    if (n > 0) app.log.info(`seeded ${n} demo models into the empty library`);
+  }
+
+  await app.register(healthRoutes, { version: opts.version ?? packageVersion(), workers: () => pool.stats() });
+  await app.register(sessionRoutes, { token });
+  await app.register(solveRoutes, { pool, limits, workerThreshold, rateLimitPerMinute });
+  await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold });
+  await app.register(demosRoutes, { demos });
+  await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir });
+
+  return app as unknown as FastifyInstance;
+}

@@ -1,0 +1,73 @@
+/**
+ * POST /api/solve: a model in, its solution out.
+ *
+ * Small models are solved on the request thread (a 50-station solve takes well
+ * under a millisecond: a worker round trip would cost more than it saves).
+ * Models above the station threshold, and bodies too large to parse without
+ * stalling the event loop, go to the worker pool with its time limit.
+ * Rate limited per client address.
+ */
+import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import rateLimit from '@fastify/rate-limit';
+import { Model } from '../../../shared-types/model.js';
+import { Solution, type Solution as SolutionT } from '../../../shared-types/solution.js';
+import { solveModel } from '../../engine/index.js';
+import { HttpError } from '../errors.js';
+import { errorResponses } from '../schemas.js';
+import { checkSize, type SizeLimits } from '../solve-core.js';
+import type { SolverPool } from '../solver-pool.js';
+import { DeferredBody } from '../validation.js';
+
+export interface SolveOptions {
+  readonly pool: SolverPool;
+  readonly limits: SizeLimits;
+  /** stations above which a solve runs in a worker */
+  readonly workerThreshold: number;
+  /** solves per minute per address; 0 = no limit */
+  readonly rateLimitPerMinute: number;
+}
+
+const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) => {
+  if (opts.rateLimitPerMinute > 0) {
+    await app.register(rateLimit, {
+      global: true, // within this plugin only: the solve route
+      max: opts.rateLimitPerMinute,
+      timeWindow: 60_000, // ms
+      errorResponseBuilder: (_req, ctx) =>
+        new HttpError(
+          'SN_RATE_LIMITED',
+          `too many solves: at most ${ctx.max} a minute from one address; retry in ${ctx.after}`,
+        ),
+    });
+  }
+
+  app.post(
+    '/api/solve',
+    {
+      schema: {
+        tags: ['solve'],
+        summary: 'Solve a model',
+        description:
+          'Answers the solution (SI units). 400 names the field by JSON pointer; 422 names the shafts of a mechanism or the connections of a loop that cannot close; 413 for a model over the size limits.',
+        body: Model,
+        response: { 200: Solution, ...errorResponses(400, 401, 413, 422, 429, 503, 504) },
+      },
+    },
+    async (req, reply) => {
+      const body: unknown = req.body;
+      if (body instanceof DeferredBody) {
+        // Too large to parse here without stalling other requests: the worker parses, checks and solves.
+        const json = await opts.pool.run({ kind: 'text', text: body.text, limits: opts.limits });
+        return reply.type('application/json; charset=utf-8').send(json as unknown as SolutionT);
+      }
+      const size = checkSize(body, opts.limits);
+      if (size.stations > opts.workerThreshold) {
+        const json = await opts.pool.run({ kind: 'model', model: body });
+        return reply.type('application/json; charset=utf-8').send(json as unknown as SolutionT);
+      }
+      return solveModel(body);
+    },
+  );
+};
+
+export default solveRoutes;

@@ -1,0 +1,84 @@
+/**
+ * The steps of a solve request that do not need Fastify, shared by the
+ * request thread and the solver workers: read JSON, check the model's shape,
+ * check its size against the limits, solve or validate.
+ */
+import { Compile } from 'typebox/compile';
+import { Model } from '../../shared-types/model.js';
+import type { ModelIssue } from '../../shared-types/errors.js';
+import { modelSize } from '../engine/index.js';
+import { HttpError } from './errors.js';
+import { validationIssues, type ValidationErrorLike } from './validation.js';
+
+/** Model size limits. */
+export interface SizeLimits {
+  /** stations */
+  readonly maxStations: number;
+  /** shafts */
+  readonly maxShafts: number;
+}
+
+const modelCheck = Compile(Model);
+
+/** Parses a JSON body; a syntax error is a 400 SN_JSON, a "__proto__" key too. */
+export function parseJsonText(text: string): unknown {
+  if (text.trim() === '') throw jsonError('the body is empty; send a JSON document');
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch (err) {
+    const detail = err instanceof Error ? err.message : String(err);
+    throw jsonError(`the body is not valid JSON: ${detail.length > 200 ? detail.slice(0, 200) + '...' : detail}`);
+  }
+  // JSON.parse makes "__proto__" an own property; refuse it before any code merges objects.
+  if (text.includes('__proto__') && hasProtoKey(value)) throw jsonError('the body contains a "__proto__" key');
+  return value;
+}
+
+function hasProtoKey(value: unknown): boolean {
+  const stack: unknown[] = [value];
+  while (stack.length > 0) {
+    const v = stack.pop();
+    if (v === null || typeof v !== 'object') continue;
+    if (Array.isArray(v)) stack.push(...v);
+    else {
+      if (Object.prototype.hasOwnProperty.call(v, '__proto__')) return true;
+      for (const k in v) stack.push((v as Record<string, unknown>)[k]);
+    }
+  }
+  return false;
+}
+
+function jsonError(message: string): HttpError {
+  return new HttpError('SN_JSON', message, [{ code: 'SN_JSON', pointer: '', message }]);
+}
+
+/** Checks the shape of a model (what Fastify checks for a parsed body); throws a 400 naming the fields. */
+export function checkModelShape(value: unknown, prefix = ''): void {
+  if (modelCheck.Check(value)) return;
+  const issues = validationIssues(modelCheck.Errors(value) as unknown as ValidationErrorLike[], prefix);
+  const code = issues.some((i) => i.code === 'SN_FORMAT') ? 'SN_FORMAT' : 'SN_SCHEMA';
+  throw new HttpError(code, `${issues[0].pointer || '(model)'}: ${issues[0].message}`, issues);
+}
+
+/** The model's size by the engine's upper bound; throws 413 SN_TOO_LARGE over a limit. */
+export function checkSize(model: unknown, limits: SizeLimits, prefix = ''): { stations: number; shafts: number } {
+  const size = modelSize(model as Parameters<typeof modelSize>[0]);
+  const issues: ModelIssue[] = [];
+  if (size.shafts > limits.maxShafts) {
+    issues.push({
+      code: 'SN_TOO_LARGE',
+      pointer: prefix + '/shafts',
+      message: `the model has ${size.shafts} shafts; this server accepts at most ${limits.maxShafts} (see --max-shafts)`,
+    });
+  }
+  if (size.stations > limits.maxStations) {
+    issues.push({
+      code: 'SN_TOO_LARGE',
+      pointer: prefix,
+      message: `the model has up to ${size.stations} stations; this server accepts at most ${limits.maxStations} (see --max-stations)`,
+    });
+  }
+  if (issues.length > 0) throw new HttpError('SN_TOO_LARGE', issues[0].message, issues);
+  return size;
+}

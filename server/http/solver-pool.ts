@@ -1,0 +1,188 @@
+/**
+ * A small pool of worker threads for large solves, so that one engineer's
+ * million-station model never stalls the event loop that answers everyone else.
+ *
+ * Each worker runs one job at a time. Jobs wait in a bounded queue (full: 503
+ * SN_BUSY). A job that runs past the time limit is answered 504 SN_TIMEOUT and
+ * its worker is terminated (the only way to stop a synchronous solve) and
+ * replaced on demand. Workers start lazily, on the first large job.
+ */
+import fs from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { Worker } from 'node:worker_threads';
+import type { ErrorCode, ModelIssue } from '../../shared-types/errors.js';
+import { HttpError } from './errors.js';
+import type { SizeLimits } from './solve-core.js';
+
+/** What the pool sends a worker. */
+export type WorkerJob =
+  | { id: number; kind: 'model'; model: unknown }
+  | { id: number; kind: 'validate'; model: unknown }
+  | { id: number; kind: 'text'; text: string; limits: SizeLimits };
+
+/** What a worker answers. */
+export type WorkerReply =
+  | { id: number; ok: true; json: Uint8Array | null }
+  | { id: number; ok: false; error: { code: ErrorCode; message: string; issues: readonly ModelIssue[] } }
+  | { id: number; ok: false; internal: string };
+
+/** A job as the caller gives it (the pool numbers it). */
+export type PoolJob =
+  | { kind: 'model'; model: unknown }
+  | { kind: 'validate'; model: unknown }
+  | { kind: 'text'; text: string; limits: SizeLimits };
+
+export interface SolverPoolOptions {
+  /** worker threads */
+  readonly size: number;
+  /** jobs that may wait for a worker */
+  readonly queueLimit: number;
+  /** ms a job may run on a worker */
+  readonly timeoutMs: number;
+  /** Called with the details of a worker fault (the client only sees SN_INTERNAL). */
+  readonly onInternalError?: (message: string) => void;
+}
+
+interface Pending {
+  job: WorkerJob;
+  resolve: (json: Buffer | null) => void;
+  reject: (err: Error) => void;
+}
+
+interface Slot {
+  worker: Worker | undefined;
+  current: Pending | undefined;
+  timer: NodeJS.Timeout | undefined;
+}
+
+/** The worker entry: compiled JavaScript beside this file, else the TypeScript source through tsx. */
+function workerEntry(): { file: string; execArgv: string[] } {
+  const js = fileURLToPath(new URL('./solve-worker.js', import.meta.url));
+  if (fs.existsSync(js)) return { file: js, execArgv: [] };
+  const ts = fileURLToPath(new URL('./solve-worker.ts', import.meta.url));
+  return { file: ts, execArgv: ['--import', 'tsx'] };
+}
+
+export class SolverPool {
+  private readonly slots: Slot[];
+  private readonly queue: Pending[] = [];
+  private nextId = 1;
+  private closed = false;
+  private readonly entry = workerEntry();
+
+  constructor(private readonly opts: SolverPoolOptions) {
+    if (!Number.isInteger(opts.size) || opts.size < 1) throw new Error('SolverPool: size must be a whole number >= 1');
+    if (!Number.isInteger(opts.queueLimit) || opts.queueLimit < 0) throw new Error('SolverPool: queueLimit must be >= 0');
+    if (!(opts.timeoutMs > 0)) throw new Error('SolverPool: timeoutMs must be > 0');
+    this.slots = Array.from({ length: opts.size }, () => ({ worker: undefined, current: undefined, timer: undefined }));
+  }
+
+  /** Workers running a job, and the pool size. */
+  stats(): { busy: number; total: number } {
+    let busy = 0;
+    for (const s of this.slots) if (s.current) busy++;
+    return { busy, total: this.slots.length };
+  }
+
+  /** Jobs waiting for a worker. */
+  get queued(): number {
+    return this.queue.length;
+  }
+
+  /** Runs a job; resolves the solution's JSON bytes (null for 'validate'). */
+  run(job: PoolJob): Promise<Buffer | null> {
+    if (this.closed) return Promise.reject(new HttpError('SN_BUSY', 'the server is shutting down'));
+    return new Promise((resolve, reject) => {
+      const pending: Pending = { job: { ...job, id: this.nextId++ } as WorkerJob, resolve, reject };
+      const idle = this.slots.find((s) => !s.current);
+      if (idle) this.start(idle, pending);
+      else if (this.queue.length < this.opts.queueLimit) this.queue.push(pending);
+      else {
+        reject(
+          new HttpError('SN_BUSY', `all ${this.slots.length} solver workers are busy and ${this.queue.length} solves are waiting; retry shortly`),
+        );
+      }
+    });
+  }
+
+  /** Stops every worker; waiting and running jobs are answered SN_BUSY. */
+  async close(): Promise<void> {
+    this.closed = true;
+    const gone = new HttpError('SN_BUSY', 'the server is shutting down');
+    for (const p of this.queue.splice(0)) p.reject(gone);
+    await Promise.all(
+      this.slots.map(async (s) => {
+        if (s.timer) clearTimeout(s.timer);
+        s.current?.reject(gone);
+        s.current = undefined;
+        const w = s.worker;
+        s.worker = undefined;
+        if (w) await w.terminate();
+      }),
+    );
+  }
+
+  private spawn(slot: Slot): Worker {
+    const worker = new Worker(this.entry.file, { execArgv: this.entry.execArgv });
+    worker.on('message', (reply: WorkerReply) => this.finish(slot, worker, reply));
+    worker.on('error', (err) => this.fault(slot, worker, `worker error: ${err.stack ?? err.message}`));
+    worker.on('exit', (code) => {
+      if (slot.worker === worker) this.fault(slot, worker, `worker exited with code ${code}`);
+    });
+    // An idle worker must not keep the process alive.
+    worker.unref();
+    slot.worker = worker;
+    return worker;
+  }
+
+  private start(slot: Slot, pending: Pending): void {
+    const worker = slot.worker ?? this.spawn(slot);
+    slot.current = pending;
+    slot.timer = setTimeout(() => {
+      slot.timer = undefined;
+      const p = slot.current;
+      slot.current = undefined;
+      slot.worker = undefined;
+      void worker.terminate();
+      p?.reject(
+        new HttpError('SN_TIMEOUT', `the solve took longer than the time limit of ${this.opts.timeoutMs} ms (see --solve-timeout)`),
+      );
+      this.next(slot);
+    }, this.opts.timeoutMs);
+    worker.postMessage(pending.job);
+  }
+
+  private finish(slot: Slot, worker: Worker, reply: WorkerReply): void {
+    if (slot.worker !== worker || !slot.current || slot.current.job.id !== reply.id) return;
+    const p = slot.current;
+    if (slot.timer) clearTimeout(slot.timer);
+    slot.timer = undefined;
+    slot.current = undefined;
+    if (reply.ok) p.resolve(reply.json ? Buffer.from(reply.json.buffer, reply.json.byteOffset, reply.json.byteLength) : null);
+    else if ('error' in reply) p.reject(new HttpError(reply.error.code, reply.error.message, reply.error.issues));
+    else {
+      this.opts.onInternalError?.(reply.internal);
+      p.reject(new HttpError('SN_INTERNAL', 'internal server error; the server log has the details'));
+    }
+    this.next(slot);
+  }
+
+  private fault(slot: Slot, worker: Worker, message: string): void {
+    if (slot.worker !== worker) return;
+    slot.worker = undefined;
+    void worker.terminate();
+    if (slot.timer) clearTimeout(slot.timer);
+    slot.timer = undefined;
+    const p = slot.current;
+    slot.current = undefined;
+    this.opts.onInternalError?.(message);
+    p?.reject(new HttpError('SN_INTERNAL', 'internal server error; the server log has the details'));
+    this.next(slot);
+  }
+
+  private next(slot: Slot): void {
+    if (this.closed) return;
+    const pending = this.queue.shift();
+    if (pending) this.start(slot, pending);
+  }
+}

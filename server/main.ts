@@ -1,0 +1,130 @@
+/**
+ * Starts the team server: reads the options, opens the library, listens and
+ * prints the URL. `shaftnet serve [flags]` (server/cli.ts) calls
+ * serveFromArgs; `node dist/server/main.js [flags]` runs it directly.
+ * Importing this module starts nothing.
+ */
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { FastifyInstance } from 'fastify';
+import { buildApp } from './http/app.js';
+import { ConfigError, isLoopback, parseConfig, usage, type ServerConfig } from './http/config.js';
+import { openSqliteStore } from './store/sqlite-store.js';
+
+/** A running server and how to stop it. */
+export interface RunningServer {
+  readonly app: FastifyInstance;
+  readonly url: string;
+  readonly config: ServerConfig;
+  close(): Promise<void>;
+}
+
+/** Starts a server with a checked configuration; resolves once it listens. */
+export async function startServer(config: ServerConfig): Promise<RunningServer> {
+  const store = openSqliteStore(config.dataDir);
+  let app: FastifyInstance;
+  try {
+    app = await buildApp({
+      store,
+      token: config.token,
+      maxBodyBytes: config.maxBodyBytes,
+      limits: { maxStations: config.maxStations, maxShafts: config.maxShafts },
+      solveTimeoutMs: config.solveTimeoutMs,
+      workerThreshold: config.workerThreshold,
+      workers: config.workers,
+      queueLimit: config.queueLimit,
+      rateLimitPerMinute: config.rateLimitPerMinute,
+      logger: config.logLevel === 'silent' ? false : { level: config.logLevel },
+    });
+    await app.listen({ port: config.port, host: config.host });
+  } catch (err) {
+    store.close();
+    throw err;
+  }
+  const address = app.server.address();
+  const port = typeof address === 'object' && address ? address.port : config.port;
+  const host = config.host.includes(':') ? `[${config.host}]` : config.host;
+  const url = `http://${host === '0.0.0.0' || host === '[::]' ? 'localhost' : host}:${port}/`;
+  return {
+    app,
+    url,
+    config,
+    async close() {
+      await app.close();
+      store.close();
+    },
+  };
+}
+
+/** `shaftnet serve [flags]`: starts the server and stops it cleanly on SIGINT/SIGTERM. */
+export async function serveFromArgs(argv: string[]): Promise<void> {
+  if (argv.includes('--help') || argv.includes('-h')) {
+    process.stdout.write(usage() + '\n');
+    return;
+  }
+  let config: ServerConfig;
+  try {
+    config = parseConfig(argv, process.env);
+  } catch (err) {
+    if (err instanceof ConfigError) {
+      process.stderr.write(`shaftnet serve: ${err.message}\n`);
+      process.exitCode = 2;
+      return;
+    }
+    throw err;
+  }
+  if (!isLoopback(config.host) && config.token === undefined) {
+    process.stderr.write(
+      `WARNING: listening on ${config.host} without a team token: anyone who can reach this machine can read and change the model library. Set --token or SHAFTNET_TOKEN.\n`,
+    );
+  }
+  let server: RunningServer;
+  try {
+    fs.mkdirSync(config.dataDir, { recursive: true });
+    server = await startServer(config);
+  } catch (err) {
+    const e = err as NodeJS.ErrnoException;
+    const reason =
+      e.code === 'EADDRINUSE'
+        ? `port ${config.port} on ${config.host} is in use (choose another with --port)`
+        : e.code === 'EACCES'
+          ? `no permission for ${e.syscall === 'listen' ? `port ${config.port}` : config.dataDir}`
+          : e.message;
+    process.stderr.write(`shaftnet serve: cannot start: ${reason}\n`);
+    process.exitCode = 1;
+    return;
+  }
+  process.stdout.write(
+    `Shaftnet is listening on ${server.url}  (library: ${path.join(config.dataDir, 'shaftnet.sqlite')}${config.token ? ', team token required' : ''})\n`,
+  );
+  let stopping = false;
+  const stop = (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    process.stdout.write(`Shaftnet: ${signal}, stopping\n`);
+    server.close().then(
+      () => process.exit(0),
+      () => process.exit(1),
+    );
+  };
+  process.once('SIGINT', () => stop('SIGINT'));
+  process.once('SIGTERM', () => stop('SIGTERM'));
+}
+
+/** True when this file is the program node was started with (not imported by the CLI or a test). */
+function invokedDirectly(): boolean {
+  if (process.argv[1] === undefined) return false;
+  try {
+    return fs.realpathSync(process.argv[1]) === fs.realpathSync(fileURLToPath(import.meta.url));
+  } catch {
+    return false;
+  }
+}
+
+if (invokedDirectly()) {
+  serveFromArgs(process.argv.slice(2)).catch((err: unknown) => {
+    process.stderr.write(`shaftnet serve: ${err instanceof Error ? err.message : String(err)}\n`);
+    process.exit(1);
+  });
+}

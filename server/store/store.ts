@@ -1,0 +1,101 @@
+/**
+ * The model library: one interface, implemented once in `sqlite-store.ts`.
+ *
+ * Every save is a new immutable revision (1, 2, 3, ...) with its author, message
+ * and time. Nothing is ever deleted: archiving only hides a model from the
+ * default listing. The interface is synchronous because its one implementation
+ * (better-sqlite3) is, and a save is acknowledged only after it is durable.
+ */
+
+/** One line of the library listing. */
+export interface ModelSummary {
+  readonly id: string;
+  /** The model's `name` in its latest revision. */
+  readonly name: string;
+  /** Author of the latest revision. */
+  readonly author: string;
+  /** ISO 8601 time of the latest revision. */
+  readonly updated: string;
+  readonly revision: number;
+  readonly archived: boolean;
+}
+
+/** One revision without its model. */
+export interface RevisionInfo {
+  readonly revision: number;
+  readonly author: string;
+  readonly message: string;
+  /** ISO 8601 time the revision was saved. */
+  readonly created: string;
+}
+
+/** One revision with its model, as stored (units as the user typed them). */
+export interface StoredRevision extends RevisionInfo {
+  readonly id: string;
+  readonly model: unknown;
+  readonly archived: boolean;
+}
+
+/** What a save answers. */
+export interface SaveResult {
+  readonly id: string;
+  readonly revision: number;
+}
+
+/** What a save needs. */
+export interface SaveInput {
+  readonly model: unknown;
+  /** The model's display name, kept beside it for listing and search. */
+  readonly name: string;
+  readonly author: string;
+  readonly message: string;
+}
+
+/** Filter of the listing. */
+export interface ListFilter {
+  /** Case-insensitive substring of the name; empty or absent lists all. */
+  readonly q?: string;
+  /** true: archived models only; false: active models only. */
+  readonly archived: boolean;
+}
+
+/** Thrown by `save` when the base revision is not the latest. */
+export class StaleRevisionError extends Error {
+  constructor(
+    readonly id: string,
+    readonly baseRevision: number,
+    readonly currentRevision: number,
+  ) {
+    super(`model ${id} is at revision ${currentRevision}, not ${baseRevision}`);
+    this.name = 'StaleRevisionError';
+  }
+}
+
+/** Thrown by `save` for an id that does not exist. */
+export class ModelNotFoundError extends Error {
+  constructor(readonly id: string) {
+    super(`no model ${id}`);
+    this.name = 'ModelNotFoundError';
+  }
+}
+
+export interface ModelStore {
+  /** Creates a model at revision 1. */
+  create(input: SaveInput): SaveResult;
+  /** Saves revision baseRevision + 1; throws StaleRevisionError if baseRevision is not the latest. */
+  save(id: string, baseRevision: number, input: SaveInput): SaveResult;
+  /** Lists models, most recently updated first. */
+  list(filter: ListFilter): ModelSummary[];
+  /** The latest revision, or the given one; undefined if either does not exist. */
+  get(id: string, revision?: number): StoredRevision | undefined;
+  /** Every revision of a model, newest first; undefined for an unknown id. */
+  revisions(id: string): RevisionInfo[] | undefined;
+  /** Archives or restores; undefined for an unknown id. */
+  setArchived(id: string, archived: boolean): { id: string; archived: boolean } | undefined;
+  /** How many models (archived or not) the library holds. */
+  count(): number;
+  /** A flag that survives restarts (e.g. "demos seeded"). */
+  getMeta(key: string): string | undefined;
+  setMeta(key: string, value: string): void;
+  close(): void;
+}
