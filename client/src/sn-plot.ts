@@ -95,7 +95,8 @@ export class SnPlot extends LitElement {
       mi >= 0 && mi < xs.length
         ? svg`<g class="gov" data-z=${this.z[mi]} data-value=${this.values[mi]}>
             <circle cx=${X(xs[mi])} cy=${Y(ys[mi])} r="4.5" fill="#fff" stroke="#b3261e" stroke-width="2"/>
-            <text class="mark" x=${Math.min(X(xs[mi]) + 7, PW - 150)} y=${Math.max(Y(ys[mi]) - 6, MT + 10)} fill="#b3261e">
+            <text class="mark" x=${X(xs[mi]) > PW / 2 ? X(xs[mi]) - 7 : X(xs[mi]) + 7} text-anchor=${X(xs[mi]) > PW / 2 ? 'end' : 'start'}
+              y=${Y(ys[mi]) < MT + 14 ? Y(ys[mi]) + 15 : Y(ys[mi]) - 7} fill="#b3261e">
               ${formatQuantity(this.values[mi], this.kind, this.system, 4)} at z = ${formatQuantity(this.z[mi], 'length', this.system, 4)}
             </text>
           </g>`

@@ -96,6 +96,7 @@ export class SnSchematic extends LitElement {
     };
     const isSel = (p: string) => this.selected !== '' && (this.selected === p || this.selected.startsWith(p + '/'));
     const parts: SVGTemplateResult[] = [];
+    const gears: SVGTemplateResult[] = []; // drawn over the shafts
 
     // Links between shafts first, so the shafts draw over them.
     (m.gearMeshes ?? []).forEach((gm, i) => {
@@ -105,20 +106,19 @@ export class SnSchematic extends LitElement {
       const ra = gearRadius(gm.a, gm.module);
       const rb = gearRadius(gm.b, gm.module);
       if (!a || !b) return;
-      const ha = Math.max(6, (ra ?? maxR / 2) * sg);
-      const hb = Math.max(6, (rb ?? maxR / 2) * sg);
+      const ha = Math.max(halfD(a.g, a.z) + 5, (ra ?? maxR / 2) * sg);
+      const hb = Math.max(halfD(b.g, b.z) + 5, (rb ?? maxR / 2) * sg);
       const down = a.g.y <= b.g.y;
       const ya = a.g.y + (down ? ha : -ha);
       const yb = b.g.y + (down ? -hb : hb);
       parts.push(svg`<g class="item" data-pointer=${p} @click=${() => this.pick(p)}>
         <path d="M${a.x} ${ya} C ${a.x} ${(ya + yb) / 2}, ${b.x} ${(ya + yb) / 2}, ${b.x} ${yb}" fill="none" stroke="#7a4fa0" stroke-width="2" stroke-dasharray="6 3" class=${isSel(p) ? 'sel' : ''}/>
-        ${[[a, ha], [b, hb]].map(([e, h]) => {
-          const ee = e as { x: number; g: ShaftGeom };
-          const hh = h as number;
-          return svg`<rect x=${ee.x - 4} y=${ee.g.y - hh} width="8" height=${2 * hh} fill="url(#teeth)" stroke="#7a4fa0" stroke-width="1.2" class=${isSel(p) ? 'sel' : ''}/>`;
-        })}
         <text class="label ${isSel(p) ? 'seltext' : ''}" x=${(a.x + b.x) / 2 + 6} y=${(ya + yb) / 2} fill="#7a4fa0">${gm.id} (${gm.sense})</text>
       </g>`);
+      for (const [e, h] of [[a, ha], [b, hb]] as const) {
+        gears.push(svg`<rect data-pointer=${p} @click=${() => this.pick(p)} x=${e.x - 4} y=${e.g.y - h} width="8" height=${2 * h}
+          fill="url(#teeth)" stroke="#7a4fa0" stroke-width="1.2" class="item ${isSel(p) ? 'sel' : ''}"/>`);
+      }
     });
     (m.couplings ?? []).forEach((c, i) => {
       const p = `/couplings/${i}`;
@@ -161,6 +161,8 @@ export class SnSchematic extends LitElement {
       }
     }
 
+    parts.push(...gears);
+
     (m.distributedTorques ?? []).forEach((q, i) => {
       const p = `/distributedTorques/${i}`;
       const a = at(q.shaft, q.from);
@@ -179,7 +181,7 @@ export class SnSchematic extends LitElement {
           const x = a.x + ((b.x - a.x) * k) / ticks;
           return svg`<line x1=${x} x2=${x} y1=${top} y2=${top - (h0 + ((h1 - h0) * k) / ticks)} stroke="#7a4fa0" stroke-width="0.6"/>`;
         })}
-        <text class="label ${isSel(p) ? 'seltext' : ''}" x=${(a.x + b.x) / 2} y=${top - Math.max(h0, h1) - 4} text-anchor="middle">${q.id}</text>
+        <text class="label ${isSel(p) ? 'seltext' : ''}" x=${b.x - 2} y=${top - h1 - 4} text-anchor="end">${q.id}</text>
       </g>`);
     });
 
@@ -194,7 +196,7 @@ export class SnSchematic extends LitElement {
         value = P !== null && w ? P / w : null;
       }
       const dir = (value ?? 1) >= 0 ? 1 : -1;
-      const y = a.g.y - halfD(a.g, a.z) - 34;
+      const y = a.g.y - halfD(a.g, a.z) - 42;
       const x1 = a.x - dir * 16;
       const x2 = a.x + dir * 16;
       parts.push(svg`<g class="item" data-pointer=${p} @click=${() => this.pick(p)}>
@@ -250,7 +252,7 @@ export class SnSchematic extends LitElement {
         <line x1="0" x2=${bar.length * sx} y1="0" y2="0" stroke="#1f2326" stroke-width="2" />
         <line x1="0" x2="0" y1="-4" y2="4" stroke="#1f2326" /><line x1=${bar.length * sx} x2=${bar.length * sx} y1="-4" y2="4" stroke="#1f2326" />
         <text class="note" x=${bar.length * sx + 8} y="4">${formatQuantity(bar.length, 'length', this.system, 3)}</text>
-        <text class="note" x=${bar.length * sx + 90} y="4">${scaleNote} Gears: pitch radii to their own scale.</text>
+        <text class="note" x=${bar.length * sx + 90} y="4">${scaleNote} Gears: pitch radii not to scale.</text>
       </g>
     </svg>`;
   }
