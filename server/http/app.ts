@@ -86,8 +86,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   const app = Fastify({
     logger: opts.logger ?? false,
     bodyLimit: maxBodyBytes,
-    // Request logs carry method, URL, status and time, never bodies (models stay out of the logs).
-    disableRequestLogging: false,
+    // Fastify's request logs carry method, URL, status and time, never bodies: models stay out of the logs.
     return503OnClosing: true,
     forceCloseConnections: true,
   }).withTypeProvider<TypeBoxTypeProvider>();
@@ -157,7 +156,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
       const csp = (app as unknown as { swaggerCSP: { script: string[]; style: string[] } }).swaggerCSP;
       return [
         "default-src 'self'",
-        `script-src 'self' ${csp.script.join(' ')}`,
+        ["script-src 'self'", ...csp.script].join(' '),
         `style-src 'self' 'unsafe-inline'`,
         "img-src 'self' data:",
         "connect-src 'self'",

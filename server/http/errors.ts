@@ -84,11 +84,10 @@ export function toErrorReply(err: unknown): ErrorReply & { internal: boolean } {
   if (Array.isArray(fe.validation)) {
     const context = fe.validationContext ?? 'body';
     const issues = validationIssues(fe.validation, context === 'body' ? '' : '', context);
-    const part = PARTS[context] ?? context;
     const first = issues[0];
-    const code = issues.some((i) => i.code === 'SN_FORMAT') ? 'SN_FORMAT' : 'SN_SCHEMA';
-    const where = context === 'body' ? first?.pointer || '(body)' : `${part} ${first?.pointer.slice(1) ?? ''}`;
-    return { ...errorReply(code, first ? `${where}: ${first.message}` : `invalid ${part}`, issues), internal: false };
+    const code = first?.code === 'SN_FORMAT' ? 'SN_FORMAT' : 'SN_SCHEMA';
+    const message = !first ? `invalid ${PARTS[context] ?? context}` : context === 'body' ? `${first.pointer || '(body)'}: ${first.message}` : first.message;
+    return { ...errorReply(code, message, issues), internal: false };
   }
   switch (fe.code) {
     case 'FST_ERR_CTP_BODY_TOO_LARGE':

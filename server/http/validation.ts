@@ -89,9 +89,15 @@ export function validationIssues(errors: readonly ValidationErrorLike[], prefix 
     } else if (types.length > 0) {
       message = `must be ${[...new Set(types)].map((t) => (t === 'integer' ? 'a whole number' : t === 'array' || t === 'object' ? `an ${t}` : `a ${t}`)).join(' or ')}`;
     } else message = 'is not valid here';
-    if (context !== 'body') message = `${context === 'querystring' ? 'query' : 'path'} parameter ${message}`;
+    if (context !== 'body') {
+      const name = ptr.slice(prefix.length + 1) || '(all)';
+      message = `${context === 'querystring' ? 'query' : context === 'params' ? 'path' : context} parameter "${name}" ${message}`;
+    }
     issues.push({ code, pointer: ptr, message });
   }
+  // A model of another format version: the rest of its errors would only be noise.
+  const format = issues.find((i) => i.code === 'SN_FORMAT');
+  if (format) return [format];
   if (issues.length === 0) issues.push({ code: 'SN_SCHEMA', pointer: prefix, message: 'does not match the expected format' });
   return issues.slice(0, 200);
 }

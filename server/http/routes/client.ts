@@ -31,7 +31,7 @@ const clientRoutes: FastifyPluginAsync<ClientOptions> = async (app, opts) => {
       setHeaders(res, file) {
         // vite puts content-hashed files under assets/: they never change. Everything else is revalidated.
         const hashed = file.includes(`${path.sep}assets${path.sep}`);
-        (res as unknown as { setHeader(name: string, value: string): void }).setHeader('cache-control', hashed ? 'public, max-age=31536000, immutable' : 'no-cache');
+        res.header('cache-control', hashed ? 'public, max-age=31536000, immutable' : 'no-cache');
       },
     });
   } else {
