@@ -37,20 +37,20 @@ describe('hollow shaft 114/102 mm under 5000 N·m', () => {
   // Inputs: MecMovies M15.1 (Philpot), https://drbuc2jl8158i.cloudfront.net/shared/Engeneering/mecmovies/ch15/m15_01_s041.html
   // (G is not part of the example; stress does not depend on it.)
   const sol = solve(cantilever({ shape: 'hollow', d: '114 mm', di: '102 mm' }, '79.3 GPa', '1 m', '5 kN*m'));
-  const seg = segment(sol, 's', 0);
+  const seg = () => segment(sol, 's', 0);
 
   it('has the published J = 5,954,575 mm⁴ and τ = 47.86 MPa', () => {
     // MecMovies M15.1: J = π/32 (114⁴ − 102⁴) = 5,954,575 mm⁴
-    expectPublished(seg.torsionalRigidity / 79.3e9, 5954575, 0.5, 1e-12);
+    expectPublished(seg().torsionalRigidity / 79.3e9, 5954575, 0.5, 1e-12);
     // MecMovies M15.1: τ = T c / J = 47.86 MPa
-    expectPublished(layer(seg, 'm').maxShear, 47.86, 0.005, MPA);
+    expectPublished(layer(seg(), 'm').maxShear, 47.86, 0.005, MPA);
   });
 
   it('has τ = T·r_o/J and φ = T·L/(G·J) exactly', () => {
     const J = jHollow(0.114, 0.102);
     // closed form: J = π (d⁴ − di⁴)/32, τ_max = T r_o / J (elastic torsion formula)
-    expectClose(layer(seg, 'm').outerRadius, 0.057);
-    expectClose(layer(seg, 'm').maxShear, (5000 * 0.057) / J);
+    expectClose(layer(seg(), 'm').outerRadius, 0.057);
+    expectClose(layer(seg(), 'm').maxShear, (5000 * 0.057) / J);
     expectClose(station(sol, 's', 1).rotation, 5000 / (79.3e9 * J));
     expectEquilibrium(sol, 5000);
   });
@@ -72,11 +72,11 @@ describe('solid steel shaft 4 in × 3 ft under 15 kip·ft (US units)', () => {
   // https://mathalino.com/reviewer/mechanics-and-strength-of-materials/solution-to-problem-304-torsion);
   // numbers as solved at http://www.mecha-engineeringbd.com/p/blog-page.html: τmax = 14.32 ksi, θ = 1.23°.
   const sol = solve(cantilever({ shape: 'solid', d: '4 in' }, '12000 ksi', '3 ft', '15 kip*ft'));
-  const seg = segment(sol, 's', 0);
+  const seg = () => segment(sol, 's', 0);
 
   it('has the published τmax = 14.32 ksi and θ = 1.23°', () => {
     // mecha-engineeringbd.com solution of Problem 304: τmax = 14.32 ksi
-    expectPublished(layer(seg, 'm').maxShear, 14.32, 0.005, 1000 * PSI);
+    expectPublished(layer(seg(), 'm').maxShear, 14.32, 0.005, 1000 * PSI);
     // mecha-engineeringbd.com solution of Problem 304: θ = 1.23°
     expectPublished(station(sol, 's', 3 * FT).rotation, 1.23, 0.005, DEG);
   });
@@ -84,8 +84,8 @@ describe('solid steel shaft 4 in × 3 ft under 15 kip·ft (US units)', () => {
   it('has τ = 16T/(πd³) and θ = TL/(GJ) exactly', () => {
     const T = 15000 * LBF_FT;
     const d = 4 * IN;
-    expectClose(layer(seg, 'm').maxShear, (16 * T) / (Math.PI * d ** 3));
-    expectClose(seg.twist, (T * 3 * FT) / (12e6 * PSI * jSolid(d)));
+    expectClose(layer(seg(), 'm').maxShear, (16 * T) / (Math.PI * d ** 3));
+    expectClose(seg().twist, (T * 3 * FT) / (12e6 * PSI * jSolid(d)));
     expectEquilibrium(sol, T);
   });
 });
