@@ -1,0 +1,230 @@
+/**
+ * The editor's data flow without a DOM (client/src/store.ts, client/src/export.ts):
+ * edits by JSON pointer never mutate the model, coupled fields stay coherent,
+ * rows come and go, undo/redo walks the snapshots, API issues land on the
+ * pointers the inputs carry. The demo model is the project's own invented one.
+ */
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import type { Model } from '../../shared-types/model.js';
+import type { Solution } from '../../shared-types/solution.js';
+import {
+  History,
+  applyEdit,
+  describePointer,
+  getAt,
+  insertRow,
+  issuesByPointer,
+  newRow,
+  nextId,
+  parsePointer,
+  removeRow,
+  rowFor,
+  sameJson,
+  setIn,
+  toPointer,
+} from '../../client/src/store.js';
+import { fileName, stationsCsv } from '../../client/src/export.js';
+import { parseInput } from '../../client/src/units.js';
+
+const demo = JSON.parse(readFileSync(new URL('../../server/demos/mixer-drive.json', import.meta.url), 'utf8')) as Model;
+
+function frozen<T>(x: T): T {
+  if (x && typeof x === 'object') {
+    Object.freeze(x);
+    for (const v of Object.values(x)) frozen(v);
+  }
+  return x;
+}
+
+describe('JSON pointers', () => {
+  it('split and join, with escapes (RFC 6901)', () => {
+    expect(parsePointer('/shafts/0/segments/1/length')).toEqual(['shafts', 0, 'segments', 1, 'length']);
+    expect(parsePointer('/a~1b/c~0d')).toEqual(['a/b', 'c~d']);
+    expect(toPointer(['a/b', 'c~d', 3])).toBe('/a~1b/c~0d/3');
+    expect(parsePointer('')).toEqual([]);
+  });
+
+  it('read values', () => {
+    expect(getAt(demo, '/shafts/0/segments/1/section')).toBe('clad');
+    expect(getAt(demo, '/gearMeshes/0/b/radius')).toBe('120 mm');
+    expect(getAt(demo, '/nothing/here')).toBeUndefined();
+  });
+
+  it('name places for people', () => {
+    expect(describePointer(demo, '/shafts/0/segments/1/length')).toBe('shaft input › segment 2 › length');
+    expect(describePointer(demo, '/gearMeshes/0/b/shaft')).toBe('gear mesh G1 › b › shaft');
+  });
+});
+
+describe('edits', () => {
+  const model = frozen(structuredClone(demo));
+
+  it('replace only the path they touch and never mutate', () => {
+    const next = applyEdit(model, '/sections/0/d', '45 mm');
+    expect(next.sections[0].d).toBe('45 mm');
+    expect(model.sections[0].d).toBe('40 mm');
+    expect(next.shafts).toBe(model.shafts); // untouched branches are shared
+    expect(next.sections[1]).toBe(model.sections[1]);
+  });
+
+  it('remove an optional field with undefined', () => {
+    const next = applyEdit(model, '/gearMeshes/0/stiffness', undefined);
+    expect('stiffness' in next.gearMeshes![0]).toBe(false);
+  });
+
+  it('store what a user typed through the unit reader', () => {
+    const next = applyEdit(model, '/shafts/2/segments/0/length', parseInput('8', 'length', 'US').value);
+    expect(next.shafts[2].segments[0].length).toBe('8 in');
+  });
+
+  it('rename references with a shaft, section or material id', () => {
+    const s = applyEdit(model, '/shafts/0/id', 'drive');
+    expect(s.supports!.filter((x) => x.shaft === 'drive').map((x) => x.id)).toEqual(['A', 'B', 'K']);
+    expect(s.gearMeshes![0].a.shaft).toBe('drive');
+    expect(s.torques!.every((t) => t.shaft === 'drive')).toBe(true);
+    const m = applyEdit(model, '/materials/1/id', 'cuSn');
+    expect(m.sections[2].layers![1].material).toBe('cuSn');
+    const c = applyEdit(model, '/sections/0/id', 'd42');
+    expect(c.shafts[0].segments[0].section).toBe('d42');
+    expect(c.shafts[2].segments[0].section).toBe('d42');
+  });
+
+  it('switch the alternative forms of the contract', () => {
+    const p = applyEdit(model, '/torques/0/@form', 'power');
+    expect(p.torques![0]).toEqual({ id: 'motor', shaft: 'input', at: '100 mm', power: '1 kW', speed: '1000 rpm' });
+    const t = applyEdit(model, '/torques/1/@form', 'torque');
+    expect(Object.keys(t.torques![1]).sort()).toEqual(['at', 'id', 'shaft', 'torque']);
+    const e = applyEdit(model, '/materials/0/@elastic', 'E');
+    expect(e.materials[0].G).toBeUndefined();
+    expect(e.materials[0].nu).toBe(0.3);
+    const g = applyEdit(model, '/gearMeshes/0/@sizing', 'teeth');
+    expect(g.gearMeshes![0].a).toEqual({ shaft: 'input', at: '600 mm', teeth: 20 });
+    expect(g.gearMeshes![0].module).toBe('2 mm');
+    const back = applyEdit(g, '/gearMeshes/0/@sizing', 'radius');
+    expect(back.gearMeshes![0].module).toBeUndefined();
+    expect(back.gearMeshes![0].b.radius).toBe('80 mm');
+  });
+
+  it('keep a section and a support coherent with their kind', () => {
+    const solid = applyEdit(model, '/sections/1/shape', 'solid');
+    expect(solid.sections[1]).toEqual({ id: 't50', shape: 'solid', d: '50 mm' });
+    const layered = applyEdit(model, '/sections/0/shape', 'layered');
+    expect(layered.sections[0].layers).toEqual([{ d: '40 mm', material: 'steel' }]);
+    expect(layered.sections[0].d).toBeUndefined();
+    const spring = applyEdit(model, '/supports/0/kind', 'spring');
+    expect(spring.supports![0].stiffness).toBe('10 kN*m/rad');
+    const fixed = applyEdit(model, '/supports/2/kind', 'fixed');
+    expect(fixed.supports![2].stiffness).toBeUndefined();
+  });
+
+  it('drop limits once both are cleared', () => {
+    const a = applyEdit(model, '/limits/twistRate', undefined);
+    expect(a.limits).toEqual({ totalTwist: '1 deg' });
+    expect(applyEdit(a, '/limits/totalTwist', undefined).limits).toBeUndefined();
+  });
+});
+
+describe('rows', () => {
+  const model = frozen(structuredClone(demo));
+
+  it('get fresh ids and existing references', () => {
+    expect(nextId('S', ['S1', 'S3'])).toBe('S2');
+    const s = newRow(model, 'supports');
+    expect(s).toEqual({ id: 'S1', shaft: 'input', at: 0, kind: 'fixed' });
+    expect((newRow(model, 'gearMeshes').b as { shaft: string }).shaft).toBe('output');
+  });
+
+  it('insert and remove at an index, including nested lists', () => {
+    const a = insertRow(model, '/supports', rowFor(model, '/supports'), 1);
+    expect(a.supports!.map((s) => s.id)).toEqual(['A', 'S1', 'B', 'K', 'T']);
+    const b = removeRow(a, '/supports', 0);
+    expect(b.supports!.map((s) => s.id)).toEqual(['S1', 'B', 'K', 'T']);
+    const seg = insertRow(model, '/shafts/1/segments', rowFor(model, '/shafts/1/segments'));
+    expect(seg.shafts[1].segments).toHaveLength(2);
+    expect(seg.shafts[1].segments[1]).toEqual({ length: '100 mm', section: 'd40', material: 'steel' });
+    const lay = insertRow(model, '/sections/2/layers', rowFor(model, '/sections/2/layers'));
+    expect(lay.sections[2].layers![2]).toEqual({ d: '50 mm', material: 'steel' });
+  });
+
+  it('create a list the model did not have', () => {
+    const bare = { ...model, discs: undefined };
+    const next = insertRow(bare as Model, '/discs', rowFor(bare as Model, '/discs'));
+    expect(next.discs).toHaveLength(1);
+  });
+});
+
+describe('undo and redo', () => {
+  it('walk back and forth over committed snapshots', () => {
+    const h = new History<Model>(demo);
+    const a = h.commit(applyEdit(demo, '/sections/0/d', '45 mm'));
+    const b = h.commit(applyEdit(a, '/sections/0/d', '50 mm'));
+    expect(h.undo()).toBe(a);
+    expect(h.undo()).toBe(demo);
+    expect(h.canUndo).toBe(false);
+    expect(h.undo()).toBe(demo);
+    expect(h.redo()).toBe(a);
+    expect(h.redo()).toBe(b);
+    expect(h.canRedo).toBe(false);
+  });
+
+  it('forget the redo list on a new edit, and cap the past', () => {
+    const h = new History<number>(0, 3);
+    [1, 2, 3, 4, 5].forEach((n) => h.commit(n));
+    h.undo();
+    h.commit(9);
+    expect(h.canRedo).toBe(false);
+    expect([h.undo(), h.undo(), h.undo(), h.undo()]).toEqual([4, 3, 2, 2]);
+  });
+
+  it('ignores a commit of the present and starts over on reset', () => {
+    const h = new History<Model>(demo);
+    h.commit(demo);
+    expect(h.canUndo).toBe(false);
+    h.commit(applyEdit(demo, '/name', 'x'));
+    h.reset(demo);
+    expect(h.canUndo).toBe(false);
+  });
+});
+
+describe('issues from the API', () => {
+  it('land on the pointers the inputs carry, several per field joined', () => {
+    const map = issuesByPointer([
+      { pointer: '/shafts/0/segments/1/length', message: 'must be positive' },
+      { pointer: '/gearMeshes/0/b/shaft', message: 'no shaft "x"' },
+      { pointer: '/shafts/0/segments/1/length', message: 'second' },
+    ]);
+    expect(map['/shafts/0/segments/1/length']).toBe('must be positive; second');
+    expect(map['/gearMeshes/0/b/shaft']).toBe('no shaft "x"');
+  });
+
+  it('structural equality skips edits that change nothing', () => {
+    expect(sameJson({ a: [1, { b: 2 }] }, { a: [1, { b: 2 }] })).toBe(true);
+    expect(sameJson({ a: 1 }, { a: 1, b: undefined })).toBe(false);
+    expect(sameJson(setIn(demo, ['name'], demo.name), demo)).toBe(true);
+  });
+});
+
+describe('exports', () => {
+  it('write the station table as CSV in the chosen units', () => {
+    const sol = {
+      shafts: [
+        { id: 'input', stations: [
+          { z: 0, rotation: 0, torqueLeft: null, torqueRight: -140.2 },
+          { z: 0.1, rotation: Math.PI / 180, torqueLeft: -140.2, torqueRight: 209.8 },
+        ] },
+      ],
+    } as unknown as Solution;
+    const si = stationsCsv(sol, 'SI').trim().split('\n');
+    expect(si[0]).toBe('shaft,z [mm],rotation [deg],torque left [N·m],torque right [N·m]');
+    expect(si[1]).toBe('input,0,0,,-140.2');
+    expect(si[2]).toBe('input,100,1,-140.2,209.8');
+    const us = stationsCsv(sol, 'US').trim().split('\n');
+    expect(us[2].split(',')[1]).toBe('3.9370079'); // 100 mm / 25.4 mm/in, 8 significant figures
+  });
+
+  it('derive a file name from the model name', () => {
+    expect(fileName('Demo (invented): mixer drive', 'json')).toBe('demo-invented-mixer-drive.json');
+    expect(fileName('***', 'csv')).toBe('model.csv');
+  });
+});
