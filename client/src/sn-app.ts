@@ -30,6 +30,7 @@ import './sn-save-dialog.js';
 import './sn-cautions.js';
 
 const SOLVE_DELAY = 300; // ms after the last edit before re-solving
+const PREFERRED_DEMO = 'mixer-drive'; // the demo a new user lands on, when the server has it
 
 /** Where the model on screen comes from. */
 interface Doc {
@@ -330,7 +331,7 @@ export class SnApp extends LitElement {
       case 'library':
         return html`<div class="overlay" @click=${this.onOverlayClick}>
           <sn-library .currentId=${this.doc.id ?? ''} .currentRevision=${this.doc.viewing ?? this.doc.revision} .refresh=${this.libraryRefresh}
-            @sn-open=${this.onOpen} @sn-close=${this.closePanel} @sn-api-error=${this.onLibraryError}></sn-library>
+            @sn-open=${this.onOpen} @sn-open-demo=${this.onOpenDemo} @sn-close=${this.closePanel} @sn-api-error=${this.onLibraryError}></sn-library>
         </div>`;
       case 'save':
         return html`<div class="overlay" @click=${this.onOverlayClick}>
@@ -378,12 +379,12 @@ export class SnApp extends LitElement {
     }
   }
 
-  private async loadDemo(): Promise<void> {
+  private async loadDemo(id?: string): Promise<void> {
     this.loading = 'Loading the demo…';
     try {
       const { demos } = await api.demos();
       if (demos.length === 0) throw new Error('the server has no demo');
-      const model = await api.demo(demos[0].id);
+      const model = await api.demo(id ?? (demos.find((d) => d.id === PREFERRED_DEMO) ?? demos[0]).id);
       this.setDocument(model, { id: null, revision: 0, viewing: null, saved: model, origin: 'demo' });
     } catch (e) {
       if (this.handleAuth(e)) return;
@@ -556,6 +557,10 @@ export class SnApp extends LitElement {
   };
 
   private onKeyDown = (e: KeyboardEvent): void => {
+    if (e.key === 'Escape' && (this.panel === 'library' || this.panel === 'save')) {
+      this.panel = 'none';
+      return;
+    }
     if (!(e.ctrlKey || e.metaKey) || e.altKey || this.panel !== 'none') return;
     const key = e.key.toLowerCase();
     const isUndo = key === 'z' && !e.shiftKey;
@@ -599,6 +604,13 @@ export class SnApp extends LitElement {
     if (!this.confirmDiscard()) return;
     this.panel = 'none';
     void this.openSaved(e.detail.id, e.detail.revision, true);
+  };
+
+  private onOpenDemo = (e: CustomEvent<{ id: string }>): void => {
+    if (!this.confirmDiscard()) return;
+    this.panel = 'none';
+    history.pushState(null, '', '/');
+    void this.loadDemo(e.detail.id);
   };
 
   private onLibraryError = (e: CustomEvent<{ error: unknown }>): void => {

@@ -1,5 +1,5 @@
 import { LitElement, css, html, nothing } from 'lit';
-import { type ModelSummary, type RevisionInfo, ApiError, api } from './api.js';
+import { type DemoInfo, type ModelSummary, type RevisionInfo, ApiError, api } from './api.js';
 
 /** Detail of `sn-open`: a saved model, at its latest revision unless `revision` is given. */
 export interface OpenDetail { id: string; revision?: number }
@@ -15,6 +15,7 @@ function when(iso: string): string {
  * Lists load from the API each time the panel opens or `refresh` changes.
  *
  * @fires sn-open - {id, revision?}: open a saved model
+ * @fires sn-open-demo - {id}: open one of the server's demo models
  * @fires sn-close - the panel should close
  * @fires sn-api-error - {error}: a call failed (the app decides, e.g. sign in)
  */
@@ -43,6 +44,7 @@ export class SnLibrary extends LitElement {
     refresh: { type: Number },
     models: { state: true },
     revisions: { state: true },
+    demos: { state: true },
     query: { state: true },
     archived: { state: true },
     error: { state: true },
@@ -54,6 +56,7 @@ export class SnLibrary extends LitElement {
   declare refresh: number;
   declare private models: ModelSummary[] | null;
   declare private revisions: RevisionInfo[] | null;
+  declare private demos: DemoInfo[];
   declare private query: string;
   declare private archived: boolean;
   declare private error: string;
@@ -66,6 +69,7 @@ export class SnLibrary extends LitElement {
     this.refresh = 0;
     this.models = null;
     this.revisions = null;
+    this.demos = [];
     this.query = '';
     this.archived = false;
     this.error = '';
@@ -103,6 +107,15 @@ export class SnLibrary extends LitElement {
                 </tbody>
               </table>`}
       </div>
+      ${this.demos.length
+        ? html`<h3>Demo models</h3>
+            <table class="demos"><tbody>
+              ${this.demos.map(
+                (d) => html`<tr data-demo=${d.id}><td>${d.name}</td>
+                  <td><button @click=${() => this.fire('sn-open-demo', { id: d.id })}>Open demo</button></td></tr>`,
+              )}
+            </tbody></table>`
+        : nothing}
       ${this.currentId
         ? html`<h3>Revisions of the open model</h3>
             ${this.revisions === null
@@ -134,6 +147,7 @@ export class SnLibrary extends LitElement {
         this.currentId ? api.revisions(this.currentId).catch(() => null) : Promise.resolve(null),
       ]);
       this.models = list.models;
+      if (this.demos.length === 0) this.demos = (await api.demos().catch(() => ({ demos: [] }))).demos;
       this.revisions = revs ? revs.revisions : null;
     } catch (e) {
       this.models = [];
