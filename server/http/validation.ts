@@ -69,7 +69,7 @@ export function validationIssues(errors: readonly ValidationErrorLike[], prefix 
       case 'const': {
         const entry = add(at);
         entry.allowed.push(JSON.stringify(params.allowedValue));
-        if (context === 'body' && at === prefix + '/format' && params.allowedValue === MODEL_FORMAT) entry.code = 'SN_FORMAT';
+        if (context === 'body' && at.endsWith('/format') && params.allowedValue === MODEL_FORMAT) entry.code = 'SN_FORMAT';
         break;
       }
       case 'type':
