@@ -8,6 +8,7 @@ import { ModelError } from '../../shared-types/errors.js';
 import { solveModel } from '../engine/index.js';
 import { normaliseModel } from '../engine/normalise.js';
 import { HttpError } from './errors.js';
+import { jsonToBytes } from './json-bytes.js';
 import { checkModelShape, checkSize, parseJsonText } from './solve-core.js';
 import type { WorkerJob, WorkerReply } from './solver-pool.js';
 
@@ -26,11 +27,12 @@ function run(job: WorkerJob): WorkerReply {
       normaliseModel(model);
       return { id: job.id, ok: true, json: null };
     }
-    const bytes = Buffer.from(JSON.stringify(solveModel(model)), 'utf8');
-    // A Buffer may be a view into a shared pool: copy into an ArrayBuffer of its own to transfer.
-    const own = new Uint8Array(bytes.byteLength);
-    own.set(bytes);
-    return { id: job.id, ok: true, json: own };
+    const bytes = jsonToBytes(solveModel(model));
+    // Only a buffer that owns its whole ArrayBuffer can be transferred; a small one may be a view into a pool.
+    if (bytes.byteOffset === 0 && bytes.buffer.byteLength === bytes.byteLength) {
+      return { id: job.id, ok: true, json: new Uint8Array(bytes.buffer, 0, bytes.byteLength) };
+    }
+    return { id: job.id, ok: true, json: new Uint8Array(bytes) };
   } catch (err) {
     if (err instanceof HttpError || err instanceof ModelError) {
       return { id: job.id, ok: false, error: { code: err.code, message: err.message, issues: err.issues } };
