@@ -156,6 +156,26 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     expect(errors).toEqual([]);
   });
 
+  it('links selection between the schematic and the editor, and exports JSON and CSV', async () => {
+    const { page, errors } = await open('/');
+    await waitFresh(page);
+    await page.locator('sn-schematic svg g[data-pointer="/supports/2"]').click();
+    await expect.poll(() => page.locator('sn-editor tr[data-pointer="/supports/2"]').getAttribute('class')).toContain('selected');
+    await page.locator('sn-editor [data-pointer="/torques/0/at"]').click();
+    await expect.poll(() => page.locator('sn-schematic g[data-pointer="/torques/0"] text').getAttribute('class')).toContain('seltext');
+    await shot(page, '02-selection');
+    const [json] = await Promise.all([page.waitForEvent('download'), page.locator('header button[data-action="export"]').click()]);
+    const exported = JSON.parse(fs.readFileSync((await json.path()) as string, 'utf8')) as { format: string; shafts: unknown[] };
+    expect(exported.format).toBe('shaftnet/1');
+    const [csv] = await Promise.all([page.waitForEvent('download'), page.locator('header button[data-action="csv"]').click()]);
+    const lines = fs.readFileSync((await csv.path()) as string, 'utf8').trim().split('\n');
+    expect(lines[0]).toBe('shaft,z [mm],rotation [deg],torque left [N·m],torque right [N·m]');
+    const model = (await api<unknown>('GET', '/api/demos/mixer-drive')).body;
+    const answer = (await api<Solution>('POST', '/api/solve', model)).body;
+    expect(lines.length - 1).toBe(answer.shafts.reduce((n, s) => n + s.stations.length, 0));
+    expect(errors).toEqual([]);
+  });
+
   it('re-solves after a diameter changes, saying so while the results lag', async () => {
     const { page, errors } = await open('/');
     await waitFresh(page);
