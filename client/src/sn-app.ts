@@ -243,6 +243,12 @@ export class SnApp extends LitElement {
     `;
   }
 
+  override updated(): void {
+    const name = this.model?.name ?? '';
+    const title = name ? `${name}${this.isDirty() ? ' •' : ''} — Shaftnet` : 'Shaftnet';
+    if (document.title !== title) document.title = title;
+  }
+
   private renderBar() {
     const d = this.doc;
     const dirty = this.isDirty();

@@ -205,12 +205,14 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     await expect.poll(() => input.getAttribute('class')).toContain('invalid');
     expect(await page.locator('.problems li[data-pointer="/shafts/0/segments/0/length"]').count()).toBe(1);
     await shot(page, '03-field-error');
-    await input.fill('2 in'); // a value with its own unit is accepted anywhere
+    // A value with its own unit is accepted anywhere: 10 in = 254 mm (1 in = 25.4 mm exactly),
+    // which keeps support B (at 650 mm) on the 654 mm shaft.
+    await input.fill('10 in');
     await input.press('Tab');
     await waitFresh(page);
-    expect(await input.inputValue()).toBe('50.8');
+    expect(await input.inputValue()).toBe('254');
     await page.locator('header select[aria-label="Units"]').selectOption('US');
-    expect(await input.inputValue()).toBe('2');
+    expect(await input.inputValue()).toBe('10');
     await expect.poll(() => page.locator('sn-results table.reactions thead').innerText()).toContain('lbf·in');
     await shot(page, '03-us-units');
     expect(errors).toEqual([]);
