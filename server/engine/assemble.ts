@@ -1,0 +1,240 @@
+/**
+ * Assembly of the reduced stiffness system.
+ *
+ * Every elastic part is a two-point spring in rotation space with energy
+ * ½·k·(p·φ_i + q·φ_j − c)²: a shaft element (p = −1, q = 1, k = GJ/h), a
+ * spring support (j = −1), a compliant coupling (p = 1, q = −1, c = misfit)
+ * and a compliant mesh (p = r_a, q = −s·r_b, c = offset). Substituting the
+ * exact constraints φ = α·x + β turns each into a contribution to K·x = f.
+ */
+import type { ResolvedModel } from './normalise.js';
+import type { StationLayout } from './stations.js';
+import { reduceConstraints, type Reduction, type RigidEdge } from './constraints.js';
+import type { SymmetricEntries } from './sparse-solver.js';
+
+/** All elastic parts as springs; the first `elemCount` are the shaft elements, in element order. */
+export interface SpringSet {
+  readonly count: number;
+  readonly elemCount: number;
+  readonly k: Float64Array;
+  readonly i: Int32Array;
+  readonly j: Int32Array;
+  readonly p: Float64Array;
+  readonly q: Float64Array;
+  readonly c: Float64Array;
+  /** For springs after the elements: which part ('support' | 'mesh' | 'coupling') and its index in the model. */
+  readonly kind: ReadonlyArray<'support' | 'mesh' | 'coupling'>;
+  readonly ref: Int32Array;
+}
+
+export interface Assembly {
+  readonly springs: SpringSet;
+  readonly edges: readonly RigidEdge[];
+  readonly reduction: Reduction;
+  /** Applied torque at each dof: point torques plus consistent distributed loads, N·m. */
+  readonly load: Float64Array;
+  readonly system: SymmetricEntries;
+  readonly rhs: Float64Array;
+  /** Per element, the consistent nodal shares of its distributed torque, N·m. */
+  readonly elemF1: Float64Array;
+  readonly elemF2: Float64Array;
+}
+
+/** Builds springs, constraints and the reduced system K·x = f. */
+export function assemble(model: ResolvedModel, layout: StationLayout): Assembly {
+  const { z, elemLeft, elemSegment, elemT1, elemT2, shaftOf } = layout;
+  const elemCount = elemLeft.length;
+  const extra: Array<{ kind: 'support' | 'mesh' | 'coupling'; ref: number; k: number; i: number; j: number; p: number; q: number; c: number }> = [];
+  const edges: RigidEdge[] = [];
+
+  model.supports.forEach((s, n) => {
+    const i = layout.stationAt(s.shaft, s.z);
+    if (s.kind === 'fixed') edges.push({ kind: 'support', ref: n, id: s.id, i, j: -1, p: 1, q: 0, c: s.rotation });
+    else extra.push({ kind: 'support', ref: n, k: s.stiffness, i, j: -1, p: 1, q: 0, c: 0 });
+  });
+  model.meshes.forEach((g, n) => {
+    const i = layout.stationAt(g.a.shaft, g.a.z);
+    const j = layout.stationAt(g.b.shaft, g.b.z);
+    const p = g.a.radius;
+    const q = -g.sense * g.b.radius;
+    if (g.stiffness === null) edges.push({ kind: 'mesh', ref: n, id: g.id, i, j, p, q, c: g.offset });
+    else extra.push({ kind: 'mesh', ref: n, k: g.stiffness, i, j, p, q, c: g.offset });
+  });
+  model.couplings.forEach((cpl, n) => {
+    const i = layout.stationAt(cpl.a.shaft, cpl.a.z);
+    const j = layout.stationAt(cpl.b.shaft, cpl.b.z);
+    if (cpl.stiffness === null) edges.push({ kind: 'coupling', ref: n, id: cpl.id, i, j, p: 1, q: -1, c: cpl.misfit });
+    else extra.push({ kind: 'coupling', ref: n, k: cpl.stiffness, i, j, p: 1, q: -1, c: cpl.misfit });
+  });
+
+  const count = elemCount + extra.length;
+  const springs = {
+    count,
+    elemCount,
+    k: new Float64Array(count),
+    i: new Int32Array(count),
+    j: new Int32Array(count),
+    p: new Float64Array(count),
+    q: new Float64Array(count),
+    c: new Float64Array(count),
+    kind: extra.map((e) => e.kind),
+    ref: new Int32Array(extra.map((e) => e.ref)),
+  };
+  const load = new Float64Array(layout.dofCount);
+  const elemF1 = new Float64Array(elemCount);
+  const elemF2 = new Float64Array(elemCount);
+  for (let e = 0; e < elemCount; e++) {
+    const left = elemLeft[e];
+    const h = z[left + 1] - z[left];
+    const seg = model.shafts[shaftOf[left]].segments[elemSegment[e]];
+    springs.k[e] = seg.rigidity / h;
+    springs.i[e] = left;
+    springs.j[e] = left + 1;
+    springs.p[e] = -1;
+    springs.q[e] = 1;
+    const t1 = elemT1[e];
+    const t2 = elemT2[e];
+    if (t1 !== 0 || t2 !== 0) {
+      // ∫ N·t dz with linear N and linear t: exact nodal loads for a linear element.
+      elemF1[e] = (h * (2 * t1 + t2)) / 6;
+      elemF2[e] = (h * (t1 + 2 * t2)) / 6;
+      load[left] += elemF1[e];
+      load[left + 1] += elemF2[e];
+    }
+  }
+  extra.forEach((s, n) => {
+    const m = elemCount + n;
+    springs.k[m] = s.k;
+    springs.i[m] = s.i;
+    springs.j[m] = s.j;
+    springs.p[m] = s.p;
+    springs.q[m] = s.q;
+    springs.c[m] = s.c;
+  });
+  for (const t of model.torques) load[layout.stationAt(t.shaft, t.z)] += t.torque;
+
+  const shaftName = (dof: number) => model.shafts[shaftOf[dof]].id;
+  const reduction = reduceConstraints(layout.dofCount, edges, shaftName);
+  const { system, rhs } = reducedSystem(springs, load, reduction);
+  return { springs, edges, reduction, load, system, rhs, elemF1, elemF2 };
+}
+
+/** K·x = f in the unknowns of the reduction. */
+function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction): { system: SymmetricEntries; rhs: Float64Array } {
+  const n = red.varCount;
+  const { varOf, alpha, beta } = red;
+  const diag = new Float64Array(n);
+  const rhs = new Float64Array(n);
+  const rows = new Int32Array(s.count);
+  const cols = new Int32Array(s.count);
+  const vals = new Float64Array(s.count);
+  let nnz = 0;
+  for (let m = 0; m < s.count; m++) {
+    const k = s.k[m];
+    const i = s.i[m];
+    const j = s.j[m];
+    const u = varOf[i];
+    const v = j >= 0 ? varOf[j] : -1;
+    const cu = u >= 0 ? s.p[m] * alpha[i] : 0;
+    const cv = v >= 0 ? s.q[m] * alpha[j] : 0;
+    // e: the spring's stretch when every unknown is zero, with its sign turned into a load.
+    const e = s.c[m] - s.p[m] * beta[i] - (j >= 0 ? s.q[m] * beta[j] : 0);
+    if (u >= 0 && u === v) {
+      const cc = cu + cv;
+      diag[u] += k * cc * cc;
+      rhs[u] += k * cc * e;
+      continue;
+    }
+    if (u >= 0) {
+      diag[u] += k * cu * cu;
+      rhs[u] += k * cu * e;
+    }
+    if (v >= 0) {
+      diag[v] += k * cv * cv;
+      rhs[v] += k * cv * e;
+    }
+    if (u >= 0 && v >= 0) {
+      rows[nnz] = u;
+      cols[nnz] = v;
+      vals[nnz++] = k * cu * cv;
+    }
+  }
+  for (let d = 0; d < load.length; d++) {
+    const u = varOf[d];
+    if (u >= 0 && load[d] !== 0) rhs[u] += alpha[d] * load[d];
+  }
+  return { system: { n, diag, rows, cols, vals, count: nnz }, rhs };
+}
+
+/**
+ * Groups of unknowns that can turn together with no strain: a mechanism.
+ * A zero-energy mode of a connected group exists exactly when no spring ties
+ * it to a known rotation and the ratios of its springs agree around every
+ * loop. Answers the groups found (unknown indices), empty when none.
+ */
+export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
+  const n = red.varCount;
+  const { varOf, alpha } = red;
+  // Adjacency over unknowns, with the coefficients of each spring.
+  const deg = new Int32Array(n + 1);
+  const anchored = new Uint8Array(n);
+  for (let m = 0; m < s.count; m++) {
+    const u = varOf[s.i[m]];
+    const v = s.j[m] >= 0 ? varOf[s.j[m]] : -1;
+    const cu = u >= 0 ? s.p[m] * alpha[s.i[m]] : 0;
+    const cv = v >= 0 ? s.q[m] * alpha[s.j[m]] : 0;
+    if (u >= 0 && v >= 0 && u !== v) {
+      deg[u + 1]++;
+      deg[v + 1]++;
+    } else if (u >= 0 && u === v) {
+      if (Math.abs(cu + cv) > 1e-12 * (Math.abs(cu) + Math.abs(cv))) anchored[u] = 1;
+    } else if (u >= 0 && cu !== 0) anchored[u] = 1;
+    else if (v >= 0 && cv !== 0) anchored[v] = 1;
+  }
+  for (let k = 0; k < n; k++) deg[k + 1] += deg[k];
+  const adjV = new Int32Array(deg[n]);
+  const adjR = new Float64Array(deg[n]); // ratio ρ_v/ρ_u that makes the spring strain-free
+  const fill = deg.slice(0, n);
+  for (let m = 0; m < s.count; m++) {
+    const u = varOf[s.i[m]];
+    const v = s.j[m] >= 0 ? varOf[s.j[m]] : -1;
+    if (u < 0 || v < 0 || u === v) continue;
+    const cu = s.p[m] * alpha[s.i[m]];
+    const cv = s.q[m] * alpha[s.j[m]];
+    adjV[fill[u]] = v;
+    adjR[fill[u]++] = -cu / cv;
+    adjV[fill[v]] = u;
+    adjR[fill[v]++] = -cv / cu;
+  }
+  const rho = new Float64Array(n);
+  const seen = new Uint8Array(n);
+  const stack = new Int32Array(n);
+  const groups: number[][] = [];
+  for (let start = 0; start < n; start++) {
+    if (seen[start]) continue;
+    const group: number[] = [];
+    let free = true;
+    let sp = 0;
+    stack[sp++] = start;
+    seen[start] = 1;
+    rho[start] = 1;
+    while (sp > 0) {
+      const u = stack[--sp];
+      group.push(u);
+      if (anchored[u]) free = false;
+      for (let p = deg[u]; p < deg[u + 1]; p++) {
+        const v = adjV[p];
+        const want = rho[u] * adjR[p];
+        if (!seen[v]) {
+          seen[v] = 1;
+          rho[v] = want;
+          stack[sp++] = v;
+        } else if (Math.abs(rho[v] - want) > 1e-10 * (Math.abs(rho[v]) + Math.abs(want))) {
+          free = false; // an elastic loop whose ratios disagree: it cannot turn freely
+        }
+      }
+    }
+    if (free) groups.push(group);
+  }
+  return groups;
+}

@@ -1,0 +1,466 @@
+/**
+ * From the model as typed (unit strings, ids) to a resolved model: SI numbers,
+ * indices instead of ids, sections with their per-layer rigidities. Every
+ * problem found is collected with the JSON pointer of its field and thrown at
+ * once as one ModelError, so the user fixes them in one pass.
+ */
+import { Compile } from 'typebox/compile';
+import { Model, MODEL_FORMAT, type GearEnd, type Model as ModelT } from '../../shared-types/model.js';
+import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
+import { isProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
+import { buildSectionLayers, type SectionLayer } from './sections.js';
+
+export interface ResolvedMaterial {
+  readonly id: string;
+  readonly G: number;
+  readonly allowableShear: number | null;
+  readonly shearYield: number | null;
+}
+
+export interface ResolvedSegment {
+  readonly index: number;
+  readonly sectionId: string;
+  readonly z0: number;
+  readonly z1: number;
+  readonly layers: readonly SectionLayer[];
+  /** Σ G·J, N·m². */
+  readonly rigidity: number;
+  /** max over layers of G·r_outer / ΣGJ: τ_peak = factor · |T|, 1/m³. */
+  readonly shearFactor: number;
+}
+
+export interface ResolvedShaft {
+  readonly id: string;
+  readonly name?: string;
+  readonly length: number;
+  readonly segments: readonly ResolvedSegment[];
+}
+
+export interface ShaftPoint {
+  readonly shaft: number;
+  readonly z: number;
+}
+
+export interface ResolvedSupport extends ShaftPoint {
+  readonly id: string;
+  readonly kind: 'fixed' | 'spring';
+  /** Prescribed rotation (fixed), rad. */
+  readonly rotation: number;
+  /** Spring stiffness (spring), N·m/rad. */
+  readonly stiffness: number;
+}
+
+export interface ResolvedTorque extends ShaftPoint {
+  readonly id: string;
+  readonly torque: number;
+}
+
+export interface ResolvedDistributed {
+  readonly id: string;
+  readonly shaft: number;
+  readonly from: number;
+  readonly to: number;
+  /** t at `from` and at `to`, N·m/m. */
+  readonly start: number;
+  readonly end: number;
+}
+
+export interface ResolvedMesh {
+  readonly id: string;
+  readonly a: ShaftPoint & { readonly radius: number };
+  readonly b: ShaftPoint & { readonly radius: number };
+  /** −1 for "opposite", +1 for "same". */
+  readonly sense: -1 | 1;
+  /** Tangential stiffness N/m, or null for a rigid mesh. */
+  readonly stiffness: number | null;
+  readonly offset: number;
+}
+
+export interface ResolvedCoupling {
+  readonly id: string;
+  readonly a: ShaftPoint;
+  readonly b: ShaftPoint;
+  /** N·m/rad, or null for a rigid coupling. */
+  readonly stiffness: number | null;
+  readonly misfit: number;
+}
+
+export interface ResolvedDisc extends ShaftPoint {
+  readonly id: string;
+  readonly inertia: number;
+}
+
+export interface ResolvedModel {
+  readonly name: string;
+  readonly shafts: readonly ResolvedShaft[];
+  readonly supports: readonly ResolvedSupport[];
+  readonly torques: readonly ResolvedTorque[];
+  readonly distributed: readonly ResolvedDistributed[];
+  readonly meshes: readonly ResolvedMesh[];
+  readonly couplings: readonly ResolvedCoupling[];
+  readonly discs: readonly ResolvedDisc[];
+  readonly limits: { readonly twistRate: number | null; readonly totalTwist: number | null };
+}
+
+const validator = Compile(Model);
+
+/** Validates and resolves a model; throws ModelError listing every problem. */
+export function normaliseModel(raw: unknown): ResolvedModel {
+  if (raw === null || typeof raw !== 'object' || Array.isArray(raw)) {
+    throw new ModelError([{ code: 'SN_SCHEMA', pointer: '', message: 'a model must be a JSON object' }]);
+  }
+  const format = (raw as { format?: unknown }).format;
+  if (format !== MODEL_FORMAT) {
+    throw new ModelError([
+      {
+        code: 'SN_FORMAT',
+        pointer: '/format',
+        message: `must be "${MODEL_FORMAT}"${format === undefined ? '' : `, not ${JSON.stringify(format)}`}`,
+      },
+    ]);
+  }
+  if (!validator.Check(raw)) throw new ModelError(schemaIssues(raw));
+  return new Resolver(raw).resolve();
+}
+
+interface SchemaError {
+  keyword: string;
+  instancePath: string;
+  params: Record<string, unknown>;
+  message: string;
+}
+
+/** Turns the validator's errors into one issue per field, with readable messages. */
+export function schemaIssues(raw: unknown): ModelIssue[] {
+  const byPointer = new Map<string, { messages: string[]; allowed: string[]; types: string[] }>();
+  const add = (ptr: string) => {
+    let entry = byPointer.get(ptr);
+    if (!entry) byPointer.set(ptr, (entry = { messages: [], allowed: [], types: [] }));
+    return entry;
+  };
+  for (const e of validator.Errors(raw) as unknown as SchemaError[]) {
+    switch (e.keyword) {
+      case 'required':
+        for (const p of e.params.requiredProperties as string[]) add(e.instancePath + pointer(p)).messages.push('is required');
+        break;
+      case 'additionalProperties':
+        for (const p of e.params.additionalProperties as string[]) {
+          add(e.instancePath + pointer(p)).messages.push(`"${p}" is not a field here (misspelt?)`);
+        }
+        break;
+      case 'boolean':
+      case 'anyOf':
+        break; // restated by the 'additionalProperties' and per-branch errors
+      case 'const':
+        add(e.instancePath).allowed.push(JSON.stringify(e.params.allowedValue));
+        break;
+      case 'type':
+        add(e.instancePath).types.push(String(e.params.type));
+        break;
+      default:
+        add(e.instancePath).messages.push(e.message);
+    }
+  }
+  const issues: ModelIssue[] = [];
+  for (const [ptr, { messages, allowed, types }] of byPointer) {
+    let message: string;
+    if (messages.length > 0) message = messages[0];
+    else if (allowed.length > 0) message = `must be one of ${allowed.join(', ')}`;
+    else if (types.includes('number') && types.includes('string')) {
+      message = 'must be a number in SI units or a string "<number> <unit>"';
+    } else message = `must be ${types.map((t) => (t === 'integer' ? 'a whole number' : `a ${t}`)).join(' or ')}`;
+    issues.push({ code: 'SN_SCHEMA', pointer: ptr, message });
+  }
+  if (issues.length === 0) issues.push({ code: 'SN_SCHEMA', pointer: '', message: 'does not match the model format' });
+  return issues;
+}
+
+/** Resolves a schema-valid model, collecting issues as it goes. */
+class Resolver {
+  private readonly issues: ModelIssue[] = [];
+  private readonly materials = new Map<string, ResolvedMaterial>();
+  private readonly sectionIndex = new Map<string, number>();
+  private readonly shaftIndex = new Map<string, number>();
+  private shafts: ResolvedShaft[] = [];
+
+  constructor(private readonly m: ModelT) {}
+
+  resolve(): ResolvedModel {
+    const m = this.m;
+    this.uniqueIds('materials', m.materials);
+    this.uniqueIds('sections', m.sections);
+    this.uniqueIds('shafts', m.shafts);
+    for (const list of ['supports', 'torques', 'distributedTorques', 'gearMeshes', 'couplings', 'discs'] as const) {
+      this.uniqueIds(list, m[list] ?? []);
+    }
+    m.materials.forEach((mat, i) => this.material(mat, i));
+    m.sections.forEach((s, i) => this.sectionIndex.set(s.id, i));
+    this.shafts = m.shafts.map((s, i) => this.shaft(s, i));
+    const supports = (m.supports ?? []).map((s, i): ResolvedSupport => {
+      const base = pointer('supports', i);
+      const at = this.point(s.shaft, s.at, base);
+      const rotation = s.rotation === undefined ? 0 : this.q(s.rotation, 'angle', base + '/rotation');
+      let stiffness = 0;
+      if (s.kind === 'spring') {
+        if (s.stiffness === undefined) this.issue('SN_SCHEMA', base + '/stiffness', 'a spring support needs a stiffness');
+        else stiffness = this.positive(s.stiffness, 'rotationalStiffness', base + '/stiffness');
+        if (s.rotation !== undefined) this.issue('SN_SCHEMA', base + '/rotation', 'only a fixed support takes a rotation');
+      } else if (s.stiffness !== undefined) {
+        this.issue('SN_SCHEMA', base + '/stiffness', 'a fixed support takes no stiffness (use kind "spring")');
+      }
+      return { id: s.id, kind: s.kind, ...at, rotation, stiffness };
+    });
+    const torques = (m.torques ?? []).map((t, i): ResolvedTorque => {
+      const base = pointer('torques', i);
+      const at = this.point(t.shaft, t.at, base);
+      return { id: t.id, ...at, torque: this.pointTorque(t, base) };
+    });
+    const distributed = (m.distributedTorques ?? []).map((d, i): ResolvedDistributed => {
+      const base = pointer('distributedTorques', i);
+      const from = this.point(d.shaft, d.from, base, 'from');
+      const to = this.point(d.shaft, d.to, base, 'to');
+      if (from.z > to.z) this.issue('SN_RANGE_ORDER', base + '/to', '"to" must not be before "from"');
+      return {
+        id: d.id,
+        shaft: from.shaft,
+        from: from.z,
+        to: to.z,
+        start: this.q(d.start, 'torquePerLength', base + '/start'),
+        end: this.q(d.end, 'torquePerLength', base + '/end'),
+      };
+    });
+    const meshes = (m.gearMeshes ?? []).map((g, i): ResolvedMesh => {
+      const base = pointer('gearMeshes', i);
+      const module = g.module === undefined ? null : this.positive(g.module, 'length', base + '/module');
+      const end = (e: GearEnd, key: 'a' | 'b') => {
+        const p = this.point(e.shaft, e.at, `${base}/${key}`);
+        let radius = 1;
+        if ((e.radius === undefined) === (e.teeth === undefined)) {
+          this.issue('SN_GEAR_SIZE', `${base}/${key}`, 'give either a pitch "radius" or a number of "teeth" (with the mesh "module")');
+        } else if (e.radius !== undefined) {
+          radius = this.positive(e.radius, 'length', `${base}/${key}/radius`);
+        } else if (module === null) {
+          if (g.module === undefined) this.issue('SN_GEAR_SIZE', base + '/module', `"teeth" on gear ${key} needs the mesh "module"`);
+        } else {
+          radius = ((e.teeth as number) * module) / 2;
+        }
+        return { ...p, radius };
+      };
+      return {
+        id: g.id,
+        a: end(g.a, 'a'),
+        b: end(g.b, 'b'),
+        sense: g.sense === 'same' ? 1 : -1,
+        stiffness: g.stiffness === undefined ? null : this.positive(g.stiffness, 'linearStiffness', base + '/stiffness'),
+        offset: g.offset === undefined ? 0 : this.q(g.offset, 'length', base + '/offset'),
+      };
+    });
+    const couplings = (m.couplings ?? []).map((c, i): ResolvedCoupling => {
+      const base = pointer('couplings', i);
+      return {
+        id: c.id,
+        a: this.point(c.a.shaft, c.a.at, base + '/a'),
+        b: this.point(c.b.shaft, c.b.at, base + '/b'),
+        stiffness: c.stiffness === undefined ? null : this.positive(c.stiffness, 'rotationalStiffness', base + '/stiffness'),
+        misfit: c.misfit === undefined ? 0 : this.q(c.misfit, 'angle', base + '/misfit'),
+      };
+    });
+    const discs = (m.discs ?? []).map((d, i): ResolvedDisc => {
+      const base = pointer('discs', i);
+      return { id: d.id, ...this.point(d.shaft, d.at, base), inertia: this.nonNegative(d.inertia, 'massInertia', base + '/inertia') };
+    });
+    const limits = {
+      twistRate: m.limits?.twistRate === undefined ? null : this.positive(m.limits.twistRate, 'twistRate', '/limits/twistRate'),
+      totalTwist: m.limits?.totalTwist === undefined ? null : this.positive(m.limits.totalTwist, 'angle', '/limits/totalTwist'),
+    };
+    if (this.issues.length > 0) throw new ModelError(this.issues);
+    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, limits };
+  }
+
+  private issue(code: ErrorCode, ptr: string, message: string): void {
+    this.issues.push({ code, pointer: ptr, message });
+  }
+
+  private uniqueIds(list: string, items: ReadonlyArray<{ id: string }>): void {
+    const seen = new Map<string, number>();
+    items.forEach((item, i) => {
+      const first = seen.get(item.id);
+      if (first !== undefined) {
+        this.issue('SN_DUPLICATE_ID', pointer(list, i, 'id'), `id "${item.id}" is already used by ${pointer(list, first)}`);
+      } else seen.set(item.id, i);
+    });
+  }
+
+  /** Reads a quantity; on a problem records it and answers NaN (never reaches the solver). */
+  private q(value: unknown, kind: QuantityKind, ptr: string): number {
+    const r = readQuantity(value, kind);
+    if (isProblem(r)) {
+      this.issue(r.code, ptr, r.message);
+      return Number.NaN;
+    }
+    return r;
+  }
+
+  private positive(value: unknown, kind: QuantityKind, ptr: string): number {
+    const v = this.q(value, kind, ptr);
+    if (v <= 0) this.issue('SN_NOT_POSITIVE', ptr, `must be greater than zero (got ${String(value)})`);
+    return v;
+  }
+
+  private nonNegative(value: unknown, kind: QuantityKind, ptr: string): number {
+    const v = this.q(value, kind, ptr);
+    if (v < 0) this.issue('SN_NOT_POSITIVE', ptr, `must not be negative (got ${String(value)})`);
+    return v;
+  }
+
+  private material(mat: ModelT['materials'][number], i: number): void {
+    const base = pointer('materials', i);
+    let G = Number.NaN;
+    const hasG = mat.G !== undefined;
+    const hasE = mat.E !== undefined || mat.nu !== undefined;
+    if (hasG && hasE) {
+      this.issue('SN_MATERIAL', base, 'give either G, or E and nu, not both');
+    } else if (hasG) {
+      G = this.positive(mat.G, 'stress', base + '/G');
+    } else if (mat.E !== undefined && mat.nu !== undefined) {
+      const E = this.positive(mat.E, 'stress', base + '/E');
+      if (!(mat.nu > -1 && mat.nu < 0.5)) this.issue('SN_OUT_OF_RANGE', base + '/nu', "Poisson's ratio must lie in (-1, 0.5)");
+      G = E / (2 * (1 + mat.nu));
+    } else {
+      this.issue('SN_MATERIAL', mat.E === undefined ? base + '/E' : base + '/nu', 'give the shear modulus G, or both E and nu');
+    }
+    const optional = (v: unknown, key: string) => (v === undefined ? null : this.positive(v, 'stress', `${base}/${key}`));
+    if (mat.density !== undefined) this.positive(mat.density, 'density', base + '/density');
+    this.materials.set(mat.id, {
+      id: mat.id,
+      G,
+      allowableShear: optional(mat.allowableShear, 'allowableShear'),
+      shearYield: optional(mat.shearYield, 'shearYield'),
+    });
+  }
+
+  private shaft(s: ModelT['shafts'][number], i: number): ResolvedShaft {
+    const base = pointer('shafts', i);
+    if (!this.shaftIndex.has(s.id)) this.shaftIndex.set(s.id, i);
+    let z = 0;
+    const segments = s.segments.map((seg, j): ResolvedSegment => {
+      const sp = `${base}/segments/${j}`;
+      const length = this.positive(seg.length, 'length', sp + '/length');
+      const z0 = z;
+      z += length;
+      const si = this.sectionIndex.get(seg.section);
+      let layers: SectionLayer[] = [];
+      if (si === undefined) {
+        this.issue('SN_UNRESOLVED', sp + '/section', `no section with id "${seg.section}"`);
+      } else {
+        layers = this.sectionLayers(si, seg.material, sp);
+      }
+      const rigidity = layers.reduce((sum, l) => sum + l.G * l.J, 0);
+      const shearFactor = layers.reduce((mx, l) => Math.max(mx, l.G * l.rOuter), 0) / rigidity;
+      return { index: j, sectionId: seg.section, z0, z1: z, layers, rigidity, shearFactor };
+    });
+    return { id: s.id, name: s.name, length: z, segments };
+  }
+
+  private readonly sectionCache = new Map<string, SectionLayer[]>();
+
+  /** The layers of section `si` as used by one segment (solid/hollow take the segment's material). */
+  private sectionLayers(si: number, segMaterial: string | undefined, segPtr: string): SectionLayer[] {
+    const sec = this.m.sections[si];
+    const sp = pointer('sections', si);
+    const key = `${si}\u0000${sec.shape === 'layered' ? '' : segMaterial ?? ''}`;
+    const cached = this.sectionCache.get(key);
+    if (cached) return cached;
+    const before = this.issues.length;
+    const lookup = (id: string, ptr: string): ResolvedMaterial | null => {
+      const mat = this.materials.get(id);
+      if (!mat) this.issue('SN_UNRESOLVED', ptr, `no material with id "${id}"`);
+      return mat ?? null;
+    };
+    let rings: Array<{ rInner: number; rOuter: number; material: ResolvedMaterial | null }> = [];
+    const di = (ptr: string) => (sec.di === undefined ? 0 : this.nonNegative(sec.di, 'length', ptr));
+    if (sec.shape === 'layered') {
+      if (!sec.layers) {
+        this.issue('SN_SCHEMA', sp + '/layers', 'a layered section needs layers (inside out)');
+      } else {
+        if (segMaterial !== undefined) {
+          this.issue('SN_MATERIAL', segPtr + '/material', 'a layered section names the material of each layer; leave the segment material out');
+        }
+        let r = di(sp + '/di') / 2;
+        sec.layers.forEach((layer, k) => {
+          const lp = `${sp}/layers/${k}`;
+          const rOuter = this.positive(layer.d, 'length', lp + '/d') / 2;
+          if (!(rOuter > r)) this.issue('SN_SECTION_GEOMETRY', lp + '/d', 'each layer must be larger than the bore or the layer inside it');
+          rings.push({ rInner: r, rOuter, material: lookup(layer.material, lp + '/material') });
+          r = rOuter;
+        });
+      }
+    } else {
+      if (sec.layers !== undefined) this.issue('SN_SCHEMA', sp + '/layers', `a ${sec.shape} section takes no layers`);
+      if (sec.d === undefined) this.issue('SN_SCHEMA', sp + '/d', `a ${sec.shape} section needs an outer diameter d`);
+      const rOuter = sec.d === undefined ? Number.NaN : this.positive(sec.d, 'length', sp + '/d') / 2;
+      let rInner = 0;
+      if (sec.shape === 'hollow') {
+        if (sec.di === undefined) this.issue('SN_SCHEMA', sp + '/di', 'a hollow section needs an inner diameter di');
+        else {
+          rInner = di(sp + '/di') / 2;
+          if (!(rInner < rOuter)) this.issue('SN_SECTION_GEOMETRY', sp + '/di', 'the bore di must be smaller than d');
+        }
+      } else if (sec.di !== undefined) {
+        this.issue('SN_SCHEMA', sp + '/di', 'a solid section has no bore (use shape "hollow")');
+      }
+      let material: ResolvedMaterial | null = null;
+      if (segMaterial === undefined) this.issue('SN_MATERIAL', segPtr + '/material', `a ${sec.shape} section needs the segment's material`);
+      else material = lookup(segMaterial, segPtr + '/material');
+      rings = [{ rInner, rOuter, material }];
+    }
+    const ok = this.issues.length === before && rings.every((r) => r.material !== null);
+    const layers = ok
+      ? buildSectionLayers(rings.map((r) => ({ ...r, material: r.material as ResolvedMaterial })))
+      : [];
+    // Cache only the layered case (its layers do not depend on the segment); errors are then reported once.
+    this.sectionCache.set(key, layers);
+    return layers;
+  }
+
+  private point(shaftId: string, at: unknown, base: string, key = 'at'): ShaftPoint {
+    const shaft = this.shaftIndex.get(shaftId);
+    const z = this.q(at, 'length', `${base}/${key}`);
+    if (shaft === undefined) {
+      this.issue('SN_UNRESOLVED', base + '/shaft', `no shaft with id "${shaftId}"`);
+      return { shaft: -1, z };
+    }
+    const length = this.shafts[shaft].length;
+    if (Number.isFinite(z) && Number.isFinite(length)) {
+      // Points typed in other units than the segment lengths can miss an end by round-off.
+      const tol = 1e-12 * length;
+      if (z < -tol || z > length + tol) {
+        this.issue('SN_OFF_SHAFT', `${base}/${key}`, `${z} m lies outside shaft "${shaftId}" (0 to ${length} m)`);
+      }
+      return { shaft, z: Math.min(Math.max(z, 0), length) };
+    }
+    return { shaft, z };
+  }
+
+  private pointTorque(t: NonNullable<ModelT['torques']>[number], base: string): number {
+    const byTorque = t.torque !== undefined;
+    const byPower = t.power !== undefined || t.speed !== undefined;
+    if (byTorque === byPower) {
+      this.issue('SN_TORQUE_FORM', base, 'give either "torque", or "power" with "speed"');
+      return 0;
+    }
+    if (byTorque) return this.q(t.torque, 'torque', base + '/torque');
+    if (t.power === undefined || t.speed === undefined) {
+      this.issue('SN_TORQUE_FORM', base + (t.power === undefined ? '/power' : '/speed'), '"power" and "speed" go together');
+      return 0;
+    }
+    const power = this.q(t.power, 'power', base + '/power');
+    const speed = this.q(t.speed, 'angularSpeed', base + '/speed');
+    if (speed === 0) {
+      this.issue('SN_NOT_POSITIVE', base + '/speed', 'speed must not be zero: the torque P/ω would be infinite');
+      return 0;
+    }
+    // P = T·ω, so T = P/ω (signs: power delivered to the shaft along +z at positive speed).
+    return power / speed;
+  }
+}

@@ -1,0 +1,403 @@
+/**
+ * Recovery: from the rotations at the stations to everything an engineer
+ * reads. Inside an element of rigidity GJ and length h with distributed torque
+ * t(s) = t1 + (t2 − t1)·s/h, the exact solution of GJ·φ'' = −t is
+ *   T(s) = T1 − t1·s − (t2 − t1)·s²/(2h),
+ *   φ(s) = φ1 + (T1·s − t1·s²/2 − (t2 − t1)·s³/(6h)) / GJ,
+ * with T1 = k·(φ2 − φ1) + f1 (k = GJ/h, f1 the consistent load share at the
+ * left end), so T(z), φ(z) and τ(z) are exact between stations too.
+ */
+import { Matrix, pseudoInverse } from 'ml-matrix';
+import type { ResolvedModel } from './normalise.js';
+import type { StationLayout } from './stations.js';
+import type { Assembly } from './assemble.js';
+import type { CheckResult, CouplingResult, GearMeshResult, ReactionResult, SegmentResult, ShaftResult, Warning } from '../../shared-types/solution.js';
+
+export interface Recovered {
+  readonly shafts: ShaftResult[];
+  readonly reactions: ReactionResult[];
+  readonly gearMeshes: GearMeshResult[];
+  readonly couplings: CouplingResult[];
+  readonly residuals: Array<{ shaft: string; residual: number }>;
+  readonly checks: CheckResult[];
+  readonly warnings: Warning[];
+}
+
+/** Rotation of every dof from the reduced unknowns. */
+export function expandRotations(asm: Assembly, x: Float64Array): Float64Array {
+  const { varOf, alpha, beta } = asm.reduction;
+  const phi = new Float64Array(varOf.length);
+  for (let d = 0; d < phi.length; d++) {
+    const u = varOf[d];
+    phi[d] = u >= 0 ? alpha[d] * x[u] + beta[d] : beta[d];
+  }
+  return phi;
+}
+
+/** Everything from the rotations. `diagramPoints` interior samples per loaded element. */
+export function recover(model: ResolvedModel, layout: StationLayout, asm: Assembly, phi: Float64Array, diagramPoints: number): Recovered {
+  const { springs, edges, load, elemF1, elemF2 } = asm;
+  const { z, elemLeft, shaftStart } = layout;
+  const elemCount = springs.elemCount;
+
+  // Element end torques.
+  const TL = new Float64Array(elemCount); // T(z1+)
+  const TR = new Float64Array(elemCount); // T(z2−)
+  for (let e = 0; e < elemCount; e++) {
+    const d = elemLeft[e];
+    const kd = springs.k[e] * (phi[d + 1] - phi[d]);
+    TL[e] = kd + elemF1[e];
+    TR[e] = kd - elemF2[e];
+  }
+
+  // Torque each elastic part puts on its dofs, and the constraint torque every dof needs: r = K·φ − F.
+  const need = new Float64Array(layout.dofCount);
+  for (let m = 0; m < springs.count; m++) {
+    const i = springs.i[m];
+    const j = springs.j[m];
+    const g = springs.p[m] * phi[i] + (j >= 0 ? springs.q[m] * phi[j] : 0) - springs.c[m];
+    const f = springs.k[m] * g;
+    need[i] += f * springs.p[m];
+    if (j >= 0) need[j] += f * springs.q[m];
+  }
+  for (let d = 0; d < need.length; d++) need[d] -= load[d];
+  const lambda = constraintTorques(edges, need);
+
+  const warnings: Warning[] = [];
+  for (const loop of asm.reduction.lockedLoops) {
+    warnings.push({
+      code: 'SN_LOCKED_LOOP',
+      message: `rigid connections ${loop.join(', ')} form a loop whose ratios do not multiply to one: the stations they join cannot turn`,
+      connections: [...loop],
+    });
+  }
+  for (const tie of asm.reduction.redundantTies) {
+    warnings.push({
+      code: 'SN_RIGID_SPLIT',
+      message: `${tie.join(', ')} tie the same rotations rigidly more than once: how they share torque is not decided by a rigid model; the least-squares split is shown (make one compliant to decide it)`,
+      connections: [...tie],
+    });
+  }
+
+  // Reactions, mesh and coupling results, and the torque each puts on each dof.
+  const applied = new Float64Array(layout.dofCount); // torques from supports and connections, per dof
+  const reactions: ReactionResult[] = model.supports.map((s) => ({
+    support: s.id,
+    shaft: model.shafts[s.shaft].id,
+    kind: s.kind,
+    torque: 0,
+    rotation: phi[layout.stationAt(s.shaft, s.z)],
+  }));
+  const gearMeshes: GearMeshResult[] = model.meshes.map((g) => {
+    const i = layout.stationAt(g.a.shaft, g.a.z);
+    const j = layout.stationAt(g.b.shaft, g.b.z);
+    return {
+      gearMesh: g.id,
+      force: 0,
+      torqueA: 0,
+      torqueB: 0,
+      radiusA: g.a.radius,
+      radiusB: g.b.radius,
+      gap: g.a.radius * phi[i] - g.sense * g.b.radius * phi[j] - g.offset,
+    };
+  });
+  const couplings: CouplingResult[] = model.couplings.map((c) => ({
+    coupling: c.id,
+    torqueA: 0,
+    torqueB: 0,
+    twist: phi[layout.stationAt(c.a.shaft, c.a.z)] - phi[layout.stationAt(c.b.shaft, c.b.z)] - c.misfit,
+  }));
+  // A constraint torque λ acts as λ·p on dof i and λ·q on dof j; a spring's as −k·g·p and −k·g·q.
+  const put = (kind: 'support' | 'mesh' | 'coupling', ref: number, i: number, j: number, onI: number, onJ: number, force: number) => {
+    applied[i] += onI;
+    if (j >= 0) applied[j] += onJ;
+    if (kind === 'support') reactions[ref].torque = onI;
+    else if (kind === 'mesh') Object.assign(gearMeshes[ref], { torqueA: onI, torqueB: onJ, force });
+    else Object.assign(couplings[ref], { torqueA: onI, torqueB: onJ });
+  };
+  edges.forEach((e, n) => put(e.kind, e.ref, e.i, e.j, lambda[n] * e.p, lambda[n] * e.q, -lambda[n]));
+  for (let m = elemCount; m < springs.count; m++) {
+    const i = springs.i[m];
+    const j = springs.j[m];
+    const f = springs.k[m] * (springs.p[m] * phi[i] + (j >= 0 ? springs.q[m] * phi[j] : 0) - springs.c[m]);
+    put(springs.kind[m - elemCount], springs.ref[m - elemCount], i, j, -f * springs.p[m], -f * springs.q[m], f);
+  }
+
+  // Equilibrium of every shaft, summed from the recovered torques (not assumed).
+  const residuals = model.shafts.map((shaft, s) => {
+    let sum = 0;
+    let scale = 0;
+    for (let d = shaftStart[s]; d < shaftStart[s + 1]; d++) {
+      sum += applied[d];
+      scale = Math.max(scale, Math.abs(applied[d]));
+    }
+    for (const t of model.torques) if (t.shaft === s) sum += t.torque;
+    for (const dt of model.distributed) if (dt.shaft === s) sum += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
+    void scale;
+    return { shaft: shaft.id, residual: Math.abs(sum) };
+  });
+
+  const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, asm, phi, TL, TR, s, diagramPoints));
+  const checks = buildChecks(model, shafts);
+  for (const mat of missingAllowables(model)) {
+    warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
+  }
+  return { shafts, reactions, gearMeshes, couplings, residuals, checks, warnings };
+}
+
+/**
+ * Multipliers λ of the rigid edges from Σ_e λ_e·a_e,d = need_d at every dof.
+ * Peels dofs with a single undecided edge (trees: exact, linear time); loops
+ * that remain are solved together by least squares (minimum norm).
+ */
+function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float64Array {
+  const lambda = new Float64Array(edges.length);
+  if (edges.length === 0) return lambda;
+  const rest = new Map<number, number>(); // dof → undecided edge count
+  const incident = new Map<number, number[]>();
+  edges.forEach((e, n) => {
+    for (const d of e.j >= 0 && e.j !== e.i ? [e.i, e.j] : [e.i]) {
+      rest.set(d, (rest.get(d) ?? 0) + 1);
+      const list = incident.get(d);
+      if (list) list.push(n);
+      else incident.set(d, [n]);
+    }
+  });
+  const coef = (e: (typeof edges)[number], d: number) => (e.i === d ? e.p : 0) + (e.j === d ? e.q : 0);
+  const decided = new Uint8Array(edges.length);
+  const residual = new Map<number, number>();
+  for (const d of rest.keys()) residual.set(d, need[d]);
+  const stack = [...rest.entries()].filter(([, c]) => c === 1).map(([d]) => d);
+  while (stack.length > 0) {
+    const d = stack.pop()!;
+    if (rest.get(d) !== 1) continue;
+    const n = incident.get(d)!.find((m) => !decided[m]);
+    if (n === undefined) continue;
+    const e = edges[n];
+    const a = coef(e, d);
+    if (a === 0) continue;
+    lambda[n] = residual.get(d)! / a;
+    decided[n] = 1;
+    for (const o of e.j >= 0 && e.j !== e.i ? [e.i, e.j] : [e.i]) {
+      rest.set(o, rest.get(o)! - 1);
+      if (o !== d) {
+        residual.set(o, residual.get(o)! - lambda[n] * coef(e, o));
+        if (rest.get(o) === 1) stack.push(o);
+      }
+    }
+  }
+  const open = edges.map((_, n) => n).filter((n) => !decided[n]);
+  if (open.length === 0) return lambda;
+  const dofs = [...new Set(open.flatMap((n) => [edges[n].i, edges[n].j]).filter((d) => d >= 0))];
+  const row = new Map(dofs.map((d, r) => [d, r]));
+  const A = Matrix.zeros(dofs.length, open.length);
+  open.forEach((n, c) => {
+    const e = edges[n];
+    A.set(row.get(e.i)!, c, A.get(row.get(e.i)!, c) + e.p);
+    if (e.j >= 0) A.set(row.get(e.j)!, c, A.get(row.get(e.j)!, c) + e.q);
+  });
+  const b = Matrix.columnVector(dofs.map((d) => residual.get(d)!));
+  const x = pseudoInverse(A).mmul(b);
+  open.forEach((n, c) => (lambda[n] = x.get(c, 0)));
+  return lambda;
+}
+
+function shaftResult(
+  model: ResolvedModel,
+  layout: StationLayout,
+  asm: Assembly,
+  phi: Float64Array,
+  TL: Float64Array,
+  TR: Float64Array,
+  s: number,
+  diagramPoints: number,
+): ShaftResult {
+  const shaft = model.shafts[s];
+  const { z, shaftStart, elemSegment, elemT1, elemT2 } = layout;
+  const first = shaftStart[s];
+  const last = shaftStart[s + 1] - 1;
+  const e0 = first - s; // element index of the first element of this shaft
+  const stations = [];
+  for (let d = first; d <= last; d++) {
+    stations.push({
+      z: z[d],
+      rotation: phi[d],
+      torqueLeft: d === first ? null : TR[d - 1 - s],
+      torqueRight: d === last ? null : TL[d - s],
+    });
+  }
+  const dz: number[] = [];
+  const dT: number[] = [];
+  const dPhi: number[] = [];
+  const dTau: number[] = [];
+  const seg = shaft.segments.map((sg) => ({ maxAbs: 0, at: sg.z0, from: sg.z0, to: sg.z1, phiFrom: NaN, phiTo: NaN }));
+  let phiMin = Infinity;
+  let phiMax = -Infinity;
+  for (let e = e0; e < e0 + (last - first); e++) {
+    const d = first + (e - e0);
+    const sg = shaft.segments[elemSegment[e]];
+    const acc = seg[elemSegment[e]];
+    if (Number.isNaN(acc.phiFrom)) acc.phiFrom = phi[d];
+    acc.phiTo = phi[d + 1];
+    const h = z[d + 1] - z[d];
+    const t1 = elemT1[e];
+    const t2 = elemT2[e];
+    const T1 = TL[e];
+    const gj = sg.rigidity;
+    const Tat = (x: number) => T1 - t1 * x - ((t2 - t1) * x * x) / (2 * h);
+    const phiAt = (x: number) => phi[d] + (T1 * x - (t1 * x * x) / 2 - ((t2 - t1) * x * x * x) / (6 * h)) / gj;
+    const consider = (x: number, T: number) => {
+      if (Math.abs(T) > acc.maxAbs) {
+        acc.maxAbs = Math.abs(T);
+        acc.at = z[d] + x;
+      }
+    };
+    consider(0, T1);
+    consider(h, TR[e]);
+    phiMin = Math.min(phiMin, phi[d], phi[d + 1]);
+    phiMax = Math.max(phiMax, phi[d], phi[d + 1]);
+    // Point of the diagram at z[d]: a second point at the same z shows a jump.
+    if (dz.length === 0 || dT[dT.length - 1] !== T1) {
+      dz.push(z[d]);
+      dT.push(T1);
+      dPhi.push(phi[d]);
+      dTau.push(sg.shearFactor * T1);
+    }
+    const loaded = t1 !== 0 || t2 !== 0;
+    if (loaded) {
+      // Interior extreme of T where t(s) = 0.
+      if (t1 !== t2) {
+        const x = (-t1 * h) / (t2 - t1);
+        if (x > 0 && x < h) consider(x, Tat(x));
+      }
+      // Interior extremes of φ where T(s) = 0.
+      for (const x of quadraticRoots(-(t2 - t1) / (2 * h), -t1, T1)) {
+        if (x > 0 && x < h) {
+          const p = phiAt(x);
+          phiMin = Math.min(phiMin, p);
+          phiMax = Math.max(phiMax, p);
+        }
+      }
+      for (let k = 1; k <= diagramPoints; k++) {
+        const x = (h * k) / (diagramPoints + 1);
+        const T = Tat(x);
+        dz.push(z[d] + x);
+        dT.push(T);
+        dPhi.push(phiAt(x));
+        dTau.push(sg.shearFactor * T);
+      }
+    }
+    dz.push(z[d + 1]);
+    dT.push(TR[e]);
+    dPhi.push(phi[d + 1]);
+    dTau.push(sg.shearFactor * TR[e]);
+  }
+  if (first === last) {
+    dz.push(z[first]);
+    dT.push(0);
+    dPhi.push(phi[first]);
+    dTau.push(0);
+    phiMin = phiMax = phi[first];
+  }
+  const segments: SegmentResult[] = shaft.segments.map((sg, k) => {
+    const acc = seg[k];
+    return {
+      index: k,
+      section: sg.sectionId,
+      from: sg.z0,
+      to: sg.z1,
+      torsionalRigidity: sg.rigidity,
+      maxAbsTorque: acc.maxAbs,
+      governingZ: acc.at,
+      maxTwistRate: acc.maxAbs / sg.rigidity,
+      twist: acc.phiTo - acc.phiFrom,
+      layers: sg.layers.map((l) => {
+        const maxShear = (l.G * l.rOuter * acc.maxAbs) / sg.rigidity;
+        return {
+          material: l.materialId,
+          outerRadius: l.rOuter,
+          maxShear,
+          allowableShear: l.allowableShear,
+          utilisation: l.allowableShear === null ? null : maxShear / l.allowableShear,
+          shearYield: l.shearYield,
+        };
+      }),
+    };
+  });
+  void asm;
+  return {
+    id: shaft.id,
+    ...(shaft.name === undefined ? {} : { name: shaft.name }),
+    length: shaft.length,
+    stations,
+    segments,
+    totalTwist: phiMax - phiMin,
+    diagram: { z: dz, torque: dT, rotation: dPhi, shear: dTau },
+  };
+}
+
+/** Real roots of a·x² + b·x + c (a may be 0), computed without cancellation. */
+function quadraticRoots(a: number, b: number, c: number): number[] {
+  if (a === 0) return b === 0 ? [] : [-c / b];
+  const disc = b * b - 4 * a * c;
+  if (disc < 0) return [];
+  const q = -0.5 * (b + Math.sign(b || 1) * Math.sqrt(disc));
+  const roots = [q / a];
+  if (q !== 0) roots.push(c / q);
+  return roots;
+}
+
+/** Every check, worst utilisation first. */
+function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): CheckResult[] {
+  const checks: CheckResult[] = [];
+  const { twistRate, totalTwist } = model.limits;
+  for (const sr of shafts) {
+    for (const seg of sr.segments) {
+      seg.layers.forEach((l, k) => {
+        if (l.allowableShear === null) return;
+        checks.push({
+          kind: 'shear',
+          shaft: sr.id,
+          segment: seg.index,
+          layer: k,
+          material: l.material,
+          value: l.maxShear,
+          limit: l.allowableShear,
+          utilisation: l.maxShear / l.allowableShear,
+          pass: l.maxShear <= l.allowableShear,
+        });
+      });
+      if (twistRate !== null) {
+        checks.push({
+          kind: 'twistRate',
+          shaft: sr.id,
+          segment: seg.index,
+          value: seg.maxTwistRate,
+          limit: twistRate,
+          utilisation: seg.maxTwistRate / twistRate,
+          pass: seg.maxTwistRate <= twistRate,
+        });
+      }
+    }
+    if (totalTwist !== null) {
+      checks.push({
+        kind: 'totalTwist',
+        shaft: sr.id,
+        value: sr.totalTwist,
+        limit: totalTwist,
+        utilisation: sr.totalTwist / totalTwist,
+        pass: sr.totalTwist <= totalTwist,
+      });
+    }
+  }
+  return checks.sort((a, b) => b.utilisation - a.utilisation);
+}
+
+/** Materials used by some segment without an allowable shear stress. */
+function missingAllowables(model: ResolvedModel): string[] {
+  const missing = new Set<string>();
+  for (const shaft of model.shafts) {
+    for (const seg of shaft.segments) for (const l of seg.layers) if (l.allowableShear === null) missing.add(l.materialId);
+  }
+  return [...missing];
+}
