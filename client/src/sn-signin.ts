@@ -33,6 +33,7 @@ export class SnSignin extends LitElement {
     return html`<form @submit=${this.onSubmit}>
       <h2>Sign in to Shaftnet</h2>
       <p>This server is shared by a team and asks for the team token. Ask whoever runs it.</p>
+      <input type="text" name="username" autocomplete="username" value="team" hidden />
       <input type="password" name="token" autocomplete="current-password" aria-label="Team token" placeholder="Team token" required />
       ${this.error ? html`<p class="err">${this.error}</p>` : nothing}
       <button type="submit" ?disabled=${this.busy}>Sign in</button>

@@ -35,6 +35,38 @@ describe.runIf(!hasBrowser && required)('browser tests are required (SHAFTNET_RE
   });
 });
 
+/** Starts the built server on a free loopback port; resolves with its URL (without the trailing slash). */
+async function startServer(dataDir: string, extra: string[]): Promise<{ child: ChildProcess; url: string }> {
+  const child = spawn(
+    process.execPath,
+    ['dist/server/main.js', '--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent', ...extra],
+    { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] },
+  );
+  const url = await new Promise<string>((resolve, reject) => {
+    let out = '';
+    const timer = setTimeout(() => reject(new Error(`server did not start: ${out}`)), 30_000);
+    child.stdout?.on('data', (chunk: Buffer) => {
+      out += chunk.toString();
+      const m = /listening on (http:\/\/\S+?)\/?\s/.exec(out);
+      if (m) {
+        clearTimeout(timer);
+        resolve(m[1]);
+      }
+    });
+    child.stderr?.on('data', (chunk: Buffer) => (out += chunk.toString()));
+    child.on('exit', (code) => reject(new Error(`server exited (${code}): ${out}`)));
+  });
+  return { child, url };
+}
+
+async function stopServer(child: ChildProcess | undefined): Promise<void> {
+  if (child && child.exitCode === null) {
+    const exited = new Promise((r) => child.once('exit', r));
+    child.kill('SIGTERM');
+    await exited;
+  }
+}
+
 /** Console errors and page errors of a page; expected API refusals are listed by status. */
 interface Watched {
   page: Page;
@@ -99,25 +131,7 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
       execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
     }
     dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-e2e-'));
-    server = spawn(
-      process.execPath,
-      ['dist/server/main.js', '--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'],
-      { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] },
-    );
-    base = await new Promise<string>((resolve, reject) => {
-      let out = '';
-      const timer = setTimeout(() => reject(new Error(`server did not start: ${out}`)), 30_000);
-      server.stdout?.on('data', (chunk: Buffer) => {
-        out += chunk.toString();
-        const m = /listening on (http:\/\/\S+?)\/?\s/.exec(out);
-        if (m) {
-          clearTimeout(timer);
-          resolve(m[1]);
-        }
-      });
-      server.stderr?.on('data', (chunk: Buffer) => (out += chunk.toString()));
-      server.on('exit', (code) => reject(new Error(`server exited (${code}): ${out}`)));
-    });
+    ({ child: server, url: base } = await startServer(dataDir, []));
     const { chromium } = await import('playwright-core');
     browser = await chromium.launch({
       executablePath: CHROMIUM,
@@ -128,10 +142,7 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
 
   afterAll(async () => {
     await browser?.close();
-    if (server && server.exitCode === null) {
-      server.kill('SIGTERM');
-      await new Promise((r) => server.once('exit', r));
-    }
+    await stopServer(server);
     if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
   });
 
@@ -303,6 +314,36 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     await a.page.keyboard.press('Escape');
     expect(a.errors).toEqual([]);
     expect(b.errors).toEqual([]);
+  });
+
+  it('asks for the team token on a server that needs one', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-e2e-token-'));
+    const token = 'e2e-team-token-0123456789';
+    const guarded = await startServer(dir, ['--token', token]);
+    try {
+      const page = await browser.newPage();
+      const errors: string[] = [];
+      page.on('console', (msg) => {
+        // The wrong token is refused with a 401 on purpose.
+        if (msg.type() === 'error' && !(/status of 401/.test(msg.text()) && msg.location().url.endsWith('/api/session'))) errors.push(msg.text());
+      });
+      page.on('pageerror', (e) => errors.push(e.message));
+      await page.goto(guarded.url + '/');
+      await page.locator('sn-signin input[name="token"]').waitFor();
+      await page.screenshot({ path: path.join(ARTIFACTS, '08-sign-in.png') });
+      await page.locator('sn-signin input[name="token"]').fill('not-the-token-000000');
+      await page.locator('sn-signin button[type="submit"]').click();
+      await page.locator('sn-signin .err').waitFor();
+      await page.locator('sn-signin input[name="token"]').fill(token);
+      await page.locator('sn-signin button[type="submit"]').click();
+      await waitFresh(page);
+      expect(await page.locator('sn-signin').count()).toBe(0);
+      await page.close();
+      expect(errors).toEqual([]);
+    } finally {
+      await stopServer(guarded.child);
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 
   it('prints a report with the schematic, results and cautions', async () => {
