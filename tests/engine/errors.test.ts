@@ -235,7 +235,8 @@ describe('mechanisms (SN_MECHANISM, 422)', () => {
     const issues = mechanism(e);
     expect(issues).toHaveLength(1);
     expect(sorted(issues[0].shafts)).toEqual(['input', 'output']);
-    expect(issues[0].pointer).toBe('');
+    // The contract names no pointer for a mechanism; the engine points at the supports list (where the fix goes).
+    expect(issues[0].pointer).toBe('/supports');
     expect(e.issues).toHaveLength(1);
   });
 
