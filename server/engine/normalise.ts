@@ -5,6 +5,7 @@
  * once as one ModelError, so the user fixes them in one pass.
  */
 import { Compile } from 'typebox/compile';
+import { Settings } from 'typebox/system';
 import { Model, MODEL_FORMAT, type GearEnd, type Model as ModelT } from '../../shared-types/model.js';
 import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
 import { isProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
@@ -102,6 +103,9 @@ export interface ResolvedModel {
   readonly limits: { readonly twistRate: number | null; readonly totalTwist: number | null };
 }
 
+/** Most shape issues reported for one model: all of them for any real model, bounded against abuse. */
+export const MAX_REPORTED_ISSUES = 500;
+Settings.Set({ maxErrors: MAX_REPORTED_ISSUES });
 const validator = Compile(Model);
 
 /** Validates and resolves a model; throws ModelError listing every problem. */
@@ -154,9 +158,13 @@ export function schemaIssues(raw: unknown): ModelIssue[] {
       case 'const':
         add(e.instancePath).allowed.push(JSON.stringify(e.params.allowedValue));
         break;
-      case 'type':
-        add(e.instancePath).types.push(String(e.params.type));
+      case 'type': {
+        // JSON text like 1e999 parses to Infinity, which no schema type admits: say what it is.
+        const v = valueAt(raw, e.instancePath);
+        if (typeof v === 'number' && !Number.isFinite(v)) add(e.instancePath).messages.push('must be a finite number');
+        else add(e.instancePath).types.push(String(e.params.type));
         break;
+      }
       default:
         add(e.instancePath).messages.push(e.message);
     }
@@ -169,10 +177,21 @@ export function schemaIssues(raw: unknown): ModelIssue[] {
     else if (types.includes('number') && types.includes('string')) {
       message = 'must be a number in SI units or a string "<number> <unit>"';
     } else message = `must be ${types.map((t) => (t === 'integer' ? 'a whole number' : `a ${t}`)).join(' or ')}`;
-    issues.push({ code: 'SN_SCHEMA', pointer: ptr, message });
+    const code = message === 'must be a finite number' ? 'SN_NOT_FINITE' : 'SN_SCHEMA';
+    issues.push({ code, pointer: ptr, message });
   }
   if (issues.length === 0) issues.push({ code: 'SN_SCHEMA', pointer: '', message: 'does not match the model format' });
   return issues;
+}
+
+/** The value at a JSON pointer, or undefined. */
+function valueAt(root: unknown, ptr: string): unknown {
+  let v: unknown = root;
+  for (const raw of ptr.split('/').slice(1)) {
+    if (v === null || typeof v !== 'object') return undefined;
+    v = (v as Record<string, unknown>)[raw.replace(/~1/g, '/').replace(/~0/g, '~')];
+  }
+  return v;
 }
 
 /** Resolves a schema-valid model, collecting issues as it goes. */
@@ -456,11 +475,13 @@ class Resolver {
     }
     const power = this.q(t.power, 'power', base + '/power');
     const speed = this.q(t.speed, 'angularSpeed', base + '/speed');
-    if (speed === 0) {
-      this.issue('SN_NOT_POSITIVE', base + '/speed', 'speed must not be zero: the torque P/ω would be infinite');
+    if (!(speed > 0)) {
+      if (Number.isFinite(speed)) {
+        this.issue('SN_NOT_POSITIVE', base + '/speed', 'speed must be greater than zero; give the sense of the torque by the sign of "power"');
+      }
       return 0;
     }
-    // P = T·ω, so T = P/ω (signs: power delivered to the shaft along +z at positive speed).
+    // P = T·ω, so T = P/ω: the sign of the power gives the sense of the torque about +z.
     return power / speed;
   }
 }
