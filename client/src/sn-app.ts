@@ -90,6 +90,7 @@ export class SnApp extends LitElement {
     input[type=file] { display: none; }
     main { display: grid; grid-template-columns: minmax(0, 46fr) minmax(0, 54fr); gap: 14px; padding: 10px 14px; align-items: start; }
     .col { min-width: 0; }
+    .editor-col { align-self: stretch; }
     .card { background: #fff; border: 1px solid #dcd7cd; border-radius: 6px; padding: 8px 12px; margin-bottom: 12px; }
     .card h2 { font-size: 14px; margin: 2px 0 6px; color: #1d3a4a; }
     .editor-card { max-height: calc(100vh - 70px); overflow: auto; position: sticky; top: 52px; }

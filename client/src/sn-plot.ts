@@ -1,12 +1,12 @@
 import { LitElement, css, html, nothing, svg } from 'lit';
 import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, prettyUnit, toDisplay } from './units.js';
 
-const PW = 440; // px, viewBox width
-const PH = 170; // px, viewBox height
+const PW = 680; // px, viewBox width
+const PH = 150; // px, viewBox height
 const ML = 58; // px, left margin for tick labels
 const MR = 12;
-const MT = 22;
-const MB = 30;
+const MT = 20;
+const MB = 28;
 
 /** Round tick values covering [lo, hi]. */
 export function niceTicks(lo: number, hi: number, count = 5): number[] {
@@ -28,9 +28,9 @@ export class SnPlot extends LitElement {
   static override styles = css`
     :host { display: block; }
     svg { width: 100%; height: auto; display: block; font-family: system-ui, sans-serif; }
-    .tick { font-size: 10px; fill: #6b665e; }
-    .title { font-size: 12px; font-weight: 600; fill: #1d3a4a; }
-    .mark { font-size: 10.5px; font-weight: 600; }
+    .tick { font-size: 11px; fill: #6b665e; }
+    .title { font-size: 12.5px; font-weight: 600; fill: #1d3a4a; }
+    .mark { font-size: 11.5px; font-weight: 600; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
   `;
 
   static override properties = {
@@ -88,7 +88,7 @@ export class SnPlot extends LitElement {
     const pts = xs.map((x, i) => `${X(x).toFixed(2)},${Y(ys[i]).toFixed(2)}`).join(' ');
     const area = `${X(xs[0]).toFixed(2)},${Y(0).toFixed(2)} ${pts} ${X(xs[xs.length - 1]).toFixed(2)},${Y(0).toFixed(2)}`;
     const yt = niceTicks(y0, y1, 4);
-    const xt = niceTicks(x0, x1, 6);
+    const xt = niceTicks(x0, x1, 8);
     const mi = this.markIndex;
     const unit = prettyUnit(displayUnit(this.kind, this.system));
     const mark =

@@ -59,10 +59,10 @@ export class SnResults extends LitElement {
     .bar.over { background: #b3261e; }
     .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; }
     .warn { background: #fdf1d8; color: #7a4f00; padding: 4px 8px; border-radius: 4px; margin: 4px 0; font-size: 13px; }
-    .plots { display: grid; grid-template-columns: repeat(auto-fit, minmax(230px, 1fr)); gap: 4px 12px; }
+    .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
     .muted { color: #6b665e; font-size: 12px; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
-    @media print { .banner.fresh { display: none; } .body.dim { opacity: 1; filter: none; } .plots { grid-template-columns: 1fr 1fr 1fr; } }
+    @media print { .banner.fresh { display: none; } .body.dim { opacity: 1; filter: none; } }
   `;
 
   static override properties = {
