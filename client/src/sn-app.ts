@@ -316,8 +316,8 @@ export class SnApp extends LitElement {
       <h2>${this.resultState === 'invalid' ? 'The model cannot be solved yet' : 'Problems'}</h2>
       ${mech.map(
         (i) => html`<p class="mechanism" data-mechanism=${(i.shafts ?? []).join(',')}>
-          ${(i.shafts ?? []).length > 1 ? 'Shafts' : 'Shaft'} ${(i.shafts ?? []).join(', ')} ${(i.shafts ?? []).length > 1 ? 'are' : 'is'} free to spin:
-          nothing holds ${(i.shafts ?? []).length > 1 ? 'them' : 'it'}. Add a fixed or spring support, or connect to a held shaft. (${i.message})
+          ${(i.shafts ?? []).length > 1 ? 'Shafts' : 'Shaft'} ${(i.shafts ?? []).join(', ')} ${(i.shafts ?? []).length > 1 ? 'are' : 'is'} free to spin.
+          <span style="font-weight:400">${i.message}</span>
         </p>`,
       )}
       <ul>
