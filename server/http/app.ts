@@ -96,7 +96,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.setSerializerCompiler(() => (data) => JSON.stringify(data));
 
   // Our own JSON parser: error messages with the position, and large solve bodies left for a worker.
-  app.removeContentTypeParser(['application/json']);
+  // JSON only: any other Content-Type is refused (400 SN_JSON), which also keeps plain HTML forms out.
+  app.removeAllContentTypeParsers();
   app.addContentTypeParser('application/json', { parseAs: 'string', bodyLimit: maxBodyBytes }, (req, body, done) => {
     const text = body as string;
     if (text.length > deferBytes && req.routeOptions.url === '/api/solve') {

@@ -8,10 +8,12 @@
  * replaced on demand. Workers start lazily, on the first large job.
  */
 import fs from 'node:fs';
+import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { ErrorCode, ModelIssue } from '../../shared-types/errors.js';
 import { HttpError } from './errors.js';
+import { packageRoot } from './paths.js';
 import type { SizeLimits } from './solve-core.js';
 
 /** What the pool sends a worker. */
@@ -55,12 +57,31 @@ interface Slot {
   timer: NodeJS.Timeout | undefined;
 }
 
-/** The worker entry: compiled JavaScript beside this file, else the TypeScript source through tsx. */
-function workerEntry(): { file: string; execArgv: string[] } {
+/**
+ * The worker's script. From dist/ it is the compiled solve-worker.js beside this
+ * file. From the TypeScript sources (tests, `tsx server/main.ts`) Node 20 cannot
+ * load .ts in a worker (`--import tsx` in a worker's execArgv is not honoured),
+ * so the worker source is bundled once per process with esbuild (tsx's own
+ * compiler, present wherever tsx is) into node_modules/.cache, where its
+ * package imports resolve.
+ */
+let sourceWorker: Promise<string> | undefined;
+function workerScript(): Promise<string> {
   const js = fileURLToPath(new URL('./solve-worker.js', import.meta.url));
-  if (fs.existsSync(js)) return { file: js, execArgv: [] };
-  const ts = fileURLToPath(new URL('./solve-worker.ts', import.meta.url));
-  return { file: ts, execArgv: ['--import', 'tsx'] };
+  if (fs.existsSync(js)) return Promise.resolve(js);
+  sourceWorker ??= (async () => {
+    const ts = fileURLToPath(new URL('./solve-worker.ts', import.meta.url));
+    const dir = path.join(packageRoot(), 'node_modules', '.cache', 'shaftnet');
+    fs.mkdirSync(dir, { recursive: true });
+    const outfile = path.join(dir, `solve-worker-${process.pid}.mjs`);
+    const esbuild = (await import('esbuild' as string)) as {
+      build(o: Record<string, unknown>): Promise<unknown>;
+    };
+    await esbuild.build({ entryPoints: [ts], outfile, bundle: true, platform: 'node', format: 'esm', packages: 'external', logLevel: 'silent' });
+    process.once('exit', () => fs.rmSync(outfile, { force: true }));
+    return outfile;
+  })();
+  return sourceWorker;
 }
 
 export class SolverPool {
@@ -68,7 +89,6 @@ export class SolverPool {
   private readonly queue: Pending[] = [];
   private nextId = 1;
   private closed = false;
-  private readonly entry = workerEntry();
 
   constructor(private readonly opts: SolverPoolOptions) {
     if (!Number.isInteger(opts.size) || opts.size < 1) throw new Error('SolverPool: size must be a whole number >= 1');
@@ -122,8 +142,8 @@ export class SolverPool {
     );
   }
 
-  private spawn(slot: Slot): Worker {
-    const worker = new Worker(this.entry.file, { execArgv: this.entry.execArgv });
+  private spawn(slot: Slot, script: string): Worker {
+    const worker = new Worker(script);
     worker.on('message', (reply: WorkerReply) => this.finish(slot, worker, reply));
     worker.on('error', (err) => this.fault(slot, worker, `worker error: ${err.stack ?? err.message}`));
     worker.on('exit', (code) => {
@@ -136,19 +156,46 @@ export class SolverPool {
   }
 
   private start(slot: Slot, pending: Pending): void {
-    const worker = slot.worker ?? this.spawn(slot);
     slot.current = pending;
+    if (slot.worker) this.post(slot, slot.worker, pending);
+    else {
+      workerScript().then(
+        (script) => {
+          if (slot.current !== pending || this.closed) return; // timed out or closed meanwhile
+          this.post(slot, this.spawn(slot, script), pending);
+        },
+        (err: Error) => {
+          if (slot.current !== pending) return;
+          if (slot.timer) clearTimeout(slot.timer);
+          slot.timer = undefined;
+          slot.current = undefined;
+          this.opts.onInternalError?.(`cannot prepare the solver worker: ${err.stack ?? err.message}`);
+          pending.reject(new HttpError('SN_INTERNAL', 'internal server error; the server log has the details'));
+          this.next(slot);
+        },
+      );
+    }
+    this.arm(slot, pending);
+  }
+
+  /** Starts the time limit of the slot's job. */
+  private arm(slot: Slot, pending: Pending): void {
     slot.timer = setTimeout(() => {
       slot.timer = undefined;
+      if (slot.current !== pending) return;
       const p = slot.current;
       slot.current = undefined;
+      const worker = slot.worker;
       slot.worker = undefined;
-      void worker.terminate();
+      void worker?.terminate();
       p?.reject(
         new HttpError('SN_TIMEOUT', `the solve took longer than the time limit of ${this.opts.timeoutMs} ms (see --solve-timeout)`),
       );
       this.next(slot);
     }, this.opts.timeoutMs);
+  }
+
+  private post(_slot: Slot, worker: Worker, pending: Pending): void {
     worker.postMessage(pending.job);
   }
 

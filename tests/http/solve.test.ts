@@ -115,11 +115,13 @@ describe('POST /api/solve', () => {
   });
 
   it('413 SN_TOO_LARGE for a body over the byte limit, and a model over the station or shaft limits', async () => {
-    const small = await makeApp({ maxBodyBytes: 4096, limits: { maxStations: 50, maxShafts: 2 } });
+    const tiny = await makeApp({ maxBodyBytes: 4096 });
+    const small = await makeApp({ limits: { maxStations: 50, maxShafts: 2 } });
     try {
-      const big = await post(small, { ...cantilever(1), notes: 'x'.repeat(5000) });
+      const big = await post(tiny, { ...cantilever(1), notes: 'x'.repeat(5000) });
       expect(big.statusCode).toBe(413);
       expect(errorOf(big.body).error.code).toBe('SN_TOO_LARGE');
+      expect(errorOf(big.body).error.message).toMatch(/--max-body/);
       const many = await post(small, cantilever(60));
       expect(many.statusCode).toBe(413);
       expect(errorOf(many.body).error.message).toMatch(/stations.*at most 50/);
@@ -127,6 +129,7 @@ describe('POST /api/solve', () => {
       expect(shafts.statusCode).toBe(413);
       expect(errorOf(shafts.body).error.issues[0].pointer).toBe('/shafts');
     } finally {
+      await tiny.close();
       await small.close();
     }
   });
