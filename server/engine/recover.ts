@@ -226,93 +226,107 @@ function shaftResult(
       torqueRight: d === last ? null : TL[d - s],
     });
   }
-  const dz: number[] = [];
-  const dT: number[] = [];
-  const dPhi: number[] = [];
-  const dTau: number[] = [];
-  const seg = shaft.segments.map((sg) => ({ maxAbs: 0, at: sg.z0, from: sg.z0, to: sg.z1, phiFrom: NaN, phiTo: NaN }));
+  // Diagram: breakpoints (two at a jump) plus interior points of loaded elements.
+  const elemN = last - first;
+  const cap = 1 + elemN * (2 + diagramPoints);
+  const dz = new Float64Array(cap);
+  const dT = new Float64Array(cap);
+  const dPhi = new Float64Array(cap);
+  const dTau = new Float64Array(cap);
+  let np = 0;
+  const nSeg = shaft.segments.length;
+  const segMax = new Float64Array(nSeg);
+  const segAt = Float64Array.from(shaft.segments, (sg) => sg.z0);
+  const segPhiFrom = new Float64Array(nSeg).fill(Number.NaN);
+  const segPhiTo = new Float64Array(nSeg);
   let phiMin = Infinity;
   let phiMax = -Infinity;
-  for (let e = e0; e < e0 + (last - first); e++) {
+  for (let e = e0; e < e0 + elemN; e++) {
     const d = first + (e - e0);
-    const sg = shaft.segments[elemSegment[e]];
-    const acc = seg[elemSegment[e]];
-    if (Number.isNaN(acc.phiFrom)) acc.phiFrom = phi[d];
-    acc.phiTo = phi[d + 1];
+    const k = elemSegment[e];
+    const sg = shaft.segments[k];
+    if (Number.isNaN(segPhiFrom[k])) segPhiFrom[k] = phi[d];
+    segPhiTo[k] = phi[d + 1];
     const h = z[d + 1] - z[d];
     const t1 = elemT1[e];
     const t2 = elemT2[e];
     const T1 = TL[e];
+    const T2 = TR[e];
     const gj = sg.rigidity;
-    const Tat = (x: number) => T1 - t1 * x - ((t2 - t1) * x * x) / (2 * h);
-    const phiAt = (x: number) => phi[d] + (T1 * x - (t1 * x * x) / 2 - ((t2 - t1) * x * x * x) / (6 * h)) / gj;
-    const consider = (x: number, T: number) => {
-      if (Math.abs(T) > acc.maxAbs) {
-        acc.maxAbs = Math.abs(T);
-        acc.at = z[d] + x;
-      }
-    };
-    consider(0, T1);
-    consider(h, TR[e]);
-    phiMin = Math.min(phiMin, phi[d], phi[d + 1]);
-    phiMax = Math.max(phiMax, phi[d], phi[d + 1]);
-    // Point of the diagram at z[d]: a second point at the same z shows a jump.
-    if (dz.length === 0 || dT[dT.length - 1] !== T1) {
-      dz.push(z[d]);
-      dT.push(T1);
-      dPhi.push(phi[d]);
-      dTau.push(sg.shearFactor * T1);
+    const c = sg.shearFactor;
+    if (Math.abs(T1) > segMax[k]) {
+      segMax[k] = Math.abs(T1);
+      segAt[k] = z[d];
     }
-    const loaded = t1 !== 0 || t2 !== 0;
-    if (loaded) {
+    if (Math.abs(T2) > segMax[k]) {
+      segMax[k] = Math.abs(T2);
+      segAt[k] = z[d + 1];
+    }
+    if (phi[d] < phiMin) phiMin = phi[d];
+    if (phi[d] > phiMax) phiMax = phi[d];
+    if (phi[d + 1] < phiMin) phiMin = phi[d + 1];
+    if (phi[d + 1] > phiMax) phiMax = phi[d + 1];
+    // Point at z[d]; a second point at the same z shows a jump.
+    if (np === 0 || dT[np - 1] !== T1) {
+      dz[np] = z[d];
+      dT[np] = T1;
+      dPhi[np] = phi[d];
+      dTau[np++] = c * T1;
+    }
+    if (t1 !== 0 || t2 !== 0) {
+      const dt = t2 - t1;
       // Interior extreme of T where t(s) = 0.
-      if (t1 !== t2) {
-        const x = (-t1 * h) / (t2 - t1);
-        if (x > 0 && x < h) consider(x, Tat(x));
-      }
-      // Interior extremes of φ where T(s) = 0.
-      for (const x of quadraticRoots(-(t2 - t1) / (2 * h), -t1, T1)) {
+      if (dt !== 0) {
+        const x = (-t1 * h) / dt;
         if (x > 0 && x < h) {
-          const p = phiAt(x);
-          phiMin = Math.min(phiMin, p);
-          phiMax = Math.max(phiMax, p);
+          const T = elementTorque(T1, t1, dt, h, x);
+          if (Math.abs(T) > segMax[k]) {
+            segMax[k] = Math.abs(T);
+            segAt[k] = z[d] + x;
+          }
         }
       }
-      for (let k = 1; k <= diagramPoints; k++) {
-        const x = (h * k) / (diagramPoints + 1);
-        const T = Tat(x);
-        dz.push(z[d] + x);
-        dT.push(T);
-        dPhi.push(phiAt(x));
-        dTau.push(sg.shearFactor * T);
+      // Interior extremes of φ where T(s) = 0.
+      for (const x of quadraticRoots(-dt / (2 * h), -t1, T1)) {
+        if (x > 0 && x < h) {
+          const p = elementRotation(phi[d], T1, t1, dt, h, gj, x);
+          if (p < phiMin) phiMin = p;
+          if (p > phiMax) phiMax = p;
+        }
+      }
+      for (let m = 1; m <= diagramPoints; m++) {
+        const x = (h * m) / (diagramPoints + 1);
+        const T = elementTorque(T1, t1, dt, h, x);
+        dz[np] = z[d] + x;
+        dT[np] = T;
+        dPhi[np] = elementRotation(phi[d], T1, t1, dt, h, gj, x);
+        dTau[np++] = c * T;
       }
     }
-    dz.push(z[d + 1]);
-    dT.push(TR[e]);
-    dPhi.push(phi[d + 1]);
-    dTau.push(sg.shearFactor * TR[e]);
+    dz[np] = z[d + 1];
+    dT[np] = T2;
+    dPhi[np] = phi[d + 1];
+    dTau[np++] = c * T2;
   }
-  if (first === last) {
-    dz.push(z[first]);
-    dT.push(0);
-    dPhi.push(phi[first]);
-    dTau.push(0);
+  if (elemN === 0) {
+    dz[np] = z[first];
+    dPhi[np++] = phi[first];
     phiMin = phiMax = phi[first];
   }
   const segments: SegmentResult[] = shaft.segments.map((sg, k) => {
-    const acc = seg[k];
+    const maxAbs = segMax[k];
     return {
       index: k,
       section: sg.sectionId,
       from: sg.z0,
       to: sg.z1,
       torsionalRigidity: sg.rigidity,
-      maxAbsTorque: acc.maxAbs,
-      governingZ: acc.at,
-      maxTwistRate: acc.maxAbs / sg.rigidity,
-      twist: acc.phiTo - acc.phiFrom,
+      maxAbsTorque: maxAbs,
+      governingZ: segAt[k],
+      maxTwistRate: maxAbs / sg.rigidity,
+      twist: segPhiTo[k] - segPhiFrom[k],
       layers: sg.layers.map((l) => {
-        const maxShear = (l.G * l.rOuter * acc.maxAbs) / sg.rigidity;
+        const maxShear = (l.G * l.rOuter * maxAbs) / sg.rigidity;
         return {
           material: l.materialId,
           outerRadius: l.rOuter,
@@ -332,8 +346,25 @@ function shaftResult(
     stations,
     segments,
     totalTwist: phiMax - phiMin,
-    diagram: { z: dz, torque: dT, rotation: dPhi, shear: dTau },
+    diagram: { z: plain(dz, np), torque: plain(dT, np), rotation: plain(dPhi, np), shear: plain(dTau, np) },
   };
+}
+
+/** T(s) inside an element: T1 − t1·s − (t2 − t1)·s²/(2h). */
+function elementTorque(T1: number, t1: number, dt: number, h: number, x: number): number {
+  return T1 - t1 * x - (dt * x * x) / (2 * h);
+}
+
+/** φ(s) inside an element: φ1 + (T1·s − t1·s²/2 − (t2 − t1)·s³/(6h)) / GJ. */
+function elementRotation(phi1: number, T1: number, t1: number, dt: number, h: number, gj: number, x: number): number {
+  return phi1 + (T1 * x - (t1 * x * x) / 2 - (dt * x * x * x) / (6 * h)) / gj;
+}
+
+/** The first n values as a plain array (JSON writes typed arrays as objects). */
+function plain(a: Float64Array, n: number): number[] {
+  const out = new Array<number>(n);
+  for (let k = 0; k < n; k++) out[k] = a[k];
+  return out;
 }
 
 /** Real roots of a·x² + b·x + c (a may be 0), computed without cancellation. */

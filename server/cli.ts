@@ -1,0 +1,137 @@
+#!/usr/bin/env node
+/**
+ * The command line.
+ *
+ *   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense]
+ *   shaftnet demo [--units si|us] [--json | --csv]
+ *   shaftnet serve [server options]        (see server/http/API.md)
+ *
+ * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
+ * message names the field or the shafts), 1 anything else.
+ */
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { dirname, join } from 'node:path';
+import { ModelError } from '../shared-types/errors.js';
+import type { Solution } from '../shared-types/solution.js';
+import { solveModel } from './engine/index.js';
+import { formatReport, stationCsv, type UnitSystem } from './report.js';
+
+const USAGE = `usage:
+  shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense]
+  shaftnet demo [--units si|us] [--json | --csv]
+  shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
+
+  --units si|us   tables in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
+  --json          print the solution object (SI units) instead of tables
+  --csv           print the station table (SI units) as CSV
+  --dense         solve with the dense reference solver (small models only)`;
+
+/** Where the shipped demo models live, from src or from dist. */
+export function demoDirectory(): string {
+  const here = dirname(fileURLToPath(import.meta.url));
+  const candidates = [join(here, 'demos'), join(here, '..', '..', 'server', 'demos')];
+  for (const c of candidates) {
+    try {
+      readFileSync(join(c, 'mixer-drive.json'));
+      return c;
+    } catch {
+      // try the next
+    }
+  }
+  return candidates[0];
+}
+
+interface SolveArgs {
+  file: string | null;
+  units: UnitSystem;
+  output: 'tables' | 'json' | 'csv';
+  dense: boolean;
+}
+
+function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
+  const out: SolveArgs = { file: null, units: 'si', output: 'tables', dense: false };
+  for (let k = 0; k < args.length; k++) {
+    const a = args[k];
+    if (a === '--units') {
+      const v = args[++k];
+      if (v !== 'si' && v !== 'us') throw new UsageError(`--units takes si or us, not ${v ?? 'nothing'}`);
+      out.units = v;
+    } else if (a.startsWith('--units=')) {
+      const v = a.slice(8);
+      if (v !== 'si' && v !== 'us') throw new UsageError(`--units takes si or us, not ${v}`);
+      out.units = v;
+    } else if (a === '--json') out.output = 'json';
+    else if (a === '--csv') out.output = 'csv';
+    else if (a === '--dense') out.dense = true;
+    else if (a.startsWith('-')) throw new UsageError(`unknown option ${a}`);
+    else if (out.file === null) out.file = a;
+    else throw new UsageError(`one model file at a time (got ${out.file} and ${a})`);
+  }
+  if (needFile && out.file === null) throw new UsageError('name the model file, e.g. shaftnet solve model.json');
+  return out;
+}
+
+class UsageError extends Error {}
+
+/** Runs the command line; answers the exit status. Output goes through the two writers. */
+export async function runCli(argv: string[], out: (s: string) => void, err: (s: string) => void): Promise<number> {
+  const [command, ...rest] = argv;
+  try {
+    if (command === 'serve') {
+      const { serveFromArgs } = await import('./main.js');
+      await serveFromArgs(rest);
+      return 0;
+    }
+    if (command !== 'solve' && command !== 'demo') {
+      err(command === undefined || command === '--help' || command === '-h' ? USAGE : `unknown command ${command}\n${USAGE}`);
+      return command === '--help' || command === '-h' ? 0 : 1;
+    }
+    const args = parseSolveArgs(rest, command === 'solve');
+    const path = command === 'demo' ? join(demoDirectory(), 'mixer-drive.json') : (args.file as string);
+    let text: string;
+    try {
+      text = readFileSync(path, 'utf8');
+    } catch (e) {
+      err(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
+      return 1;
+    }
+    let model: unknown;
+    try {
+      model = JSON.parse(text);
+    } catch (e) {
+      err(`${path}: not valid JSON (${(e as Error).message})`);
+      return 2;
+    }
+    const solution: Solution = solveModel(model, { solver: args.dense ? 'dense' : 'sparse' });
+    if (args.output === 'json') out(JSON.stringify(solution, null, 2));
+    else if (args.output === 'csv') out(stationCsv(solution));
+    else out(formatReport(model as { name?: string }, solution, args.units));
+    return 0;
+  } catch (e) {
+    if (e instanceof UsageError) {
+      err(`${e.message}\n${USAGE}`);
+      return 1;
+    }
+    if (e instanceof ModelError) {
+      for (const issue of e.issues) {
+        const extra = issue.shafts ? ` [shafts: ${issue.shafts.join(', ')}]` : '';
+        err(`${issue.code} ${issue.pointer || '(model)'}: ${issue.message}${extra}`);
+      }
+      return 2;
+    }
+    err(`error: ${(e as Error).message}`);
+    return 1;
+  }
+}
+
+const isMain = process.argv[1] !== undefined && fileURLToPath(import.meta.url) === (await import('node:fs')).realpathSync(process.argv[1]);
+if (isMain) {
+  const code = await runCli(
+    process.argv.slice(2),
+    (s) => process.stdout.write(s.endsWith('\n') ? s : s + '\n'),
+    (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n'),
+  );
+  // `serve` keeps running; everything else ends with its status.
+  if (process.argv[2] !== 'serve' || code !== 0) process.exitCode = code;
+}

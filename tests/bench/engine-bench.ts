@@ -1,0 +1,127 @@
+/**
+ * Engine benchmark: ns per station for chains and gear trees of 1e3 … 1e6
+ * stations (assembly + solve + recovery; normalising the JSON is reported
+ * apart, as parsing), and the sparse/dense speed ratio at 2,000 stations.
+ *
+ *   npm run bench:engine            all sizes
+ *   npm run bench:engine -- --quick up to 1e5
+ *
+ * The models are synthetic and invented for timing only.
+ */
+import { normaliseModel, solveResolved } from '../../server/engine/index.js';
+
+type Json = Record<string, unknown>;
+
+const materials = [{ id: 'steel', G: 79.3e9, allowableShear: 55e6 }];
+const sections = [
+  { id: 'a', shape: 'solid', d: 0.04 },
+  { id: 'b', shape: 'hollow', d: 0.05, di: 0.03 },
+];
+
+/** One shaft of n stations, fixed at both ends, a torque at every tenth station. */
+export function chainModel(stations: number): Json {
+  const segs = stations - 1;
+  const h = 0.01;
+  const segments = Array.from({ length: segs }, (_, k) => ({ length: h, section: k % 2 ? 'a' : 'b', material: 'steel' }));
+  const torques = [];
+  for (let k = 5; k < segs; k += 10) torques.push({ id: `t${k}`, shaft: 's', at: k * h, torque: (k % 7) - 3 });
+  return {
+    format: 'shaftnet/1',
+    name: `Benchmark chain (invented), ${stations} stations`,
+    materials,
+    sections,
+    shafts: [{ id: 's', segments }],
+    supports: [
+      { id: 'A', shaft: 's', at: 0, kind: 'fixed' },
+      { id: 'B', shaft: 's', at: segs * h, kind: 'fixed' },
+    ],
+    torques,
+    distributedTorques: [{ id: 'd', shaft: 's', from: 0, to: segs * h, start: -5, end: 5 }],
+  };
+}
+
+/** Shafts of 10 stations in a tree: each new shaft meshes (rigidly or not) with an earlier one. */
+export function gearTreeModel(stations: number): Json {
+  const perShaft = 10;
+  const nShafts = Math.max(1, Math.floor(stations / perShaft));
+  let seed = 12345;
+  const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 4294967296);
+  const shafts = [];
+  const meshes = [];
+  const supports = [{ id: 'root', shaft: 'g0', at: 0, kind: 'fixed' }];
+  const torques = [];
+  for (let s = 0; s < nShafts; s++) {
+    // 8 segments + 2 interior gear stations → 10 stations.
+    shafts.push({ id: `g${s}`, segments: Array.from({ length: 8 }, (_, k) => ({ length: 0.05, section: k % 2 ? 'a' : 'b', material: 'steel' })) });
+    torques.push({ id: `q${s}`, shaft: `g${s}`, at: 0.4, torque: 10 * (rand() - 0.5) });
+    if (s > 0) {
+      const parent = Math.floor(rand() * s);
+      meshes.push({
+        id: `m${s}`,
+        a: { shaft: `g${parent}`, at: 0.125, radius: 0.03 + 0.02 * rand() },
+        b: { shaft: `g${s}`, at: 0.025, radius: 0.03 + 0.02 * rand() },
+        sense: 'opposite',
+        ...(s % 2 ? { stiffness: 4e8 } : {}),
+      });
+    }
+    if (s % 50 === 7) supports.push({ id: `k${s}`, shaft: `g${s}`, at: 0.4, kind: 'spring', stiffness: 1e4 } as never);
+  }
+  return { format: 'shaftnet/1', name: `Benchmark gear tree (invented), ${stations} stations`, materials, sections, shafts, supports, torques, gearMeshes: meshes };
+}
+
+function time<T>(f: () => T): [T, number] {
+  const t0 = process.hrtime.bigint();
+  const r = f();
+  return [r, Number(process.hrtime.bigint() - t0) / 1e6];
+}
+
+function gc(): void {
+  (globalThis as { gc?: () => void }).gc?.();
+}
+
+function bench(kind: string, make: (n: number) => Json, n: number, repeats: number): string {
+  const raw = make(n);
+  const [resolved, parseMs] = time(() => normaliseModel(raw));
+  let best = Infinity;
+  let stations = 0;
+  let fill = 0;
+  let residual = 0;
+  for (let r = 0; r < repeats; r++) {
+    gc();
+    const [sol, ms] = time(() => solveResolved(resolved, { diagramPoints: 2 }));
+    best = Math.min(best, ms);
+    stations = sol.stats.stations;
+    fill = sol.stats.factorNonzeros;
+    residual = sol.equilibrium.maxResidual;
+  }
+  const heap = process.memoryUsage().heapUsed / 2 ** 20;
+  return [
+    kind.padEnd(10),
+    String(stations).padStart(9),
+    best.toFixed(1).padStart(10),
+    ((best * 1e6) / stations).toFixed(0).padStart(12),
+    parseMs.toFixed(0).padStart(9),
+    (fill / stations).toFixed(2).padStart(9),
+    residual.toExponential(1).padStart(9),
+    heap.toFixed(0).padStart(8),
+  ].join('  ');
+}
+
+function main(): void {
+  const quick = process.argv.includes('--quick');
+  const sizes = quick ? [1e3, 1e4, 1e5] : [1e3, 1e4, 1e5, 1e6];
+  console.log(`Engine benchmark (node ${process.version}); best of repeats; parse = normalising the JSON, excluded from ms`);
+  console.log(['kind'.padEnd(10), 'stations'.padStart(9), 'ms'.padStart(10), 'ns/station'.padStart(12), 'parse ms'.padStart(9), 'fill/stn'.padStart(9), 'residual'.padStart(9), 'heap MiB'.padStart(8)].join('  '));
+  for (const n of sizes) console.log(bench('chain', chainModel, n + 1, n >= 1e6 ? 2 : 5));
+  for (const n of sizes) console.log(bench('gear tree', gearTreeModel, n, n >= 1e6 ? 2 : 5));
+
+  // Sparse against dense at 2,000 stations.
+  const resolved = normaliseModel(chainModel(2000));
+  let sparse = Infinity;
+  for (let r = 0; r < 20; r++) sparse = Math.min(sparse, time(() => solveResolved(resolved, { diagramPoints: 2 }))[1]);
+  let dense = Infinity;
+  for (let r = 0; r < 2; r++) dense = Math.min(dense, time(() => solveResolved(resolved, { solver: 'dense', diagramPoints: 2 }))[1]);
+  console.log(`2,000 stations: sparse ${sparse.toFixed(2)} ms, dense ${dense.toFixed(0)} ms, ratio ${(dense / sparse).toFixed(0)}x`);
+}
+
+if (!process.env.NO_MAIN) main();
