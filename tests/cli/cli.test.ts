@@ -1,0 +1,96 @@
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { runCli } from '../../server/cli.js';
+import { solveModel } from '../../server/engine/index.js';
+
+const demoPath = new URL('../../server/demos/mixer-drive.json', import.meta.url).pathname;
+const demo = JSON.parse(readFileSync(demoPath, 'utf8'));
+
+async function run(args: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = '';
+  let err = '';
+  const code = await runCli(args, (s) => (out += s + '\n'), (s) => (err += s + '\n'));
+  return { code, out, err };
+}
+
+function writeModel(model: unknown): string {
+  const dir = mkdtempSync(join(tmpdir(), 'shaftnet-cli-'));
+  const file = join(dir, 'model.json');
+  writeFileSync(file, typeof model === 'string' ? model : JSON.stringify(model));
+  return file;
+}
+
+describe('shaftnet solve', () => {
+  it('--json prints the solution object of the engine', async () => {
+    const r = await run(['solve', demoPath, '--json']);
+    expect(r.code).toBe(0);
+    const printed = JSON.parse(r.out);
+    expect(printed.format).toBe('shaftnet-solution/1');
+    expect(printed.reactions).toEqual(solveModel(demo).reactions);
+  });
+
+  it('tables show each reaction in the chosen units', async () => {
+    const s = solveModel(demo);
+    const si = await run(['solve', demoPath]);
+    const us = await run(['solve', demoPath, '--units', 'us']);
+    expect(si.code).toBe(0);
+    expect(si.out).toContain('torque [N*m]');
+    expect(us.out).toContain('torque [lbf*in]');
+    // 1 lbf·in = 0.45359237 kg × 9.80665 m/s² × 0.0254 m exactly (definitions of the pound, standard gravity and inch).
+    const lbfIn = 0.45359237 * 9.80665 * 0.0254;
+    for (const reaction of s.reactions) {
+      const row = us.out.split('\n').find((line) => line.startsWith(reaction.support + ' '));
+      expect(row, reaction.support).toBeDefined();
+      const shown = Number(row!.trim().split(/\s+/)[3]);
+      expect(Math.abs(shown - reaction.torque / lbfIn)).toBeLessThanOrEqual(Math.abs(reaction.torque / lbfIn) * 5e-4 + 1e-9);
+    }
+    for (const text of [si.out, us.out]) expect(text).toContain('qualified engineer');
+  });
+
+  it('--csv prints one row per station', async () => {
+    const r = await run(['solve', demoPath, '--csv']);
+    const rows = r.out.trim().split('\n');
+    const stations = solveModel(demo).shafts.reduce((n, s) => n + s.stations.length, 0);
+    expect(rows[0]).toBe('shaft,z_m,rotation_rad,torque_left_Nm,torque_right_Nm');
+    expect(rows.length - 1).toBe(stations);
+  });
+
+  it('an invalid model exits 2 and names the field', async () => {
+    const bad = structuredClone(demo);
+    bad.sections[0].d = '40 GPa';
+    const r = await run(['solve', writeModel(bad)]);
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('SN_UNIT_KIND /sections/0/d');
+  });
+
+  it('a mechanism exits 2 and names the shafts', async () => {
+    const free = structuredClone(demo);
+    free.supports = free.supports.filter((s: { shaft: string }) => s.shaft !== 'tail');
+    free.couplings = [];
+    const r = await run(['solve', writeModel(free)]);
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('SN_MECHANISM');
+    expect(r.err).toContain('tail');
+  });
+
+  it('malformed JSON exits 2, a missing file or a bad option exits 1', async () => {
+    expect((await run(['solve', writeModel('{"format": ')])).code).toBe(2);
+    expect((await run(['solve', '/nonexistent/model.json'])).code).toBe(1);
+    expect((await run(['solve', demoPath, '--units', 'imperial'])).code).toBe(1);
+  });
+});
+
+describe('the installed command', () => {
+  const bin = new URL('../../dist/server/cli.js', import.meta.url).pathname;
+  it('runs from dist with the exit codes of the contract', () => {
+    expect(existsSync(bin), 'dist/server/cli.js: run npm run build').toBe(true);
+    const ok = execFileSync(process.execPath, [bin, 'demo', '--json'], { encoding: 'utf8' });
+    expect(JSON.parse(ok).reactions).toEqual(solveModel(demo).reactions);
+    const bad = spawnSync(process.execPath, [bin, 'solve', writeModel({ format: 'shaftnet/1' })], { encoding: 'utf8' });
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toContain('/name');
+  });
+});
