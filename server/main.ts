@@ -35,6 +35,7 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
       workers: config.workers,
       queueLimit: config.queueLimit,
       rateLimitPerMinute: config.rateLimitPerMinute,
+      warmWorkers: true,
       logger: config.logLevel === 'silent' ? false : { level: config.logLevel },
     });
     await app.listen({ port: config.port, host: config.host });

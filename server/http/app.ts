@@ -50,6 +50,8 @@ export interface AppOptions {
   readonly demosDir?: string;
   /** Seed the demos into an empty library (default true). */
   readonly seedDemos?: boolean;
+  /** Start the solver workers at once, not on the first large solve (default false). */
+  readonly warmWorkers?: boolean;
   /** Fastify logger option (default off). */
   readonly logger?: FastifyServerOptions['logger'];
   /** Reported by /api/health (default: package.json's). */
@@ -125,6 +127,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     onInternalError: (message) => app.log.error({ worker: message }, 'solver worker fault'),
   });
   app.addHook('onClose', async () => pool.close());
+  if (opts.warmWorkers) await pool.warm();
 
   await app.register(helmet, {
     contentSecurityPolicy: { useDefaults: false, directives: CLIENT_CSP },

@@ -8,6 +8,7 @@
 
 const CHUNK = 1 << 20; // bytes per gathered buffer
 const SMALL = 256; // nodes: a subtree this small is stringified in one call
+const BATCH = 65_536; // nodes of small array members stringified in one call
 
 /** True when `v` has at most `budget` nodes (cheap: stops counting at the budget). */
 function isSmall(v: unknown, budget: { n: number }): boolean {
@@ -24,18 +25,21 @@ function isSmall(v: unknown, budget: { n: number }): boolean {
 /** Serialises a JSON value (no toJSON, no cycles: engine output) to UTF-8 bytes. */
 export function jsonToBytes(value: unknown): Buffer {
   const buffers: Buffer[] = [];
-  let parts: string[] = [];
-  let length = 0;
-  const push = (s: string) => {
-    parts.push(s);
-    length += s.length;
-    if (length >= CHUNK) flush();
-  };
+  let pending = '';
   const flush = () => {
-    if (parts.length === 0) return;
-    buffers.push(Buffer.from(parts.join(''), 'utf8'));
-    parts = [];
-    length = 0;
+    if (pending.length === 0) return;
+    buffers.push(Buffer.from(pending, 'utf8'));
+    pending = '';
+  };
+  const push = (s: string) => {
+    pending += s;
+    if (pending.length >= CHUNK) flush();
+  };
+  /** A large piece goes straight to bytes; `inner` drops its enclosing brackets without copying. */
+  const pushLarge = (s: string, inner: boolean) => {
+    flush();
+    const b = Buffer.from(s, 'utf8');
+    buffers.push(inner ? b.subarray(1, b.length - 1) : b);
   };
   const emit = (v: unknown): void => {
     if (v === null || typeof v !== 'object' || isSmall(v, { n: SMALL })) {
@@ -43,13 +47,29 @@ export function jsonToBytes(value: unknown): Buffer {
       return;
     }
     if (Array.isArray(v)) {
+      // Runs of small members are stringified a batch at a time (one call per ~64k nodes, not per member).
       push('[');
-      for (let i = 0; i < v.length; i++) {
+      let i = 0;
+      while (i < v.length) {
+        let j = i;
+        let nodes = 0;
+        while (j < v.length && nodes < BATCH) {
+          const budget = { n: SMALL };
+          if (!isSmall(v[j], budget)) break;
+          nodes += SMALL - budget.n;
+          j++;
+        }
         if (i > 0) push(',');
-        const x = v[i];
-        // JSON.stringify writes null for undefined and functions inside arrays
-        if (x === undefined || typeof x === 'function' || typeof x === 'symbol') push('null');
-        else emit(x);
+        if (j > i) {
+          // JSON.stringify writes null for undefined members of an array, as it should
+          const text = JSON.stringify(i === 0 && j === v.length ? v : v.slice(i, j));
+          if (text.length >= 4096) pushLarge(text, true);
+          else push(text.slice(1, -1));
+          i = j;
+        } else {
+          emit(v[i]);
+          i++;
+        }
       }
       push(']');
       return;

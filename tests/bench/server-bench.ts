@@ -44,7 +44,7 @@ const root = fileURLToPath(new URL('../../', import.meta.url));
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
 const BIG_STATIONS = 1_000_000;
 
-/** ~50 stations: two shafts of 20 segments joined by a gear mesh, three supports, two torques. */
+/** ~50 stations: two shafts of 24 segments joined by a gear mesh, three supports, two torques. */
 function smallModel(): object {
   const segments = (n: number, len: number) => Array.from({ length: n }, () => ({ length: len / n, section: 'd40', material: 'steel' }));
   return {
@@ -53,8 +53,8 @@ function smallModel(): object {
     materials: [{ id: 'steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
     sections: [{ id: 'd40', shape: 'solid', d: '40 mm' }],
     shafts: [
-      { id: 'in', segments: segments(20, 0.8) },
-      { id: 'out', segments: segments(20, 1.2) },
+      { id: 'in', segments: segments(24, 0.8) },
+      { id: 'out', segments: segments(24, 1.2) },
     ],
     supports: [
       { id: 'A', shaft: 'in', at: 0, kind: 'fixed' },
@@ -70,15 +70,18 @@ function smallModel(): object {
   };
 }
 
-/** A shaft of BIG_STATIONS - 1 equal segments, fixed at both ends, with two torques: ~1e6 stations. */
+/**
+ * A shaft of BIG_STATIONS - 1 equal segments, fixed at both ends, with two torques: ~1e6 stations.
+ * Segment length 2^-20 m, so that the sum of the lengths is exact and the end support lies on the end.
+ */
 function bigModelText(): string {
   const n = BIG_STATIONS - 1;
-  const seg = '{"length":1e-6,"section":"d","material":"s"}';
+  const seg = `{"length":${2 ** -20},"section":"d","material":"s"}`;
   return (
     '{"format":"shaftnet/1","name":"Bench: one million stations (invented)",' +
     '"materials":[{"id":"s","G":79.3e9}],"sections":[{"id":"d","shape":"solid","d":0.04}],' +
     `"shafts":[{"id":"long","segments":[${Array(n).fill(seg).join(',')}]}],` +
-    `"supports":[{"id":"A","shaft":"long","at":0,"kind":"fixed"},{"id":"B","shaft":"long","at":${n * 1e-6},"kind":"fixed"}],` +
+    `"supports":[{"id":"A","shaft":"long","at":0,"kind":"fixed"},{"id":"B","shaft":"long","at":${n * 2 ** -20},"kind":"fixed"}],` +
     '"torques":[{"id":"T1","shaft":"long","at":0.3,"torque":500},{"id":"T2","shaft":"long","at":0.7,"torque":-200}]}'
   );
 }

@@ -109,13 +109,15 @@ describe('durability', () => {
       }
     })();
 
-    await new Promise((r) => setTimeout(r, 600)); // ms of burst before the kill
+    // Let the burst run until 80 saves are acknowledged (or 20 s on a loaded machine), then kill mid-burst.
+    const t0 = Date.now();
+    while (acked.length < 80 && Date.now() - t0 < 20_000) await new Promise((r) => setTimeout(r, 10));
     const before = acked.length;
     first.child.kill('SIGKILL');
     await new Promise((r) => first.child.once('exit', r));
     stop = true;
     await Promise.all([...chains, creator]);
-    expect(before).toBeGreaterThan(50); // the kill really landed mid-burst
+    expect(before).toBeGreaterThan(20); // the kill really landed mid-burst
 
     const second = await startServer();
     try {

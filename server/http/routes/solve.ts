@@ -1,8 +1,9 @@
 /**
  * POST /api/solve: a model in, its solution out.
  *
- * Small models are solved on the request thread (a 50-station solve takes well
- * under a millisecond: a worker round trip would cost more than it saves).
+ * Small models are solved on the request thread, or by a started worker that
+ * is idle at that moment (so that on a busy server the request thread and the
+ * workers share the small solves; a small solve never waits for a worker).
  * Models above the station threshold, and bodies too large to parse without
  * stalling the event loop, go to the worker pool with its time limit.
  * Rate limited per client address.
@@ -61,7 +62,8 @@ const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) =
         return reply.type('application/json; charset=utf-8').send(json as unknown as SolutionT);
       }
       const size = checkSize(body, opts.limits);
-      if (size.stations > opts.workerThreshold) {
+      // A small solve runs here, unless a started worker is idle: then the two threads share the load.
+      if (size.stations > opts.workerThreshold || opts.pool.hasIdleWorker()) {
         const json = await opts.pool.run({ kind: 'model', model: body });
         return reply.type('application/json; charset=utf-8').send(json as unknown as SolutionT);
       }
