@@ -19,9 +19,10 @@ import healthRoutes from './routes/health.js';
 import modelsRoutes from './routes/models.js';
 import sessionRoutes from './routes/session.js';
 import solveRoutes from './routes/solve.js';
-import { parseJsonText, type SizeLimits } from './solve-core.js';
+import type { SizeLimits } from './solve-core.js';
 import { SolverPool } from './solver-pool.js';
-import { DeferredBody, validatorCompiler } from './validation.js';
+import { readJsonBody } from './body.js';
+import { validatorCompiler } from './validation.js';
 
 export interface AppOptions {
   /** The model library. The app does not close it: whoever opened it does. */
@@ -100,18 +101,9 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   // Our own JSON parser: error messages with the position, and large solve bodies left for a worker.
   // JSON only: any other Content-Type is refused (400 SN_JSON), which also keeps plain HTML forms out.
   app.removeAllContentTypeParsers();
-  app.addContentTypeParser('application/json', { parseAs: 'string', bodyLimit: maxBodyBytes }, (req, body, done) => {
-    const text = body as string;
-    if (text.length > deferBytes && req.routeOptions.url === '/api/solve') {
-      done(null, new DeferredBody(text));
-      return;
-    }
-    try {
-      done(null, parseJsonText(text));
-    } catch (err) {
-      done(err as Error, undefined);
-    }
-  });
+  app.addContentTypeParser('application/json', (req, payload, done) =>
+    readJsonBody(payload, req.headers['content-length'], maxBodyBytes, req.routeOptions.url === '/api/solve' ? deferBytes : Infinity, done),
+  );
 
   app.setErrorHandler((err, req, reply) => {
     const { status, body, internal } = toErrorReply(err);

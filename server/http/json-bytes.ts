@@ -22,8 +22,18 @@ function isSmall(v: unknown, budget: { n: number }): boolean {
   return true;
 }
 
-/** Serialises a JSON value (no toJSON, no cycles: engine output) to UTF-8 bytes. */
+/** Serialises a JSON value (no toJSON, no cycles: engine output) to UTF-8 bytes, in one buffer. */
 export function jsonToBytes(value: unknown): Buffer {
+  const chunks = jsonToChunks(value);
+  return chunks.length === 1 ? chunks[0] : Buffer.concat(chunks);
+}
+
+/**
+ * Serialises a JSON value to UTF-8 bytes as a list of buffers (about 1 MiB
+ * each), whose concatenation is the JSON text: a large answer is sent chunk by
+ * chunk and never copied into one block.
+ */
+export function jsonToChunks(value: unknown): Buffer[] {
   const buffers: Buffer[] = [];
   let pending = '';
   const flush = () => {
@@ -87,5 +97,5 @@ export function jsonToBytes(value: unknown): Buffer {
   };
   emit(value);
   flush();
-  return buffers.length === 1 ? buffers[0] : Buffer.concat(buffers);
+  return buffers;
 }

@@ -1,23 +1,26 @@
 /**
  * A solver worker thread. It takes one job at a time from the pool and answers
- * with the solution already serialised to JSON bytes (transferred, not copied),
- * so that a large solution never costs the request thread a serialisation.
+ * with the solution already serialised to JSON bytes, in chunks transferred
+ * (not copied) to the request thread, so that a large solution never costs the
+ * request thread a serialisation or a copy.
  */
 import { parentPort } from 'node:worker_threads';
 import { ModelError } from '../../shared-types/errors.js';
 import { solveModel } from '../engine/index.js';
 import { normaliseModel } from '../engine/normalise.js';
 import { HttpError } from './errors.js';
-import { jsonToBytes } from './json-bytes.js';
+import { jsonToChunks } from './json-bytes.js';
 import { checkModelShape, checkSize, parseJsonText } from './solve-core.js';
 import type { WorkerJob, WorkerReply } from './solver-pool.js';
 
-function run(job: WorkerJob): WorkerReply {
+const COPY_BELOW = 64 * 1024; // bytes: smaller chunks are copied (they may share a pooled ArrayBuffer)
+
+function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
   try {
     let model: unknown;
-    if (job.kind === 'text') {
-      // A large body that the request thread did not parse: do every step here.
-      model = parseJsonText(job.text);
+    if (job.kind === 'bytes') {
+      // A large body that the request thread did not even decode: do every step here.
+      model = parseJsonText(Buffer.from(job.bytes.buffer, job.bytes.byteOffset, job.bytes.byteLength).toString('utf8'));
       checkModelShape(model);
       checkSize(model, job.limits);
     } else {
@@ -25,25 +28,28 @@ function run(job: WorkerJob): WorkerReply {
     }
     if (job.kind === 'validate') {
       normaliseModel(model);
-      return { id: job.id, ok: true, json: null };
+      return { reply: { id: job.id, ok: true, chunks: null }, transfer: [] };
     }
-    const bytes = jsonToBytes(solveModel(model));
-    // Only a buffer that owns its whole ArrayBuffer can be transferred; a small one may be a view into a pool.
-    if (bytes.byteOffset === 0 && bytes.buffer.byteLength === bytes.byteLength) {
-      return { id: job.id, ok: true, json: new Uint8Array(bytes.buffer, 0, bytes.byteLength) };
+    const chunks: Uint8Array[] = [];
+    const transfer = new Set<ArrayBuffer>();
+    for (const c of jsonToChunks(solveModel(model))) {
+      if (c.byteLength < COPY_BELOW) chunks.push(new Uint8Array(c));
+      else {
+        chunks.push(new Uint8Array(c.buffer, c.byteOffset, c.byteLength));
+        transfer.add(c.buffer as ArrayBuffer);
+      }
     }
-    return { id: job.id, ok: true, json: new Uint8Array(bytes) };
+    return { reply: { id: job.id, ok: true, chunks }, transfer: [...transfer] };
   } catch (err) {
     if (err instanceof HttpError || err instanceof ModelError) {
-      return { id: job.id, ok: false, error: { code: err.code, message: err.message, issues: err.issues } };
+      return { reply: { id: job.id, ok: false, error: { code: err.code, message: err.message, issues: err.issues } }, transfer: [] };
     }
     const message = err instanceof Error ? `${err.name}: ${err.message}\n${err.stack ?? ''}` : String(err);
-    return { id: job.id, ok: false, internal: message };
+    return { reply: { id: job.id, ok: false, internal: message }, transfer: [] };
   }
 }
 
 parentPort?.on('message', (job: WorkerJob) => {
-  const reply = run(job);
-  if (reply.ok && reply.json) parentPort?.postMessage(reply, [reply.json.buffer as ArrayBuffer]);
-  else parentPort?.postMessage(reply);
+  const { reply, transfer } = run(job);
+  parentPort?.postMessage(reply, transfer);
 });

@@ -20,11 +20,11 @@ import type { SizeLimits } from './solve-core.js';
 export type WorkerJob =
   | { id: number; kind: 'model'; model: unknown }
   | { id: number; kind: 'validate'; model: unknown }
-  | { id: number; kind: 'text'; text: string; limits: SizeLimits };
+  | { id: number; kind: 'bytes'; bytes: Uint8Array; limits: SizeLimits };
 
 /** What a worker answers. */
 export type WorkerReply =
-  | { id: number; ok: true; json: Uint8Array | null }
+  | { id: number; ok: true; chunks: Uint8Array[] | null }
   | { id: number; ok: false; error: { code: ErrorCode; message: string; issues: readonly ModelIssue[] } }
   | { id: number; ok: false; internal: string };
 
@@ -32,7 +32,8 @@ export type WorkerReply =
 export type PoolJob =
   | { kind: 'model'; model: unknown }
   | { kind: 'validate'; model: unknown }
-  | { kind: 'text'; text: string; limits: SizeLimits };
+  /** The raw body: its ArrayBuffer is transferred to the worker (the caller must not use it afterwards). */
+  | { kind: 'bytes'; bytes: Uint8Array; limits: SizeLimits };
 
 export interface SolverPoolOptions {
   /** worker threads */
@@ -47,7 +48,7 @@ export interface SolverPoolOptions {
 
 interface Pending {
   job: WorkerJob;
-  resolve: (json: Buffer | null) => void;
+  resolve: (json: Buffer[] | null) => void;
   reject: (err: Error) => void;
 }
 
@@ -120,8 +121,8 @@ export class SolverPool {
     return this.queue.length;
   }
 
-  /** Runs a job; resolves the solution's JSON bytes (null for 'validate'). */
-  run(job: PoolJob): Promise<Buffer | null> {
+  /** Runs a job; resolves the solution's JSON as chunks of bytes (null for 'validate'). */
+  run(job: PoolJob): Promise<Buffer[] | null> {
     if (this.closed) return Promise.reject(new HttpError('SN_BUSY', 'the server is shutting down'));
     return new Promise((resolve, reject) => {
       const pending: Pending = { job: { ...job, id: this.nextId++ } as WorkerJob, resolve, reject };
@@ -154,7 +155,9 @@ export class SolverPool {
   }
 
   private spawn(slot: Slot, script: string): Worker {
-    const worker = new Worker(script);
+    // A large young generation: a million-station solve allocates heavily, and the default one
+    // makes the collector promote and re-mark the growing heap again and again.
+    const worker = new Worker(script, { resourceLimits: { maxYoungGenerationSizeMb: 256 } });
     worker.on('message', (reply: WorkerReply) => this.finish(slot, worker, reply));
     worker.on('error', (err) => this.fault(slot, worker, `worker error: ${err.stack ?? err.message}`));
     worker.on('exit', (code) => {
@@ -207,7 +210,9 @@ export class SolverPool {
   }
 
   private post(_slot: Slot, worker: Worker, pending: Pending): void {
-    worker.postMessage(pending.job);
+    const job = pending.job;
+    if (job.kind === 'bytes') worker.postMessage(job, [job.bytes.buffer as ArrayBuffer]);
+    else worker.postMessage(job);
   }
 
   private finish(slot: Slot, worker: Worker, reply: WorkerReply): void {
@@ -216,7 +221,7 @@ export class SolverPool {
     if (slot.timer) clearTimeout(slot.timer);
     slot.timer = undefined;
     slot.current = undefined;
-    if (reply.ok) p.resolve(reply.json ? Buffer.from(reply.json.buffer, reply.json.byteOffset, reply.json.byteLength) : null);
+    if (reply.ok) p.resolve(reply.chunks ? reply.chunks.map((c) => Buffer.from(c.buffer, c.byteOffset, c.byteLength)) : null);
     else if ('error' in reply) p.reject(new HttpError(reply.error.code, reply.error.message, reply.error.issues));
     else {
       this.opts.onInternalError?.(reply.internal);

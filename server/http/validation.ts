@@ -24,7 +24,8 @@ export interface ValidationErrorLike {
 
 /** Marks a body that the route handles itself (a large solve parsed in a worker). */
 export class DeferredBody {
-  constructor(readonly text: string) {}
+  /** The raw bytes, in a buffer of their own (transferable to a worker). */
+  constructor(readonly bytes: Buffer) {}
 }
 
 /** Fastify validator compiler: exact for bodies, converting for query, params and headers. */

@@ -1,3 +1,4 @@
+import { Readable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cantilever, demo, errorOf, freeShaft, makeApp, type TestApp } from './helpers.js';
 
@@ -145,6 +146,37 @@ describe('POST /api/solve', () => {
       const mech = await post(w, freeShaft());
       expect(mech.statusCode).toBe(422);
       expect(errorOf(mech.body).error.issues[0].shafts).toEqual(['s']);
+    } finally {
+      await w.close();
+    }
+  });
+
+  it('a worker answer of several megabytes arrives whole (sent in chunks)', async () => {
+    const w = await makeApp({ workerThreshold: 0 });
+    try {
+      const model = cantilever(6000);
+      const [inline, worker] = await Promise.all([post(t, model), post(w, model)]);
+      expect(worker.statusCode).toBe(200);
+      expect(worker.body.length).toBeGreaterThan(2 * 1024 * 1024); // more than one 1 MiB chunk
+      expect(Number(worker.headers['content-length'])).toBe(Buffer.byteLength(worker.body));
+      expect(worker.body).toBe(inline.body); // byte for byte what JSON.stringify gives
+    } finally {
+      await w.close();
+    }
+  });
+
+  it('a large body sent without Content-Length (chunked) is solved in the worker too', async () => {
+    const w = await makeApp({ deferBytes: 1024 });
+    try {
+      const text = JSON.stringify(cantilever(40));
+      const r = await w.app.inject({
+        method: 'POST',
+        url: '/api/solve',
+        payload: Readable.from([text.slice(0, 700), text.slice(700)]),
+        headers: { 'content-type': 'application/json' },
+      });
+      expect(r.statusCode).toBe(200);
+      expect(r.json()).toEqual((await post(t, text)).json());
     } finally {
       await w.close();
     }

@@ -8,10 +8,12 @@
  * stalling the event loop, go to the worker pool with its time limit.
  * Rate limited per client address.
  */
+import { Readable } from 'node:stream';
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import type { FastifyReply } from 'fastify';
 import rateLimit from '@fastify/rate-limit';
 import { Model } from '../../../shared-types/model.js';
-import { Solution, type Solution as SolutionT } from '../../../shared-types/solution.js';
+import { Solution } from '../../../shared-types/solution.js';
 import { solveModel } from '../../engine/index.js';
 import { HttpError } from '../errors.js';
 import { errorResponses } from '../schemas.js';
@@ -26,6 +28,15 @@ export interface SolveOptions {
   readonly workerThreshold: number;
   /** solves per minute per address; 0 = no limit */
   readonly rateLimitPerMinute: number;
+}
+
+/** Sends a worker's answer: one buffer as is, several as a stream (never joined into one block). */
+function sendChunks(reply: FastifyReply, chunks: Buffer[]): FastifyReply {
+  reply.type('application/json; charset=utf-8');
+  if (chunks.length === 1) return reply.send(chunks[0]);
+  let length = 0;
+  for (const c of chunks) length += c.byteLength;
+  return reply.header('content-length', length).send(Readable.from(chunks));
 }
 
 const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) => {
@@ -58,14 +69,14 @@ const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) =
       const body: unknown = req.body;
       if (body instanceof DeferredBody) {
         // Too large to parse here without stalling other requests: the worker parses, checks and solves.
-        const json = await opts.pool.run({ kind: 'text', text: body.text, limits: opts.limits });
-        return reply.type('application/json; charset=utf-8').send(json as unknown as SolutionT);
+        const chunks = await opts.pool.run({ kind: 'bytes', bytes: body.bytes, limits: opts.limits });
+        return sendChunks(reply, chunks ?? []);
       }
       const size = checkSize(body, opts.limits);
       // A small solve runs here, unless a started worker is idle: then the two threads share the load.
       if (size.stations > opts.workerThreshold || opts.pool.hasIdleWorker()) {
-        const json = await opts.pool.run({ kind: 'model', model: body });
-        return reply.type('application/json; charset=utf-8').send(json as unknown as SolutionT);
+        const chunks = await opts.pool.run({ kind: 'model', model: body });
+        return sendChunks(reply, chunks ?? []);
       }
       return solveModel(body);
     },
