@@ -103,6 +103,9 @@ export interface ResolvedModel {
   readonly limits: { readonly twistRate: number | null; readonly totalTwist: number | null };
 }
 
+/** Smallest positive normal double: below it numbers lose precision and products underflow. */
+const MIN_NORMAL = 2.2250738585072014e-308;
+
 /** Most shape issues reported for one model: all of them for any real model, bounded against abuse. */
 export const MAX_REPORTED_ISSUES = 500;
 Settings.Set({ maxErrors: MAX_REPORTED_ISSUES });
@@ -376,6 +379,14 @@ class Resolver {
       }
       const rigidity = layers.reduce((sum, l) => sum + l.G * l.J, 0);
       const shearFactor = layers.reduce((mx, l) => Math.max(mx, l.G * l.rOuter), 0) / rigidity;
+      if (layers.length > 0 && length > 0 && layers.every((l) => l.G > 0 && l.G < Infinity && l.rOuter < Infinity)) {
+        // Sizes far outside any machine (a diameter of 1e-300 m) underflow or overflow G·J and G·J/L.
+        if (!(rigidity > MIN_NORMAL && rigidity < Infinity && shearFactor < Infinity)) {
+          this.issue('SN_OUT_OF_RANGE', sp + '/section', `the torsional rigidity G·J of section "${seg.section}" (${rigidity} N·m²) is out of numeric range: check the units of its diameters and modulus`);
+        } else if (!(rigidity / length < Infinity) || !(rigidity / length > MIN_NORMAL)) {
+          this.issue('SN_OUT_OF_RANGE', sp + '/length', `a length of ${length} m makes the stiffness G·J/L out of numeric range: check its unit`);
+        }
+      }
       return { index: j, sectionId: seg.section, z0, z1: z, layers, rigidity, shearFactor };
     });
     return { id: s.id, name: s.name, length: z, segments };

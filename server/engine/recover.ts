@@ -241,6 +241,7 @@ function shaftResult(
   const segPhiTo = new Float64Array(nSeg);
   let phiMin = Infinity;
   let phiMax = -Infinity;
+  const roots = new Float64Array(2);
   for (let e = e0; e < e0 + elemN; e++) {
     const d = first + (e - e0);
     const k = elemSegment[e];
@@ -287,7 +288,10 @@ function shaftResult(
         }
       }
       // Interior extremes of φ where T(s) = 0.
-      for (const x of quadraticRoots(-dt / (2 * h), -t1, T1)) {
+      const na = -dt / (2 * h);
+      const nr = quadraticRoots(na, -t1, T1, roots);
+      for (let r = 0; r < nr; r++) {
+        const x = roots[r];
         if (x > 0 && x < h) {
           const p = elementRotation(phi[d], T1, t1, dt, h, gj, x);
           if (p < phiMin) phiMin = p;
@@ -362,20 +366,26 @@ function elementRotation(phi1: number, T1: number, t1: number, dt: number, h: nu
 
 /** The first n values as a plain array (JSON writes typed arrays as objects). */
 function plain(a: Float64Array, n: number): number[] {
-  const out = new Array<number>(n);
-  for (let k = 0; k < n; k++) out[k] = a[k];
+  // Pushing keeps a packed array of unboxed doubles; new Array(n) of a large n would be a slow dictionary.
+  const out: number[] = [];
+  for (let k = 0; k < n; k++) out.push(a[k]);
   return out;
 }
 
-/** Real roots of a·x² + b·x + c (a may be 0), computed without cancellation. */
-function quadraticRoots(a: number, b: number, c: number): number[] {
-  if (a === 0) return b === 0 ? [] : [-c / b];
+/** Real roots of a·x² + b·x + c (a may be 0), computed without cancellation, into `out`; answers how many. */
+function quadraticRoots(a: number, b: number, c: number, out: Float64Array): number {
+  if (a === 0) {
+    if (b === 0) return 0;
+    out[0] = -c / b;
+    return 1;
+  }
   const disc = b * b - 4 * a * c;
-  if (disc < 0) return [];
+  if (disc < 0) return 0;
   const q = -0.5 * (b + Math.sign(b || 1) * Math.sqrt(disc));
-  const roots = [q / a];
-  if (q !== 0) roots.push(c / q);
-  return roots;
+  out[0] = q / a;
+  if (q === 0) return 1;
+  out[1] = c / q;
+  return 2;
 }
 
 /** Every check, worst utilisation first. */
@@ -421,7 +431,12 @@ function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): CheckResult[]
       });
     }
   }
-  return checks.sort((a, b) => b.utilisation - a.utilisation);
+  // Sort by a typed key (a comparator over a million objects costs seconds); stable for equal keys.
+  const key = Float64Array.from(checks, (c) => c.utilisation);
+  const order = Uint32Array.from(checks, (_, k) => k).sort((a, b) => key[b] - key[a] || a - b);
+  const sorted: CheckResult[] = [];
+  for (let k = 0; k < order.length; k++) sorted.push(checks[order[k]]);
+  return sorted;
 }
 
 /** Materials used by some segment without an allowable shear stress. */
