@@ -124,20 +124,14 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   }
 
   // Equilibrium of every shaft, summed from the recovered torques (not assumed).
-  const residuals = model.shafts.map((shaft, s) => {
-    let sum = 0;
-    let scale = 0;
-    for (let d = shaftStart[s]; d < shaftStart[s + 1]; d++) {
-      sum += applied[d];
-      scale = Math.max(scale, Math.abs(applied[d]));
-    }
-    for (const t of model.torques) if (t.shaft === s) sum += t.torque;
-    for (const dt of model.distributed) if (dt.shaft === s) sum += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
-    void scale;
-    return { shaft: shaft.id, residual: Math.abs(sum) };
-  });
+  const sums = new Float64Array(model.shafts.length);
+  for (let d = 0; d < applied.length; d++) sums[layout.shaftOf[d]] += applied[d];
+  for (const t of model.torques) sums[t.shaft] += t.torque;
+  for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
+  const residuals = model.shafts.map((shaft, s) => ({ shaft: shaft.id, residual: Math.abs(sums[s]) }));
 
   const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, asm, phi, TL, TR, s, diagramPoints));
+  if (workArrays.some((a) => a && a.length > 1 << 16)) workArrays.length = 0; // keep no large buffer alive between solves
   const checks = buildChecks(model, shafts);
   for (const mat of missingAllowables(model)) {
     warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
@@ -229,19 +223,21 @@ function shaftResult(
   // Diagram: breakpoints (two at a jump) plus interior points of loaded elements.
   const elemN = last - first;
   const cap = 1 + elemN * (2 + diagramPoints);
-  const dz = new Float64Array(cap);
-  const dT = new Float64Array(cap);
-  const dPhi = new Float64Array(cap);
-  const dTau = new Float64Array(cap);
+  // Work arrays reused across shafts: a gear tree has a hundred thousand small shafts.
+  const dz = work(0, cap);
+  const dT = work(1, cap);
+  const dPhi = work(2, cap);
+  const dTau = work(3, cap);
   let np = 0;
   const nSeg = shaft.segments.length;
-  const segMax = new Float64Array(nSeg);
-  const segAt = Float64Array.from(shaft.segments, (sg) => sg.z0);
-  const segPhiFrom = new Float64Array(nSeg).fill(Number.NaN);
-  const segPhiTo = new Float64Array(nSeg);
+  const segMax = work(4, nSeg).fill(0, 0, nSeg);
+  const segAt = work(5, nSeg);
+  for (let k = 0; k < nSeg; k++) segAt[k] = shaft.segments[k].z0;
+  const segPhiFrom = work(6, nSeg).fill(Number.NaN, 0, nSeg);
+  const segPhiTo = work(7, nSeg);
   let phiMin = Infinity;
   let phiMax = -Infinity;
-  const roots = new Float64Array(2);
+  const roots = work(8, 2);
   for (let e = e0; e < e0 + elemN; e++) {
     const d = first + (e - e0);
     const k = elemSegment[e];
@@ -352,6 +348,15 @@ function shaftResult(
     totalTwist: phiMax - phiMin,
     diagram: { z: plain(dz, np), torque: plain(dT, np), rotation: plain(dPhi, np), shear: plain(dTau, np) },
   };
+}
+
+const workArrays: Float64Array[] = [];
+
+/** Work array `slot` with room for at least n values (contents undefined). */
+function work(slot: number, n: number): Float64Array {
+  let a = workArrays[slot];
+  if (!a || a.length < n) workArrays[slot] = a = new Float64Array(Math.max(n, 2 * (a?.length ?? 16)));
+  return a;
 }
 
 /** T(s) inside an element: T1 − t1·s − (t2 − t1)·s²/(2h). */
