@@ -36,7 +36,18 @@ function sendChunks(reply: FastifyReply, chunks: Buffer[]): FastifyReply {
   if (chunks.length === 1) return reply.send(chunks[0]);
   let length = 0;
   for (const c of chunks) length += c.byteLength;
-  return reply.header('content-length', length).send(Readable.from(chunks));
+  // One chunk per turn of the event loop. On loopback the socket often takes each write at once, and
+  // the write-drain-write chain then runs on process.nextTick without ever yielding: a 600 MB answer
+  // would hold the loop for the whole send. setImmediate lets other requests in between chunks.
+  let next = 0;
+  const stream = new Readable({
+    highWaterMark: 1 << 20, // bytes
+    read() {
+      const chunk = next < chunks.length ? chunks[next++] : null;
+      setImmediate(() => this.push(chunk));
+    },
+  });
+  return reply.header('content-length', length).send(stream);
 }
 
 const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) => {
