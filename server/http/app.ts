@@ -102,7 +102,12 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   // JSON only: any other Content-Type is refused (400 SN_JSON), which also keeps plain HTML forms out.
   app.removeAllContentTypeParsers();
   app.addContentTypeParser('application/json', (req, payload, done) =>
-    readJsonBody(payload, req.headers['content-length'], maxBodyBytes, req.routeOptions.url === '/api/solve' ? deferBytes : Infinity, done),
+    readJsonBody(payload, req.headers['content-length'], {
+      limit: maxBodyBytes,
+      deferBytes: req.routeOptions.url === '/api/solve' ? deferBytes : Infinity,
+      // A route that takes no body (archive, restore, sign-out) accepts an empty one sent as JSON.
+      emptyAllowed: req.routeOptions.schema?.body === undefined,
+    }, done),
   );
 
   app.setErrorHandler((err, req, reply) => {

@@ -25,15 +25,16 @@ function badLength(): HttpError {
 
 /**
  * Reads the body: a parsed JSON value, or a DeferredBody for a large one
- * (`deferBytes`: Infinity to always parse here). Errors: 413 over `limit`, 400 SN_JSON.
+ * (`deferBytes`: Infinity to always parse here), or undefined for an empty one
+ * where `emptyAllowed`. Errors: 413 over `limit` bytes, 400 SN_JSON.
  */
 export function readJsonBody(
   payload: IncomingMessage,
   contentLength: string | undefined,
-  limit: number,
-  deferBytes: number,
+  opts: { limit: number; deferBytes: number; emptyAllowed: boolean },
   done: (err: Error | null, body?: unknown) => void,
 ): void {
+  const { limit, deferBytes } = opts;
   const declared = contentLength === undefined ? NaN : Number(contentLength);
   if (declared > limit) {
     payload.resume(); // drain what the client sends; the answer goes out at once
@@ -72,6 +73,7 @@ export function readJsonBody(
       bytes.copy(own);
       return finish(null, new DeferredBody(own));
     }
+    if (received === 0 && opts.emptyAllowed) return finish(null, undefined);
     try {
       finish(null, parseJsonText(bytes.toString('utf8')));
     } catch (err) {
