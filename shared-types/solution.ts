@@ -141,7 +141,7 @@ export const Solution = Type.Object(
       maxResidual: Num,
       shafts: Type.Array(Type.Object({ shaft: Type.String(), residual: Num })),
     }),
-    /** Every check, worst utilisation first. */
+    /** The checks, worst utilisation first: all of them up to 10,000, else the worst 10,000 (stats.checksEvaluated counts all). */
     checks: Type.Array(CheckResult),
     warnings: Type.Array(Warning),
     stats: Type.Object({
@@ -149,6 +149,8 @@ export const Solution = Type.Object(
       unknowns: Type.Integer(),
       /** Nonzeros of the factor L (without the diagonal): fill. */
       factorNonzeros: Type.Integer(),
+      /** Checks evaluated (the list holds at most 10,000, worst first). */
+      checksEvaluated: Type.Integer(),
     }),
   },
   { $id: 'Solution', description: 'The answer for a model, SI units.' },

@@ -86,7 +86,7 @@ export function solveResolved(model: ResolvedModel, options: SolveOptions = {}):
     equilibrium: { maxResidual, shafts: rec.residuals },
     checks: rec.checks,
     warnings: [...rec.warnings, ...warnings],
-    stats: { stations: layout.dofCount, unknowns: asm.reduction.varCount, factorNonzeros },
+    stats: { stations: layout.dofCount, unknowns: asm.reduction.varCount, factorNonzeros, checksEvaluated: rec.checksEvaluated },
   };
 }
 

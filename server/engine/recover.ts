@@ -20,6 +20,8 @@ export interface Recovered {
   readonly couplings: CouplingResult[];
   readonly residuals: Array<{ shaft: string; residual: number }>;
   readonly checks: CheckResult[];
+  /** Checks evaluated; more than listed when over MAX_LISTED_CHECKS. */
+  readonly checksEvaluated: number;
   readonly warnings: Warning[];
 }
 
@@ -136,7 +138,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   for (const mat of missingAllowables(model)) {
     warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
   }
-  return { shafts, reactions, gearMeshes, couplings, residuals, checks, warnings };
+  return { shafts, reactions, gearMeshes, couplings, residuals, checks: checks.list, checksEvaluated: checks.total, warnings };
 }
 
 /**
@@ -220,24 +222,32 @@ function shaftResult(
       torqueRight: d === last ? null : TL[d - s],
     });
   }
-  // Diagram: breakpoints (two at a jump) plus interior points of loaded elements.
+  // Diagram: breakpoints (two at a jump) plus interior points of loaded elements,
+  // at most DIAGRAM_INTERIOR_BUDGET of them per shaft: with that many elements the
+  // breakpoints alone already trace the curve.
   const elemN = last - first;
-  const cap = 1 + elemN * (2 + diagramPoints);
-  // Work arrays reused across shafts: a gear tree has a hundred thousand small shafts.
-  const dz = work(0, cap);
-  const dT = work(1, cap);
-  const dPhi = work(2, cap);
-  const dTau = work(3, cap);
-  let np = 0;
+  let loadedElements = 0;
+  for (let e = e0; e < e0 + elemN; e++) if (elemT1[e] !== 0 || elemT2[e] !== 0) loadedElements++;
+  const interior = Math.min(diagramPoints, Math.floor(DIAGRAM_INTERIOR_BUDGET / Math.max(1, loadedElements)));
+  const dz: number[] = [];
+  const dT: number[] = [];
+  const dPhi: number[] = [];
+  const dTau: number[] = [];
+  const point = (zz: number, T: number, p: number, tau: number) => {
+    dz.push(zz);
+    dT.push(T);
+    dPhi.push(p);
+    dTau.push(tau);
+  };
   const nSeg = shaft.segments.length;
-  const segMax = work(4, nSeg).fill(0, 0, nSeg);
-  const segAt = work(5, nSeg);
+  const segMax = work(0, nSeg).fill(0, 0, nSeg);
+  const segAt = work(1, nSeg);
   for (let k = 0; k < nSeg; k++) segAt[k] = shaft.segments[k].z0;
-  const segPhiFrom = work(6, nSeg).fill(Number.NaN, 0, nSeg);
-  const segPhiTo = work(7, nSeg);
+  const segPhiFrom = work(2, nSeg).fill(Number.NaN, 0, nSeg);
+  const segPhiTo = work(3, nSeg);
   let phiMin = Infinity;
   let phiMax = -Infinity;
-  const roots = work(8, 2);
+  const roots = work(4, 2);
   for (let e = e0; e < e0 + elemN; e++) {
     const d = first + (e - e0);
     const k = elemSegment[e];
@@ -264,12 +274,7 @@ function shaftResult(
     if (phi[d + 1] < phiMin) phiMin = phi[d + 1];
     if (phi[d + 1] > phiMax) phiMax = phi[d + 1];
     // Point at z[d]; a second point at the same z shows a jump.
-    if (np === 0 || dT[np - 1] !== T1) {
-      dz[np] = z[d];
-      dT[np] = T1;
-      dPhi[np] = phi[d];
-      dTau[np++] = c * T1;
-    }
+    if (dT.length === 0 || dT[dT.length - 1] !== T1) point(z[d], T1, phi[d], c * T1);
     if (t1 !== 0 || t2 !== 0) {
       const dt = t2 - t1;
       // Interior extreme of T where t(s) = 0.
@@ -294,23 +299,16 @@ function shaftResult(
           if (p > phiMax) phiMax = p;
         }
       }
-      for (let m = 1; m <= diagramPoints; m++) {
-        const x = (h * m) / (diagramPoints + 1);
+      for (let m = 1; m <= interior; m++) {
+        const x = (h * m) / (interior + 1);
         const T = elementTorque(T1, t1, dt, h, x);
-        dz[np] = z[d] + x;
-        dT[np] = T;
-        dPhi[np] = elementRotation(phi[d], T1, t1, dt, h, gj, x);
-        dTau[np++] = c * T;
+        point(z[d] + x, T, elementRotation(phi[d], T1, t1, dt, h, gj, x), c * T);
       }
     }
-    dz[np] = z[d + 1];
-    dT[np] = T2;
-    dPhi[np] = phi[d + 1];
-    dTau[np++] = c * T2;
+    point(z[d + 1], T2, phi[d + 1], c * T2);
   }
   if (elemN === 0) {
-    dz[np] = z[first];
-    dPhi[np++] = phi[first];
+    point(z[first], 0, phi[first], 0);
     phiMin = phiMax = phi[first];
   }
   const segments: SegmentResult[] = shaft.segments.map((sg, k) => {
@@ -346,9 +344,12 @@ function shaftResult(
     stations,
     segments,
     totalTwist: phiMax - phiMin,
-    diagram: { z: plain(dz, np), torque: plain(dT, np), rotation: plain(dPhi, np), shear: plain(dTau, np) },
+    diagram: { z: dz, torque: dT, rotation: dPhi, shear: dTau },
   };
 }
+
+/** Interior diagram points per shaft at most. */
+const DIAGRAM_INTERIOR_BUDGET = 50_000;
 
 const workArrays: Float64Array[] = [];
 
@@ -369,14 +370,6 @@ function elementRotation(phi1: number, T1: number, t1: number, dt: number, h: nu
   return phi1 + (T1 * x - (t1 * x * x) / 2 - (dt * x * x * x) / (6 * h)) / gj;
 }
 
-/** The first n values as a plain array (JSON writes typed arrays as objects). */
-function plain(a: Float64Array, n: number): number[] {
-  // Pushing keeps a packed array of unboxed doubles; new Array(n) of a large n would be a slow dictionary.
-  const out: number[] = [];
-  for (let k = 0; k < n; k++) out.push(a[k]);
-  return out;
-}
-
 /** Real roots of a·x² + b·x + c (a may be 0), computed without cancellation, into `out`; answers how many. */
 function quadraticRoots(a: number, b: number, c: number, out: Float64Array): number {
   if (a === 0) {
@@ -393,55 +386,84 @@ function quadraticRoots(a: number, b: number, c: number, out: Float64Array): num
   return 2;
 }
 
-/** Every check, worst utilisation first. */
-function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): CheckResult[] {
-  const checks: CheckResult[] = [];
+/** Most checks listed in a solution; every utilisation is also in shafts[].segments[].layers[]. */
+export const MAX_LISTED_CHECKS = 10_000;
+
+/**
+ * The checks, worst utilisation first: at most MAX_LISTED_CHECKS of them (a
+ * million-segment model has a million checks; the table wants the worst).
+ * Candidates are gathered in typed arrays and objects are made only for the
+ * ones listed. Answers the list and how many checks were evaluated.
+ */
+function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: CheckResult[]; total: number } {
   const { twistRate, totalTwist } = model.limits;
+  let n = 0;
   for (const sr of shafts) {
     for (const seg of sr.segments) {
-      seg.layers.forEach((l, k) => {
-        if (l.allowableShear === null) return;
-        checks.push({
-          kind: 'shear',
-          shaft: sr.id,
-          segment: seg.index,
-          layer: k,
-          material: l.material,
-          value: l.maxShear,
-          limit: l.allowableShear,
-          utilisation: l.maxShear / l.allowableShear,
-          pass: l.maxShear <= l.allowableShear,
-        });
-      });
+      for (const l of seg.layers) if (l.allowableShear !== null) n++;
+      if (twistRate !== null) n++;
+    }
+    if (totalTwist !== null) n++;
+  }
+  // kind: 0 shear, 1 twist rate, 2 total twist; where: shaft, segment, layer.
+  const kind = new Uint8Array(n);
+  const shaftIx = new Int32Array(n);
+  const segIx = new Int32Array(n);
+  const layerIx = new Int32Array(n);
+  const value = new Float64Array(n);
+  const limit = new Float64Array(n);
+  let k = 0;
+  shafts.forEach((sr, s) => {
+    for (const seg of sr.segments) {
+      for (let j = 0; j < seg.layers.length; j++) {
+        const l = seg.layers[j];
+        if (l.allowableShear === null) continue;
+        kind[k] = 0;
+        shaftIx[k] = s;
+        segIx[k] = seg.index;
+        layerIx[k] = j;
+        value[k] = l.maxShear;
+        limit[k++] = l.allowableShear;
+      }
       if (twistRate !== null) {
-        checks.push({
-          kind: 'twistRate',
-          shaft: sr.id,
-          segment: seg.index,
-          value: seg.maxTwistRate,
-          limit: twistRate,
-          utilisation: seg.maxTwistRate / twistRate,
-          pass: seg.maxTwistRate <= twistRate,
-        });
+        kind[k] = 1;
+        shaftIx[k] = s;
+        segIx[k] = seg.index;
+        value[k] = seg.maxTwistRate;
+        limit[k++] = twistRate;
       }
     }
     if (totalTwist !== null) {
-      checks.push({
-        kind: 'totalTwist',
-        shaft: sr.id,
-        value: sr.totalTwist,
-        limit: totalTwist,
-        utilisation: sr.totalTwist / totalTwist,
-        pass: sr.totalTwist <= totalTwist,
-      });
+      kind[k] = 2;
+      shaftIx[k] = s;
+      value[k] = sr.totalTwist;
+      limit[k++] = totalTwist;
     }
+  });
+  const util = new Float64Array(n);
+  for (let m = 0; m < n; m++) util[m] = value[m] / limit[m];
+  // Threshold of the worst MAX_LISTED_CHECKS by a native numeric sort of a copy.
+  let chosen: number[] = [];
+  if (n <= MAX_LISTED_CHECKS) {
+    for (let m = 0; m < n; m++) chosen.push(m);
+  } else {
+    const sorted = util.slice().sort();
+    const threshold = sorted[n - MAX_LISTED_CHECKS];
+    for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] > threshold) chosen.push(m);
+    for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] === threshold) chosen.push(m);
   }
-  // Sort by a typed key (a comparator over a million objects costs seconds); stable for equal keys.
-  const key = Float64Array.from(checks, (c) => c.utilisation);
-  const order = Uint32Array.from(checks, (_, k) => k).sort((a, b) => key[b] - key[a] || a - b);
-  const sorted: CheckResult[] = [];
-  for (let k = 0; k < order.length; k++) sorted.push(checks[order[k]]);
-  return sorted;
+  chosen = chosen.sort((x, y) => util[y] - util[x] || x - y);
+  const list = chosen.map((m): CheckResult => {
+    const shaft = shafts[shaftIx[m]];
+    const base = { shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass: value[m] <= limit[m] };
+    if (kind[m] === 0) {
+      const material = shaft.segments[segIx[m]].layers[layerIx[m]].material;
+      return { kind: 'shear', ...base, segment: segIx[m], layer: layerIx[m], material };
+    }
+    if (kind[m] === 1) return { kind: 'twistRate', ...base, segment: segIx[m] };
+    return { kind: 'totalTwist', ...base };
+  });
+  return { list, total: n };
 }
 
 /** Materials used by some segment without an allowable shear stress. */
