@@ -105,11 +105,6 @@ export class SolverPool {
     return { busy, total: this.slots.length };
   }
 
-  /** True when a worker is started and idle: a small job sent now starts at once. */
-  hasIdleWorker(): boolean {
-    return !this.closed && this.slots.some((s) => s.worker !== undefined && !s.current);
-  }
-
   /** Starts every worker now rather than on the first job (a server warms up; tests stay lazy). */
   async warm(): Promise<void> {
     const script = await workerScript();
