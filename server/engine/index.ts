@@ -20,6 +20,8 @@ export interface SolveOptions {
   solver?: 'sparse' | 'dense';
   /** Interior diagram points per element where T(z) is curved (default 8); 0 keeps breakpoints only. */
   diagramPoints?: number;
+  /** Called after each phase ('stations', 'assemble', 'factorise', 'recover') with its duration, ms. */
+  onPhase?: (phase: 'stations' | 'assemble' | 'factorise' | 'recover', ms: number) => void;
 }
 
 /** Solves a model (raw JSON, units as typed). Throws ModelError for a model it cannot solve. */
@@ -29,9 +31,19 @@ export function solveModel(model: unknown, options: SolveOptions = {}): Solution
 
 /** Solves an already normalised model (the benchmark times this part: parsing excluded). */
 export function solveResolved(model: ResolvedModel, options: SolveOptions = {}): Solution {
+  const phase = options.onPhase;
+  let t0 = phase ? performance.now() : 0;
+  const lap = (name: 'stations' | 'assemble' | 'factorise' | 'recover') => {
+    if (!phase) return;
+    const t = performance.now();
+    phase(name, t - t0);
+    t0 = t;
+  };
   const layout = buildStations(model);
+  lap('stations');
   const asm = assemble(model, layout);
   assertNoMechanism(model, layout, asm);
+  lap('assemble');
   let x: Float64Array;
   let factorNonzeros = 0;
   const warnings = [];
@@ -66,8 +78,10 @@ export function solveResolved(model: ResolvedModel, options: SolveOptions = {}):
     }
     throw err;
   }
+  lap('factorise');
   const phi = expandRotations(asm, x);
   const rec = recover(model, layout, asm, phi, options.diagramPoints ?? 8);
+  lap('recover');
   const maxResidual = rec.residuals.reduce((m, r) => Math.max(m, r.residual), 0);
   const torqueScale = rec.shafts.reduce((m, sh) => sh.segments.reduce((mm, sg) => Math.max(mm, sg.maxAbsTorque), m), 0);
   if (maxResidual > 1e-8 * torqueScale) {
