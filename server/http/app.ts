@@ -130,6 +130,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     contentSecurityPolicy: { useDefaults: false, directives: CLIENT_CSP },
     // The server speaks plain HTTP on the team's network; TLS, if any, is a proxy's business.
     strictTransportSecurity: false,
+    // Agrees with frame-ancestors 'none' for browsers that only read the older header.
+    xFrameOptions: { action: 'deny' },
   });
   await app.register(cookie);
   await app.register(swagger, {

@@ -12,7 +12,6 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import http from 'node:http';
 import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
@@ -118,18 +117,24 @@ function cannon(opts: Record<string, unknown>): { done: Promise<AutocannonResult
   return { done, stop: () => inst?.stop() };
 }
 
-/** POSTs a body and reads the whole answer; resolves status, bytes and seconds. */
-function postBig(url: URL, body: string): Promise<{ status: number; bytes: number; seconds: number }> {
-  const t0 = performance.now();
-  return new Promise((resolve, reject) => {
-    const req = http.request(new URL('/api/solve', url), { method: 'POST', headers: { 'content-type': 'application/json', 'content-length': Buffer.byteLength(body) } }, (res) => {
-      let bytes = 0;
-      res.on('data', (c: Buffer) => (bytes += c.length));
-      res.on('end', () => resolve({ status: res.statusCode ?? 0, bytes, seconds: (performance.now() - t0) / 1000 }));
-      res.on('error', reject);
+/**
+ * POSTs the big model from a separate process (so that reading a 600 MB answer
+ * never delays the load generator in this one) and resolves status, bytes and seconds.
+ */
+function postBig(url: URL, file: string): Promise<{ status: number; bytes: number; seconds: number }> {
+  const script = `
+    const http = require('node:http'); const fs = require('node:fs');
+    const body = fs.readFileSync(${JSON.stringify(file)}); const t0 = performance.now();
+    const req = http.request(${JSON.stringify(new URL('/api/solve', url).href)}, { method: 'POST', headers: { 'content-type': 'application/json', 'content-length': body.length } }, (res) => {
+      let bytes = 0; res.on('data', (c) => (bytes += c.length));
+      res.on('end', () => console.log(JSON.stringify({ status: res.statusCode, bytes, seconds: (performance.now() - t0) / 1000 })));
     });
-    req.on('error', reject);
-    req.end(body);
+    req.on('error', (e) => { console.error(e.message); process.exit(1); }); req.end(body);`;
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, ['-e', script], { stdio: ['ignore', 'pipe', 'inherit'] });
+    let out = '';
+    child.stdout!.on('data', (d: Buffer) => (out += String(d)));
+    child.on('exit', (code) => (code === 0 ? resolve(JSON.parse(out)) : reject(new Error(`big solve client exited with ${code}`))));
   });
 }
 
@@ -160,13 +165,15 @@ async function main(): Promise<void> {
     rows.push(row('health alone, 10 connections', await cannon({ ...healthOpts, duration: Math.min(5, SECONDS) }).done));
 
     const bigText = bigModelText();
+    const bigFile = path.join(dataDir, 'big-model.json');
+    fs.writeFileSync(bigFile, bigText);
     notes.push(`big model: ${BIG_STATIONS} stations, ${(bigText.length / 1e6).toFixed(1)} MB of JSON`);
     for (const [label, opts] of [
       ['health during a 1e6-station solve', healthOpts],
       ['small solves during a 1e6-station solve', smallOpts],
     ] as const) {
       const load = cannon({ ...opts, duration: 120 }); // stopped when the big solve ends
-      const big = await postBig(url, bigText);
+      const big = await postBig(url, bigFile);
       load.stop();
       const r = await load.done;
       rows.push(row(label, r, `big solve: ${big.status}, ${big.seconds.toFixed(1)} s, ${(big.bytes / 1e6).toFixed(0)} MB answer`));

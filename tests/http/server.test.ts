@@ -29,7 +29,7 @@ describe('server', () => {
       const r = await t.app.inject({ method: 'GET', url });
       expect(r.headers['content-security-policy'], url).toBe(CSP);
       expect(r.headers['x-content-type-options']).toBe('nosniff');
-      expect(r.headers['x-frame-options']).toBe('SAMEORIGIN');
+      expect(r.headers['x-frame-options']).toBe('DENY');
       expect(r.headers['strict-transport-security']).toBeUndefined();
     }
   });
