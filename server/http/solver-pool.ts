@@ -7,6 +7,7 @@
  * its worker is terminated (the only way to stop a synchronous solve) and
  * replaced on demand. Workers start lazily, on the first large job.
  */
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -72,15 +73,21 @@ function workerScript(): Promise<string> {
   if (fs.existsSync(js)) return Promise.resolve(js);
   sourceWorker ??= (async () => {
     const ts = fileURLToPath(new URL('./solve-worker.ts', import.meta.url));
-    const dir = path.join(packageRoot(), 'node_modules', '.cache', 'shaftnet');
-    fs.mkdirSync(dir, { recursive: true });
-    const outfile = path.join(dir, `solve-worker-${process.pid}.mjs`);
     const esbuild = (await import('esbuild' as string)) as {
-      build(o: Record<string, unknown>): Promise<unknown>;
+      build(o: Record<string, unknown>): Promise<{ outputFiles: Array<{ contents: Uint8Array }> }>;
     };
-    await esbuild.build({ entryPoints: [ts], outfile, bundle: true, platform: 'node', format: 'esm', packages: 'external', logLevel: 'silent' });
-    process.once('exit', () => fs.rmSync(outfile, { force: true }));
-    return outfile;
+    const built = await esbuild.build({ entryPoints: [ts], bundle: true, platform: 'node', format: 'esm', packages: 'external', write: false, logLevel: 'silent' });
+    const code = built.outputFiles[0].contents;
+    // Named by content: processes share one file per version of the sources, and none is left per process.
+    const dir = path.join(packageRoot(), 'node_modules', '.cache', 'shaftnet');
+    const file = path.join(dir, `solve-worker-${createHash('sha256').update(code).digest('hex').slice(0, 16)}.mjs`);
+    if (!fs.existsSync(file)) {
+      fs.mkdirSync(dir, { recursive: true });
+      const tmp = `${file}.${process.pid}.tmp`;
+      fs.writeFileSync(tmp, code);
+      fs.renameSync(tmp, file); // atomic: a concurrent reader never sees half a file
+    }
+    return file;
   })();
   return sourceWorker;
 }
