@@ -3,7 +3,7 @@
  * message, client field marker) carries one of these codes, a JSON pointer into
  * the model where one applies, and a message. Codes are stable: clients may
  * branch on them. `tests/shared-types/errors.test.ts` checks that every code is
- * documented in docs/errors.md.
+ * documented, with its status, in README.md's error table.
  */
 
 export interface ErrorCodeInfo {

@@ -364,12 +364,17 @@ class Resolver {
   private shaft(s: ModelT['shafts'][number], i: number): ResolvedShaft {
     const base = pointer('shafts', i);
     if (!this.shaftIndex.has(s.id)) this.shaftIndex.set(s.id, i);
+    // Segment ends by compensated (Neumaier) summation: correctly rounded, so a point typed at a
+    // segment end ("0.999999") meets it even after a million segments of 1e-6 m.
     let z = 0;
+    let carry = 0;
     const segments = s.segments.map((seg, j): ResolvedSegment => {
       const sp = `${base}/segments/${j}`;
       const length = this.positive(seg.length, 'length', sp + '/length');
-      const z0 = z;
-      z += length;
+      const z0 = z + carry;
+      const t = z + length;
+      carry += Math.abs(z) >= Math.abs(length) ? z - t + length : length - t + z;
+      z = t;
       const si = this.sectionIndex.get(seg.section);
       let layers: SectionLayer[] = [];
       if (si === undefined) {
@@ -387,9 +392,9 @@ class Resolver {
           this.issue('SN_OUT_OF_RANGE', sp + '/length', `a length of ${length} m makes the stiffness G·J/L out of numeric range: check its unit`);
         }
       }
-      return { index: j, sectionId: seg.section, z0, z1: z, layers, rigidity, shearFactor };
+      return { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor };
     });
-    return { id: s.id, name: s.name, length: z, segments };
+    return { id: s.id, name: s.name, length: z + carry, segments };
   }
 
   private readonly sectionCache = new Map<string, SectionLayer[]>();
