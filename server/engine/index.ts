@@ -113,7 +113,8 @@ export function solveResolved(model: ResolvedModel, options: SolveOptions = {}):
  */
 function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array) => Float64Array): Float64Array {
   let best = springResidual(asm, x);
-  for (let step = 0; step < 3 && best.norm > 0; step++) {
+  // Below a few ulps of the torques summed into it, the residual is round-off: nothing to gain.
+  for (let step = 0; step < 3 && best.norm > 16 * Number.EPSILON * best.scale; step++) {
     const dx = solve(best.r);
     const y = new Float64Array(x.length);
     for (let k = 0; k < x.length; k++) y[k] = x[k] + dx[k];
@@ -126,10 +127,11 @@ function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array) => Floa
 }
 
 /** f − K·x of the reduced system, summed over the springs in difference form; with its largest entry. */
-function springResidual(asm: Assembly, x: Float64Array): { r: Float64Array; norm: number } {
+function springResidual(asm: Assembly, x: Float64Array): { r: Float64Array; norm: number; scale: number } {
   const { springs: s, load } = asm;
   const { varOf, alpha, beta } = asm.reduction;
   const r = new Float64Array(x.length);
+  let scale = 0;
   for (let m = 0; m < s.count; m++) {
     const i = s.i[m];
     const j = s.j[m];
@@ -139,16 +141,20 @@ function springResidual(asm: Assembly, x: Float64Array): { r: Float64Array; norm
     const pi = s.p[m] * (u >= 0 ? alpha[i] * x[u] + beta[i] : beta[i]);
     const qj = j >= 0 ? s.q[m] * (v >= 0 ? alpha[j] * x[v] + beta[j] : beta[j]) : 0;
     const f = s.k[m] * (pi + qj - s.c[m]);
-    if (u >= 0) r[u] -= f * s.p[m] * alpha[i];
-    if (v >= 0) r[v] -= f * s.q[m] * alpha[j];
+    const fu = f * s.p[m] * alpha[i];
+    const fv = f * s.q[m] * (j >= 0 ? alpha[j] : 0);
+    if (u >= 0) r[u] -= fu;
+    if (v >= 0) r[v] -= fv;
+    scale = Math.max(scale, Math.abs(fu), Math.abs(fv));
   }
   for (let d = 0; d < load.length; d++) {
     const u = varOf[d];
     if (u >= 0 && load[d] !== 0) r[u] += alpha[d] * load[d];
+    scale = Math.max(scale, Math.abs(load[d]));
   }
   let norm = 0;
   for (let k = 0; k < r.length; k++) norm = Math.max(norm, Math.abs(r[k]));
-  return { r, norm };
+  return { r, norm, scale };
 }
 
 /** Throws SN_MECHANISM naming the shafts of every group free to turn. */
