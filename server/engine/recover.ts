@@ -132,7 +132,18 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
   const residuals = model.shafts.map((shaft, s) => ({ shaft: shaft.id, residual: Math.abs(sums[s]) }));
 
-  const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, asm, phi, TL, TR, s, diagramPoints));
+  // Stations where T may jump: a point torque, a support or a connection acts there.
+  const jumps = new Uint8Array(layout.dofCount);
+  for (const t of model.torques) jumps[layout.stationAt(t.shaft, t.z)] = 1;
+  for (const e of edges) {
+    jumps[e.i] = 1;
+    if (e.j >= 0) jumps[e.j] = 1;
+  }
+  for (let m = elemCount; m < springs.count; m++) {
+    jumps[springs.i[m]] = 1;
+    if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
+  }
+  const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, phi, TL, TR, jumps, s, diagramPoints));
   if (workArrays.some((a) => a && a.length > 1 << 16)) workArrays.length = 0; // keep no large buffer alive between solves
   const checks = buildChecks(model, shafts);
   for (const mat of missingAllowables(model)) {
@@ -201,10 +212,10 @@ function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float6
 function shaftResult(
   model: ResolvedModel,
   layout: StationLayout,
-  asm: Assembly,
   phi: Float64Array,
   TL: Float64Array,
   TR: Float64Array,
+  jumps: Uint8Array,
   s: number,
   diagramPoints: number,
 ): ShaftResult {
@@ -273,8 +284,8 @@ function shaftResult(
     if (phi[d] > phiMax) phiMax = phi[d];
     if (phi[d + 1] < phiMin) phiMin = phi[d + 1];
     if (phi[d + 1] > phiMax) phiMax = phi[d + 1];
-    // Point at z[d]; a second point at the same z shows a jump.
-    if (dT.length === 0 || dT[dT.length - 1] !== T1) point(z[d], T1, phi[d], c * T1);
+    // A second point at the same z draws a jump; elsewhere T is continuous (up to round-off).
+    if (dT.length === 0 || (jumps[d] && dT[dT.length - 1] !== T1)) point(z[d], T1, phi[d], c * T1);
     if (t1 !== 0 || t2 !== 0) {
       const dt = t2 - t1;
       // Interior extreme of T where t(s) = 0.
@@ -336,7 +347,6 @@ function shaftResult(
       }),
     };
   });
-  void asm;
   return {
     id: shaft.id,
     ...(shaft.name === undefined ? {} : { name: shaft.name }),
