@@ -92,10 +92,15 @@ export class ModelError extends Error {
 
 /** Escapes one key for a JSON pointer (RFC 6901). */
 export function pointerToken(key: string | number): string {
-  return String(key).replace(/~/g, '~0').replace(/\//g, '~1');
+  if (typeof key === 'number') return String(key);
+  // Most keys need no escaping; this runs for every field of a model.
+  if (!key.includes('~') && !key.includes('/')) return key;
+  return key.replace(/~/g, '~0').replace(/\//g, '~1');
 }
 
 /** Joins keys into a JSON pointer. */
 export function pointer(...keys: Array<string | number>): string {
-  return keys.map((k) => '/' + pointerToken(k)).join('');
+  let out = '';
+  for (const k of keys) out += '/' + pointerToken(k);
+  return out;
 }

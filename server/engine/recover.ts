@@ -465,13 +465,13 @@ function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: Check
   chosen = chosen.sort((x, y) => util[y] - util[x] || x - y);
   const list = chosen.map((m): CheckResult => {
     const shaft = shafts[shaftIx[m]];
-    const base = { shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass: value[m] <= limit[m] };
+    const pass = value[m] <= limit[m];
     if (kind[m] === 0) {
       const material = shaft.segments[segIx[m]].layers[layerIx[m]].material;
-      return { kind: 'shear', ...base, segment: segIx[m], layer: layerIx[m], material };
+      return { kind: 'shear', shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass, segment: segIx[m], layer: layerIx[m], material };
     }
-    if (kind[m] === 1) return { kind: 'twistRate', ...base, segment: segIx[m] };
-    return { kind: 'totalTwist', ...base };
+    if (kind[m] === 1) return { kind: 'twistRate', shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass, segment: segIx[m] };
+    return { kind: 'totalTwist', shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass };
   });
   return { list, total: n };
 }
