@@ -11,6 +11,7 @@ import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import { reduceConstraints, type Reduction, type RigidEdge } from './constraints.js';
 import type { SymmetricEntries } from './sparse-solver.js';
+import { f64, i32, i32Copy, u8 } from './arena.js';
 
 /** All elastic parts as springs; the first `elemCount` are the shaft elements, in element order. */
 export interface SpringSet {
@@ -71,18 +72,18 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
   const springs = {
     count,
     elemCount,
-    k: new Float64Array(count),
-    i: new Int32Array(count),
-    j: new Int32Array(count),
-    p: new Float64Array(count),
-    q: new Float64Array(count),
-    c: new Float64Array(count),
+    k: f64(count),
+    i: i32(count),
+    j: i32(count),
+    p: f64(count),
+    q: f64(count),
+    c: f64(count),
     kind: extra.map((e) => e.kind),
     ref: new Int32Array(extra.map((e) => e.ref)),
   };
-  const load = new Float64Array(layout.dofCount);
-  const elemF1 = new Float64Array(elemCount);
-  const elemF2 = new Float64Array(elemCount);
+  const load = f64(layout.dofCount);
+  const elemF1 = f64(elemCount);
+  const elemF2 = f64(elemCount);
   for (let e = 0; e < elemCount; e++) {
     const left = elemLeft[e];
     const h = z[left + 1] - z[left];
@@ -123,11 +124,11 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
 function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction): { system: SymmetricEntries; rhs: Float64Array } {
   const n = red.varCount;
   const { varOf, alpha, beta } = red;
-  const diag = new Float64Array(n);
-  const rhs = new Float64Array(n);
-  const rows = new Int32Array(s.count);
-  const cols = new Int32Array(s.count);
-  const vals = new Float64Array(s.count);
+  const diag = f64(n);
+  const rhs = f64(n);
+  const rows = i32(s.count);
+  const cols = i32(s.count);
+  const vals = f64(s.count);
   let nnz = 0;
   for (let m = 0; m < s.count; m++) {
     const k = s.k[m];
@@ -176,8 +177,8 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
   const n = red.varCount;
   const { varOf, alpha } = red;
   // Adjacency over unknowns, with the coefficients of each spring.
-  const deg = new Int32Array(n + 1);
-  const anchored = new Uint8Array(n);
+  const deg = i32(n + 1);
+  const anchored = u8(n);
   for (let m = 0; m < s.count; m++) {
     const u = varOf[s.i[m]];
     const v = s.j[m] >= 0 ? varOf[s.j[m]] : -1;
@@ -192,9 +193,9 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     else if (v >= 0 && cv !== 0) anchored[v] = 1;
   }
   for (let k = 0; k < n; k++) deg[k + 1] += deg[k];
-  const adjV = new Int32Array(deg[n]);
-  const adjR = new Float64Array(deg[n]); // ratio ρ_v/ρ_u that makes the spring strain-free
-  const fill = deg.slice(0, n);
+  const adjV = i32(deg[n]);
+  const adjR = f64(deg[n]); // ratio ρ_v/ρ_u that makes the spring strain-free
+  const fill = i32Copy(deg, n);
   for (let m = 0; m < s.count; m++) {
     const u = varOf[s.i[m]];
     const v = s.j[m] >= 0 ? varOf[s.j[m]] : -1;
@@ -206,9 +207,9 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     adjV[fill[v]] = u;
     adjR[fill[v]++] = -cv / cu;
   }
-  const rho = new Float64Array(n);
-  const seen = new Uint8Array(n);
-  const stack = new Int32Array(n);
+  const rho = f64(n);
+  const seen = u8(n);
+  const stack = i32(n);
   const groups: number[][] = [];
   for (let start = 0; start < n; start++) {
     if (seen[start]) continue;

@@ -12,6 +12,7 @@
  * it must hold identically, or the offsets and misfits cannot be assembled.
  */
 import { ModelError, type ModelIssue } from '../../shared-types/errors.js';
+import { f64, i32, i32Copy } from './arena.js';
 
 /** One exact constraint p·φ_i + q·φ_j = c. */
 export interface RigidEdge {
@@ -48,30 +49,30 @@ const CLOSURE_TOLERANCE = 1e-9;
 
 /** Eliminates the rigid edges; throws SN_LOOP_MISMATCH when they cannot all hold. */
 export function reduceConstraints(dofCount: number, edges: readonly RigidEdge[], shaftNameOf: (dof: number) => string): Reduction {
-  const varOf = new Int32Array(dofCount).fill(-2); // −2: not yet reached
-  const alpha = new Float64Array(dofCount);
-  const beta = new Float64Array(dofCount);
+  const varOf = i32(dofCount).fill(-2); // −2: not yet reached
+  const alpha = f64(dofCount);
+  const beta = f64(dofCount);
   const lockedLoops: string[][] = [];
   const redundantTies: string[][] = [];
   const issues: ModelIssue[] = [];
 
   // Adjacency of the rigid edges, compressed.
-  const degree = new Int32Array(dofCount + 1);
+  const degree = i32(dofCount + 1);
   for (const e of edges) {
     degree[e.i + 1]++;
     if (e.j >= 0 && e.j !== e.i) degree[e.j + 1]++;
   }
   for (let k = 0; k < dofCount; k++) degree[k + 1] += degree[k];
   const adjStart = degree;
-  const adj = new Int32Array(adjStart[dofCount]);
-  const fill = adjStart.slice(0, dofCount);
+  const adj = i32(adjStart[dofCount]);
+  const fill = i32Copy(adjStart, dofCount);
   edges.forEach((e, n) => {
     adj[fill[e.i]++] = n;
     if (e.j >= 0 && e.j !== e.i) adj[fill[e.j]++] = n;
   });
 
-  const parentEdge = new Int32Array(dofCount).fill(-1);
-  const depth = new Int32Array(dofCount);
+  const parentEdge = i32(dofCount).fill(-1);
+  const depth = i32(dofCount);
   let varCount = 0;
 
   /** Edge ids on the tree path between two dofs of one group (both may be −1: none). */
@@ -91,7 +92,7 @@ export function reduceConstraints(dofCount: number, edges: readonly RigidEdge[],
     return path;
   };
 
-  const queue = new Int32Array(dofCount);
+  const queue = i32(dofCount);
   for (let start = 0; start < dofCount; start++) {
     if (varOf[start] !== -2) continue;
     if (adjStart[start] === adjStart[start + 1]) {

@@ -10,6 +10,7 @@ import { assemble, findMechanisms, type Assembly } from './assemble.js';
 import { SingularMatrixError, SparseLDLT } from './sparse-solver.js';
 import { solveDense } from './dense-solver.js';
 import { expandRotations, recover } from './recover.js';
+import { f64, i32, withArena } from './arena.js';
 
 export { normaliseModel } from './normalise.js';
 export type { ResolvedModel } from './normalise.js';
@@ -31,6 +32,11 @@ export function solveModel(model: unknown, options: SolveOptions = {}): Solution
 
 /** Solves an already normalised model (the benchmark times this part: parsing excluded). */
 export function solveResolved(model: ResolvedModel, options: SolveOptions = {}): Solution {
+  return withArena(() => solveInArena(model, options));
+}
+
+/** The solve itself; its work arrays come from the arena and none of them reaches the solution. */
+function solveInArena(model: ResolvedModel, options: SolveOptions): Solution {
   const phase = options.onPhase;
   let t0 = phase ? performance.now() : 0;
   const lap = (name: 'stations' | 'assemble' | 'factorise' | 'recover') => {
@@ -116,7 +122,7 @@ function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array) => Floa
   // Below a few ulps of the torques summed into it, the residual is round-off: nothing to gain.
   for (let step = 0; step < 3 && best.norm > 16 * Number.EPSILON * best.scale; step++) {
     const dx = solve(best.r);
-    const y = new Float64Array(x.length);
+    const y = f64(x.length);
     for (let k = 0; k < x.length; k++) y[k] = x[k] + dx[k];
     const next = springResidual(asm, y);
     if (!(next.norm < best.norm)) break;
@@ -130,7 +136,7 @@ function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array) => Floa
 function springResidual(asm: Assembly, x: Float64Array): { r: Float64Array; norm: number; scale: number } {
   const { springs: s, load } = asm;
   const { varOf, alpha, beta } = asm.reduction;
-  const r = new Float64Array(x.length);
+  const r = f64(x.length);
   let scale = 0;
   for (let m = 0; m < s.count; m++) {
     const i = s.i[m];
@@ -162,7 +168,7 @@ function assertNoMechanism(model: ResolvedModel, layout: StationLayout, asm: Ass
   const groups = findMechanisms(asm.springs, asm.reduction);
   if (groups.length === 0) return;
   // Unknown → one of its dofs → shaft.
-  const dofOfVar = new Int32Array(asm.reduction.varCount).fill(-1);
+  const dofOfVar = i32(asm.reduction.varCount).fill(-1);
   asm.reduction.varOf.forEach((u, d) => {
     if (u >= 0 && dofOfVar[u] < 0) dofOfVar[u] = d;
   });

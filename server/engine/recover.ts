@@ -12,6 +12,7 @@ import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Assembly } from './assemble.js';
 import type { CheckResult, CouplingResult, GearMeshResult, ReactionResult, SegmentResult, ShaftResult, Warning } from '../../shared-types/solution.js';
+import { f64, i32, u8 } from './arena.js';
 
 export interface Recovered {
   readonly shafts: ShaftResult[];
@@ -28,7 +29,7 @@ export interface Recovered {
 /** Rotation of every dof from the reduced unknowns. */
 export function expandRotations(asm: Assembly, x: Float64Array): Float64Array {
   const { varOf, alpha, beta } = asm.reduction;
-  const phi = new Float64Array(varOf.length);
+  const phi = f64(varOf.length);
   for (let d = 0; d < phi.length; d++) {
     const u = varOf[d];
     phi[d] = u >= 0 ? alpha[d] * x[u] + beta[d] : beta[d];
@@ -43,8 +44,8 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   const elemCount = springs.elemCount;
 
   // Element end torques.
-  const TL = new Float64Array(elemCount); // T(z1+)
-  const TR = new Float64Array(elemCount); // T(z2−)
+  const TL = f64(elemCount); // T(z1+)
+  const TR = f64(elemCount); // T(z2−)
   for (let e = 0; e < elemCount; e++) {
     const d = elemLeft[e];
     const kd = springs.k[e] * (phi[d + 1] - phi[d]);
@@ -53,7 +54,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   }
 
   // Torque each elastic part puts on its dofs, and the constraint torque every dof needs: r = K·φ − F.
-  const need = new Float64Array(layout.dofCount);
+  const need = f64(layout.dofCount);
   for (let m = 0; m < springs.count; m++) {
     const i = springs.i[m];
     const j = springs.j[m];
@@ -82,7 +83,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   }
 
   // Reactions, mesh and coupling results, and the torque each puts on each dof.
-  const applied = new Float64Array(layout.dofCount); // torques from supports and connections, per dof
+  const applied = f64(layout.dofCount); // torques from supports and connections, per dof
   const reactions: ReactionResult[] = model.supports.map((s) => ({
     support: s.id,
     shaft: model.shafts[s.shaft].id,
@@ -126,14 +127,14 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   }
 
   // Equilibrium of every shaft, summed from the recovered torques (not assumed).
-  const sums = new Float64Array(model.shafts.length);
+  const sums = f64(model.shafts.length);
   for (let d = 0; d < applied.length; d++) sums[layout.shaftOf[d]] += applied[d];
   for (const t of model.torques) sums[t.shaft] += t.torque;
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
   const residuals = model.shafts.map((shaft, s) => ({ shaft: shaft.id, residual: Math.abs(sums[s]) }));
 
   // Stations where T may jump: a point torque, a support or a connection acts there.
-  const jumps = new Uint8Array(layout.dofCount);
+  const jumps = u8(layout.dofCount);
   for (const t of model.torques) jumps[layout.stationAt(t.shaft, t.z)] = 1;
   for (const e of edges) {
     jumps[e.i] = 1;
@@ -158,7 +159,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
  * that remain are solved together by least squares (minimum norm).
  */
 function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float64Array {
-  const lambda = new Float64Array(edges.length);
+  const lambda = f64(edges.length);
   if (edges.length === 0) return lambda;
   const rest = new Map<number, number>(); // dof → undecided edge count
   const incident = new Map<number, number[]>();
@@ -171,7 +172,7 @@ function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float6
     }
   });
   const coef = (e: (typeof edges)[number], d: number) => (e.i === d ? e.p : 0) + (e.j === d ? e.q : 0);
-  const decided = new Uint8Array(edges.length);
+  const decided = u8(edges.length);
   const residual = new Map<number, number>();
   for (const d of rest.keys()) residual.set(d, need[d]);
   const stack = [...rest.entries()].filter(([, c]) => c === 1).map(([d]) => d);
@@ -416,12 +417,12 @@ function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: Check
     if (totalTwist !== null) n++;
   }
   // kind: 0 shear, 1 twist rate, 2 total twist; where: shaft, segment, layer.
-  const kind = new Uint8Array(n);
-  const shaftIx = new Int32Array(n);
-  const segIx = new Int32Array(n);
-  const layerIx = new Int32Array(n);
-  const value = new Float64Array(n);
-  const limit = new Float64Array(n);
+  const kind = u8(n);
+  const shaftIx = i32(n);
+  const segIx = i32(n);
+  const layerIx = i32(n);
+  const value = f64(n);
+  const limit = f64(n);
   let k = 0;
   shafts.forEach((sr, s) => {
     for (const seg of sr.segments) {
@@ -450,7 +451,7 @@ function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: Check
       limit[k++] = totalTwist;
     }
   });
-  const util = new Float64Array(n);
+  const util = f64(n);
   for (let m = 0; m < n; m++) util[m] = value[m] / limit[m];
   // Threshold of the worst MAX_LISTED_CHECKS by a native numeric sort of a copy.
   let chosen: number[] = [];

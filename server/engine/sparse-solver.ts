@@ -10,6 +10,7 @@
  *
  * The constructor factorises; `solve` answers K·x = b.
  */
+import { f64, i32, i32Copy, u8 } from './arena.js';
 
 /** A symmetric matrix by its diagonal and its strictly off-diagonal entries (either triangle, duplicates summed). */
 export interface SymmetricEntries {
@@ -52,14 +53,14 @@ export class SparseLDLT {
     this.n = n;
     const { Ap, Ai, Ax } = toFullCSC(a);
     const perm = fillReducingOrder(n, Ap, Ai);
-    const pinv = new Int32Array(n);
+    const pinv = i32(n);
     for (let k = 0; k < n; k++) pinv[perm[k]] = k;
     this.perm = perm;
 
     // Symbolic: elimination tree and column counts of L (permuted).
-    const parent = new Int32Array(n);
-    const lnz = new Int32Array(n);
-    const flag = new Int32Array(n);
+    const parent = i32(n);
+    const lnz = i32(n);
+    const flag = i32(n);
     for (let k = 0; k < n; k++) {
       parent[k] = -1;
       flag[k] = k;
@@ -76,16 +77,16 @@ export class SparseLDLT {
         }
       }
     }
-    const Lp = new Int32Array(n + 1);
+    const Lp = i32(n + 1);
     for (let k = 0; k < n; k++) Lp[k + 1] = Lp[k] + lnz[k];
     const nnz = Lp[n];
-    const Li = new Int32Array(nnz);
-    const Lx = new Float64Array(nnz);
-    const D = new Float64Array(n);
+    const Li = i32(nnz);
+    const Lx = f64(nnz);
+    const D = f64(n);
 
     // Numeric: row k of L from the k-th row pattern (a path up the etree).
-    const Y = new Float64Array(n);
-    const pattern = new Int32Array(n);
+    const Y = f64(n);
+    const pattern = i32(n);
     let minRatio = Infinity;
     for (let k = 0; k < n; k++) {
       Y[k] = 0;
@@ -136,7 +137,7 @@ export class SparseLDLT {
   /** Solves K·x = b. */
   solve(b: Float64Array): Float64Array {
     const { n, perm, Lp, Li, Lx, D } = this;
-    const y = new Float64Array(n);
+    const y = f64(n);
     for (let k = 0; k < n; k++) y[k] = b[perm[k]];
     for (let j = 0; j < n; j++) {
       const yj = y[j];
@@ -148,7 +149,7 @@ export class SparseLDLT {
       for (let p = Lp[j]; p < Lp[j + 1]; p++) yj -= Lx[p] * y[Li[p]];
       y[j] = yj;
     }
-    const x = new Float64Array(n);
+    const x = f64(n);
     for (let k = 0; k < n; k++) x[perm[k]] = y[k];
     return x;
   }
@@ -157,15 +158,15 @@ export class SparseLDLT {
 /** Compressed columns of the off-diagonal part, both triangles, duplicates summed. */
 export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array; Ax: Float64Array } {
   const { n, rows, cols, vals, count } = a;
-  const counts = new Int32Array(n + 1);
+  const counts = i32(n + 1);
   for (let k = 0; k < count; k++) {
     counts[rows[k] + 1]++;
     counts[cols[k] + 1]++;
   }
   for (let k = 0; k < n; k++) counts[k + 1] += counts[k];
-  const start = counts.slice(0, n);
-  const Ai = new Int32Array(counts[n]);
-  const Ax = new Float64Array(counts[n]);
+  const start = i32Copy(counts, n);
+  const Ai = i32(counts[n]);
+  const Ax = f64(counts[n]);
   for (let k = 0; k < count; k++) {
     const r = rows[k];
     const c = cols[k];
@@ -176,8 +177,8 @@ export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array
     Ax[start[r]++] = v;
   }
   // Sum duplicates within each column in place.
-  const last = new Int32Array(n).fill(-1);
-  const Ap = new Int32Array(n + 1);
+  const last = i32(n).fill(-1);
+  const Ap = i32(n + 1);
   let w = 0;
   for (let c = 0; c < n; c++) {
     const colStart = w;
@@ -201,11 +202,11 @@ export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array
  * on trees); the rest, which lie on loops, by exact minimum degree.
  */
 export function fillReducingOrder(n: number, Ap: Int32Array, Ai: Int32Array): Int32Array {
-  const order = new Int32Array(n);
+  const order = i32(n);
   let placed = 0;
-  const degree = new Int32Array(n);
-  const done = new Uint8Array(n);
-  const stack = new Int32Array(n);
+  const degree = i32(n);
+  const done = u8(n);
+  const stack = i32(n);
   let sp = 0;
   for (let v = 0; v < n; v++) {
     degree[v] = Ap[v + 1] - Ap[v];

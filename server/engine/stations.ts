@@ -7,6 +7,7 @@
  * one rotation unknown (a "dof"), numbered shaft by shaft, z ascending.
  */
 import type { ResolvedModel } from './normalise.js';
+import { f64, i32 } from './arena.js';
 
 export interface StationLayout {
   readonly dofCount: number;
@@ -55,10 +56,12 @@ export function buildStations(model: ResolvedModel): StationLayout {
     add(c.b.shaft, c.b.z);
   }
 
-  const shaftStart = new Int32Array(nShafts + 1);
+  const shaftStart = i32(nShafts + 1);
   const merged: Float64Array[] = [];
   for (let s = 0; s < nShafts; s++) {
-    const sorted = Float64Array.from(points[s]).sort();
+    const sorted = f64(points[s].length);
+    sorted.set(points[s]);
+    sorted.sort();
     const tol = MERGE_TOLERANCE * model.shafts[s].length;
     let n = 0;
     for (let k = 0; k < sorted.length; k++) {
@@ -70,11 +73,11 @@ export function buildStations(model: ResolvedModel): StationLayout {
     shaftStart[s + 1] = shaftStart[s] + n;
   }
   const dofCount = shaftStart[nShafts];
-  const z = new Float64Array(dofCount);
-  const shaftOf = new Int32Array(dofCount);
+  const z = f64(dofCount);
+  const shaftOf = i32(dofCount);
   const elemCount = dofCount - nShafts;
-  const elemLeft = new Int32Array(elemCount);
-  const elemSegment = new Int32Array(elemCount);
+  const elemLeft = i32(elemCount);
+  const elemSegment = i32(elemCount);
   let e = 0;
   for (let s = 0; s < nShafts; s++) {
     const base = shaftStart[s];
@@ -105,8 +108,8 @@ export function buildStations(model: ResolvedModel): StationLayout {
   };
 
   // Element index of a left dof: dof k on shaft s is element k − s.
-  const elemT1 = new Float64Array(elemCount);
-  const elemT2 = new Float64Array(elemCount);
+  const elemT1 = f64(elemCount);
+  const elemT2 = f64(elemCount);
   for (const d of model.distributed) {
     if (d.to <= d.from) continue; // a zero-length load carries nothing
     const first = stationAt(d.shaft, d.from);
