@@ -453,7 +453,7 @@ class Resolver {
     const layers = ok
       ? buildSectionLayers(rings.map((r) => ({ ...r, material: r.material as ResolvedMaterial })))
       : [];
-    // Cache only the layered case (its layers do not depend on the segment); errors are then reported once.
+    // Keyed by section (and material for solid/hollow): each section's errors are reported once.
     this.sectionCache.set(key, layers);
     return layers;
   }

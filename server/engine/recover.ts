@@ -144,8 +144,10 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     jumps[springs.i[m]] = 1;
     if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
   }
-  const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, phi, TL, TR, jumps, s, diagramPoints));
-  if (workArrays.some((a) => a && a.length > 1 << 16)) workArrays.length = 0; // keep no large buffer alive between solves
+  // Per-segment work arrays, sized once for the longest shaft and reused by every shaft.
+  const maxSegments = model.shafts.reduce((m, sh) => Math.max(m, sh.segments.length), 0);
+  const scratch: Scratch = { segMax: f64(maxSegments), segAt: f64(maxSegments), segPhiFrom: f64(maxSegments), segPhiTo: f64(maxSegments), roots: f64(2) };
+  const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, phi, TL, TR, jumps, scratch, s, diagramPoints));
   const checks = buildChecks(model, shafts);
   for (const mat of missingAllowables(model)) {
     warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
@@ -217,6 +219,7 @@ function shaftResult(
   TL: Float64Array,
   TR: Float64Array,
   jumps: Uint8Array,
+  scratch: Scratch,
   s: number,
   diagramPoints: number,
 ): ShaftResult {
@@ -252,14 +255,12 @@ function shaftResult(
     dTau.push(tau);
   };
   const nSeg = shaft.segments.length;
-  const segMax = work(0, nSeg).fill(0, 0, nSeg);
-  const segAt = work(1, nSeg);
+  const { segMax, segAt, segPhiFrom, segPhiTo, roots } = scratch;
+  segMax.fill(0, 0, nSeg);
+  segPhiFrom.fill(Number.NaN, 0, nSeg);
   for (let k = 0; k < nSeg; k++) segAt[k] = shaft.segments[k].z0;
-  const segPhiFrom = work(2, nSeg).fill(Number.NaN, 0, nSeg);
-  const segPhiTo = work(3, nSeg);
   let phiMin = Infinity;
   let phiMax = -Infinity;
-  const roots = work(4, 2);
   for (let e = e0; e < e0 + elemN; e++) {
     const d = first + (e - e0);
     const k = elemSegment[e];
@@ -359,17 +360,17 @@ function shaftResult(
   };
 }
 
+/** Work arrays of shaftResult, indexed by segment within a shaft. */
+interface Scratch {
+  readonly segMax: Float64Array;
+  readonly segAt: Float64Array;
+  readonly segPhiFrom: Float64Array;
+  readonly segPhiTo: Float64Array;
+  readonly roots: Float64Array;
+}
+
 /** Interior diagram points per shaft at most. */
 const DIAGRAM_INTERIOR_BUDGET = 50_000;
-
-const workArrays: Float64Array[] = [];
-
-/** Work array `slot` with room for at least n values (contents undefined). */
-function work(slot: number, n: number): Float64Array {
-  let a = workArrays[slot];
-  if (!a || a.length < n) workArrays[slot] = a = new Float64Array(Math.max(n, 2 * (a?.length ?? 16)));
-  return a;
-}
 
 /** T(s) inside an element: T1 − t1·s − (t2 − t1)·s²/(2h). */
 function elementTorque(T1: number, t1: number, dt: number, h: number, x: number): number {
