@@ -4,37 +4,113 @@
  * A typed array of more than 64 bytes gets its own off-heap backing store,
  * which costs about 3 µs to allocate here: a 50-station solve needs some 75
  * of them, most of its time. Inside `withArena`, small arrays are instead
- * zeroed views into reused chunks (about 40 ns each). Large arrays, and every
- * array outside `withArena`, are allocated as usual. Nothing allocated here may
- * outlive the `withArena` call: the solution is built from plain arrays.
+ * zeroed views into reused chunks (about 40 ns each).
+ *
+ * Large arrays (a million-station solve needs some forty of 8 MB) are carved
+ * from one large slab, reserved at the start of the solve from an estimate
+ * of what it will need (`reserveLarge`), grown by doubling if the estimate
+ * falls short, and kept for the next solve up to SLAB_KEPT_BYTES. Fresh
+ * off-heap memory counts towards V8's heap limits: allocating hundreds of
+ * megabytes in forty pieces sets off one full garbage collection after
+ * another, one slab only one. Pages of the slab that a solve never touches
+ * cost address space only.
+ *
+ * Outside `withArena` every array is allocated as usual. Nothing allocated here
+ * may outlive the `withArena` call: a solution is written out (as objects or
+ * as JSON) inside it.
  */
 
 const CHUNK_BYTES = 1 << 20; // bytes per chunk
-const LARGE_BYTES = CHUNK_BYTES >> 2; // bytes: larger arrays get their own buffer
+const LARGE_BYTES = CHUNK_BYTES >> 2; // bytes: larger arrays come from the slab
 const KEPT_CHUNKS = 8; // chunks kept between solves
+const SLAB_KEPT_BYTES = 1 << 30; // bytes: a larger slab is dropped after its solve
+const ALIGN = 64; // bytes: alignment of arrays in the slab
 
 const chunks: ArrayBuffer[] = [];
 let active = false;
 let chunk = 0;
 let offset = 0;
 
-/** Runs `fn` with small typed arrays taken from the arena, then releases them all. */
+/** The slab of large arrays, the next free byte in it, and how far earlier solves wrote into it. */
+let slab: ArrayBuffer | null = null;
+let slabUsed = 0;
+let slabDirty = 0;
+/** Slabs outgrown during the current solve (their arrays are still in use). */
+const outgrown: ArrayBuffer[] = [];
+
+/** Runs `fn` with typed arrays taken from the arena, then releases them all. */
 export function withArena<T>(fn: () => T): T {
   if (active) return fn();
   active = true;
   chunk = 0;
   offset = 0;
+  slabUsed = 0;
   try {
     return fn();
   } finally {
     active = false;
     if (chunks.length > KEPT_CHUNKS) chunks.length = KEPT_CHUNKS;
+    outgrown.length = 0;
+    if (slab && slab.byteLength > SLAB_KEPT_BYTES) {
+      slab = null;
+      slabDirty = 0;
+    }
   }
 }
 
-/** Space for `bytes` bytes (a multiple of 8), or null when the array should have its own buffer. */
-function take(bytes: number): [ArrayBuffer, number] | null {
-  if (!active || bytes > LARGE_BYTES) return null;
+/**
+ * Makes room for `bytes` bytes of large arrays in this solve, in one piece:
+ * called at the start of a solve with an estimate of what it will use.
+ */
+export function reserveLarge(bytes: number): void {
+  if (!active || slabUsed > 0 || bytes <= LARGE_BYTES) return;
+  if (slab && slab.byteLength >= bytes) return;
+  slab = new ArrayBuffer(roundUp(bytes));
+  slabDirty = 0;
+}
+
+/** Drops the slab kept between solves (a long-lived process after a very large solve). */
+export function releaseArena(): void {
+  if (active) return;
+  slab = null;
+  slabDirty = 0;
+}
+
+/** Bytes kept between solves for large arrays. */
+export function arenaKeptBytes(): number {
+  return slab ? slab.byteLength : 0;
+}
+
+/** Bytes of large arrays used so far in the current solve. */
+export function largeBytesUsed(): number {
+  return slabUsed;
+}
+
+function roundUp(bytes: number): number {
+  return Math.ceil(bytes / ALIGN) * ALIGN;
+}
+
+/**
+ * Space for `bytes` bytes (a multiple of 8): a buffer, the offset in it, and
+ * whether it may hold old values; null when the array should be allocated as usual.
+ */
+function take(bytes: number): [ArrayBuffer, number, boolean] | null {
+  if (!active) return null;
+  if (bytes > LARGE_BYTES) {
+    const size = roundUp(bytes);
+    if (!slab || slabUsed + size > slab.byteLength) {
+      // Outgrown: a new slab of at least twice the size; arrays already handed out stay where they are.
+      if (slab && slabUsed > 0) outgrown.push(slab);
+      slab = new ArrayBuffer(Math.max(size, 2 * (slab?.byteLength ?? 0)));
+      slabUsed = 0;
+      slabDirty = 0;
+    }
+    const at = slabUsed;
+    slabUsed += size;
+    const dirty = at < slabDirty;
+    slabDirty = Math.max(slabDirty, slabUsed);
+    return [slab, at, dirty];
+  }
   if (offset + bytes > CHUNK_BYTES) {
     chunk++;
     offset = 0;
@@ -42,25 +118,25 @@ function take(bytes: number): [ArrayBuffer, number] | null {
   if (chunk === chunks.length) chunks.push(new ArrayBuffer(CHUNK_BYTES));
   const at = offset;
   offset += bytes;
-  return [chunks[chunk], at];
+  return [chunks[chunk], at, true];
 }
 
 /** A zeroed Float64Array of n values. */
 export function f64(n: number): Float64Array {
   const place = take(n * 8);
-  return place ? new Float64Array(place[0], place[1], n).fill(0) : new Float64Array(n);
+  return place ? zeroed(new Float64Array(place[0], place[1], n), place[2]) : new Float64Array(n);
 }
 
 /** A zeroed Int32Array of n values. */
 export function i32(n: number): Int32Array {
   const place = take(((n * 4 + 7) >> 3) << 3);
-  return place ? new Int32Array(place[0], place[1], n).fill(0) : new Int32Array(n);
+  return place ? zeroed(new Int32Array(place[0], place[1], n), place[2]) : new Int32Array(n);
 }
 
 /** A zeroed Uint8Array of n values. */
 export function u8(n: number): Uint8Array {
   const place = take(((n + 7) >> 3) << 3);
-  return place ? new Uint8Array(place[0], place[1], n).fill(0) : new Uint8Array(n);
+  return place ? zeroed(new Uint8Array(place[0], place[1], n), place[2]) : new Uint8Array(n);
 }
 
 /** A copy of the first n values of an Int32Array. */
@@ -75,4 +151,9 @@ export function f64Copy(src: Float64Array, n: number): Float64Array {
   const out = f64(n);
   out.set(src.subarray(0, n));
   return out;
+}
+
+function zeroed<T extends Float64Array | Int32Array | Uint8Array>(a: T, used: boolean): T {
+  if (used) a.fill(0);
+  return a;
 }

@@ -210,10 +210,12 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
   const rho = f64(n);
   const seen = u8(n);
   const stack = i32(n);
+  const members = i32(n); // unknowns in the order visited: each group is a run
+  let visited = 0;
   const groups: number[][] = [];
   for (let start = 0; start < n; start++) {
     if (seen[start]) continue;
-    const group: number[] = [];
+    const first = visited;
     let free = true;
     let sp = 0;
     stack[sp++] = start;
@@ -221,7 +223,7 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     rho[start] = 1;
     while (sp > 0) {
       const u = stack[--sp];
-      group.push(u);
+      members[visited++] = u;
       if (anchored[u]) free = false;
       for (let p = deg[u]; p < deg[u + 1]; p++) {
         const v = adjV[p];
@@ -235,7 +237,7 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
         }
       }
     }
-    if (free) groups.push(group);
+    if (free) groups.push(Array.from(members.subarray(first, visited)));
   }
   return groups;
 }

@@ -3,17 +3,22 @@
  * No HTTP, no store, no I/O.
  */
 import { ModelError } from '../../shared-types/errors.js';
-import { SOLUTION_FORMAT, type Solution } from '../../shared-types/solution.js';
+import type { Solution, Warning } from '../../shared-types/solution.js';
 import { normaliseModel, type ResolvedModel } from './normalise.js';
 import { buildStations, type StationLayout } from './stations.js';
 import { assemble, findMechanisms, type Assembly } from './assemble.js';
 import { SingularMatrixError, SparseLDLT } from './sparse-solver.js';
 import { solveDense } from './dense-solver.js';
 import { expandRotations, recover } from './recover.js';
-import { f64, i32, withArena } from './arena.js';
+import { f64, i32, reserveLarge, withArena } from './arena.js';
+import { toSolution, writeSolutionJson, type Solved } from './output.js';
 
 export { normaliseModel } from './normalise.js';
 export type { ResolvedModel } from './normalise.js';
+export type { Solved } from './output.js';
+
+/** The phases of a solve, reported to `onPhase` with their durations. */
+export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'output';
 
 /** Options of a solve. */
 export interface SolveOptions {
@@ -21,8 +26,12 @@ export interface SolveOptions {
   solver?: 'sparse' | 'dense';
   /** Interior diagram points per element where T(z) is curved (default 8); 0 keeps breakpoints only. */
   diagramPoints?: number;
-  /** Called after each phase ('stations', 'assemble', 'factorise', 'recover') with its duration, ms. */
-  onPhase?: (phase: 'stations' | 'assemble' | 'factorise' | 'recover', ms: number) => void;
+  /**
+   * Called after each phase with its duration, ms: 'stations', 'assemble',
+   * 'factorise' (with the solve), 'recover' (every result, in columns) and
+   * 'output' (writing the solution object or its JSON text).
+   */
+  onPhase?: (phase: SolvePhase, ms: number) => void;
 }
 
 /** Solves a model (raw JSON, units as typed). Throws ModelError for a model it cannot solve. */
@@ -32,14 +41,53 @@ export function solveModel(model: unknown, options: SolveOptions = {}): Solution
 
 /** Solves an already normalised model (the benchmark times this part: parsing excluded). */
 export function solveResolved(model: ResolvedModel, options: SolveOptions = {}): Solution {
-  return withArena(() => solveInArena(model, options));
+  return withSolved(model, options, toSolution);
 }
 
-/** The solve itself; its work arrays come from the arena and none of them reaches the solution. */
-function solveInArena(model: ResolvedModel, options: SolveOptions): Solution {
+/**
+ * Solves a model (raw JSON) and writes the JSON text of its solution to
+ * `sink`, in pieces of about `pieceChars` characters: the same text as
+ * `JSON.stringify(solveModel(model))`, without building the solution object.
+ */
+export function solveModelJson(model: unknown, sink: (text: string) => void, options: SolveOptions = {}, pieceChars?: number): void {
+  withSolved(normaliseModel(model), options, (solved) => writeSolutionJson(solved, sink, pieceChars));
+}
+
+/**
+ * Solves, then hands the finished solve (in columns) to `use` and answers
+ * what it answers. The columns are work arrays: they are valid only during
+ * `use`, which must copy out whatever it keeps.
+ */
+export function withSolved<T>(model: ResolvedModel, options: SolveOptions, use: (solved: Solved) => T): T {
+  return withArena(() => {
+    reserveLarge(LARGE_BYTES_PER_STATION * stationEstimate(model));
+    const solved = solveInArena(model, options);
+    const t0 = options.onPhase ? performance.now() : 0;
+    const answer = use(solved);
+    options.onPhase?.('output', performance.now() - t0);
+    return answer;
+  });
+}
+
+/**
+ * Bytes of large work arrays per station of `stationEstimate`, a little more
+ * than the most measured (about 590, a chain under a distributed torque with
+ * eight diagram points per element): reserved in one piece at the start.
+ */
+const LARGE_BYTES_PER_STATION = 640;
+
+/** Stations a resolved model can have at most (each point on a shaft may be one). */
+function stationEstimate(model: ResolvedModel): number {
+  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length;
+  for (const shaft of model.shafts) n += shaft.segments.length;
+  return n + 2 * (model.distributed.length + model.meshes.length + model.couplings.length);
+}
+
+/** The solve itself; its work arrays come from the arena. */
+function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
   const phase = options.onPhase;
   let t0 = phase ? performance.now() : 0;
-  const lap = (name: 'stations' | 'assemble' | 'factorise' | 'recover') => {
+  const lap = (name: SolvePhase) => {
     if (!phase) return;
     const t = performance.now();
     phase(name, t - t0);
@@ -52,7 +100,7 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solution {
   lap('assemble');
   let x: Float64Array;
   let factorNonzeros = 0;
-  const warnings = [];
+  const warnings: Warning[] = [];
   try {
     if (options.solver === 'dense') {
       x = solveDense(asm.system, asm.rhs);
@@ -88,8 +136,10 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solution {
   const phi = expandRotations(asm, x);
   const rec = recover(model, layout, asm, phi, options.diagramPoints ?? 8);
   lap('recover');
-  const maxResidual = rec.residuals.reduce((m, r) => Math.max(m, r.residual), 0);
-  const torqueScale = rec.shafts.reduce((m, sh) => sh.segments.reduce((mm, sg) => Math.max(mm, sg.maxAbsTorque), m), 0);
+  let maxResidual = 0;
+  for (let k = 0; k < rec.residual.length; k++) maxResidual = Math.max(maxResidual, rec.residual[k]);
+  let torqueScale = 0;
+  for (let k = 0; k < rec.segMaxAbs.length; k++) torqueScale = Math.max(torqueScale, rec.segMaxAbs[k]);
   if (maxResidual > 1e-8 * torqueScale) {
     warnings.push({
       code: 'SN_PRECISION_LOST',
@@ -97,16 +147,12 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solution {
     });
   }
   return {
-    format: SOLUTION_FORMAT,
-    name: model.name,
-    shafts: rec.shafts,
-    reactions: rec.reactions,
-    gearMeshes: rec.gearMeshes,
-    couplings: rec.couplings,
-    equilibrium: { maxResidual, shafts: rec.residuals },
-    checks: rec.checks,
+    model,
+    layout,
+    rec,
+    maxResidual,
     warnings: [...rec.warnings, ...warnings],
-    stats: { stations: layout.dofCount, unknowns: asm.reduction.varCount, factorNonzeros, checksEvaluated: rec.checksEvaluated },
+    stats: { stations: layout.dofCount, unknowns: asm.reduction.varCount, factorNonzeros, checksEvaluated: rec.checks.total },
   };
 }
 

@@ -11,19 +11,62 @@ import { Matrix, pseudoInverse } from 'ml-matrix';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Assembly } from './assemble.js';
-import type { CheckResult, CouplingResult, GearMeshResult, ReactionResult, SegmentResult, ShaftResult, Warning } from '../../shared-types/solution.js';
+import type { CouplingResult, GearMeshResult, ReactionResult, Warning } from '../../shared-types/solution.js';
 import { f64, i32, u8 } from './arena.js';
 
+/**
+ * Everything recovered, in columns (typed arrays from the arena) rather than
+ * in millions of small objects: `output.ts` writes it out as the solution
+ * object or straight to JSON text. Segments and layers are numbered across
+ * all shafts: shaft s has segments segBase[s] … segBase[s + 1] − 1, and global
+ * segment g has layers layerBase[g] … layerBase[g + 1] − 1.
+ */
 export interface Recovered {
-  readonly shafts: ShaftResult[];
+  /** Rotation of every dof, rad. */
+  readonly phi: Float64Array;
+  /** T(z+) at the left end and T(z−) at the right end of every element, N·m. */
+  readonly TL: Float64Array;
+  readonly TR: Float64Array;
+  readonly segBase: Int32Array;
+  /** Per segment: largest |T|, where it acts, twist φ(to) − φ(from). */
+  readonly segMaxAbs: Float64Array;
+  readonly segAt: Float64Array;
+  readonly segTwist: Float64Array;
+  readonly layerBase: Int32Array;
+  /** Per layer: largest |τ| over its segment, Pa. */
+  readonly layerMaxShear: Float64Array;
+  /** Per shaft: max φ − min φ, rad; |Σ torques|, N·m. */
+  readonly totalTwist: Float64Array;
+  readonly residual: Float64Array;
+  /** Diagram of shaft s: points diagStart[s] … diagStart[s] + diagCount[s] − 1 of dZ, dT, dPhi, dTau. */
+  readonly diagStart: Int32Array;
+  readonly diagCount: Int32Array;
+  readonly dZ: Float64Array;
+  readonly dT: Float64Array;
+  readonly dPhi: Float64Array;
+  readonly dTau: Float64Array;
   readonly reactions: ReactionResult[];
   readonly gearMeshes: GearMeshResult[];
   readonly couplings: CouplingResult[];
-  readonly residuals: Array<{ shaft: string; residual: number }>;
-  readonly checks: CheckResult[];
-  /** Checks evaluated; more than listed when over MAX_LISTED_CHECKS. */
-  readonly checksEvaluated: number;
+  readonly checks: CheckColumns;
   readonly warnings: Warning[];
+}
+
+/** The checks evaluated, and the order of those listed (worst first). */
+export interface CheckColumns {
+  /** Checks evaluated; more than listed when over MAX_LISTED_CHECKS. */
+  readonly total: number;
+  /** Indices of the listed checks, worst utilisation first. */
+  readonly listed: Int32Array;
+  /** 0 shear, 1 twist rate, 2 total twist. */
+  readonly kind: Uint8Array;
+  readonly shaft: Int32Array;
+  /** Segment index within its shaft, and layer index within its segment. */
+  readonly segment: Int32Array;
+  readonly layer: Int32Array;
+  readonly value: Float64Array;
+  readonly limit: Float64Array;
+  readonly utilisation: Float64Array;
 }
 
 /** Rotation of every dof from the reduced unknowns. */
@@ -131,7 +174,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   for (let d = 0; d < applied.length; d++) sums[layout.shaftOf[d]] += applied[d];
   for (const t of model.torques) sums[t.shaft] += t.torque;
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
-  const residuals = model.shafts.map((shaft, s) => ({ shaft: shaft.id, residual: Math.abs(sums[s]) }));
+  for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
 
   // Stations where T may jump: a point torque, a support or a connection acts there.
   const jumps = u8(layout.dofCount);
@@ -144,15 +187,12 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     jumps[springs.i[m]] = 1;
     if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
   }
-  // Per-segment work arrays, sized once for the longest shaft and reused by every shaft.
-  const maxSegments = model.shafts.reduce((m, sh) => Math.max(m, sh.segments.length), 0);
-  const scratch: Scratch = { segMax: f64(maxSegments), segAt: f64(maxSegments), segPhiFrom: f64(maxSegments), segPhiTo: f64(maxSegments), roots: f64(2) };
-  const shafts = model.shafts.map((shaft, s) => shaftResult(model, layout, phi, TL, TR, jumps, scratch, s, diagramPoints));
-  const checks = buildChecks(model, shafts);
+  const cols = recoverShafts(model, layout, phi, TL, TR, jumps, diagramPoints);
+  const checks = buildChecks(model, cols);
   for (const mat of missingAllowables(model)) {
     warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
   }
-  return { shafts, reactions, gearMeshes, couplings, residuals, checks: checks.list, checksEvaluated: checks.total, warnings };
+  return { phi, TL, TR, ...cols, residual: sums, reactions, gearMeshes, couplings, checks, warnings };
 }
 
 /**
@@ -212,161 +252,163 @@ function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float6
   return lambda;
 }
 
-function shaftResult(
+type ShaftColumns = Pick<
+  Recovered,
+  'segBase' | 'segMaxAbs' | 'segAt' | 'segTwist' | 'layerBase' | 'layerMaxShear' | 'totalTwist' | 'diagStart' | 'diagCount' | 'dZ' | 'dT' | 'dPhi' | 'dTau'
+>;
+
+/** Per segment, per layer and per shaft extremes, and the diagrams, of every shaft. */
+function recoverShafts(
   model: ResolvedModel,
   layout: StationLayout,
   phi: Float64Array,
   TL: Float64Array,
   TR: Float64Array,
   jumps: Uint8Array,
-  scratch: Scratch,
-  s: number,
   diagramPoints: number,
-): ShaftResult {
-  const shaft = model.shafts[s];
+): ShaftColumns {
   const { z, shaftStart, elemSegment, elemT1, elemT2 } = layout;
-  const first = shaftStart[s];
-  const last = shaftStart[s + 1] - 1;
-  const e0 = first - s; // element index of the first element of this shaft
-  const stations = [];
-  for (let d = first; d <= last; d++) {
-    stations.push({
-      z: z[d],
-      rotation: phi[d],
-      torqueLeft: d === first ? null : TR[d - 1 - s],
-      torqueRight: d === last ? null : TL[d - s],
-    });
+  const nShafts = model.shafts.length;
+  // Global numbering of segments and layers.
+  const segBase = i32(nShafts + 1);
+  for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
+  const nSegments = segBase[nShafts];
+  const layerBase = i32(nSegments + 1);
+  for (let s = 0, g = 0; s < nShafts; s++) {
+    for (const sg of model.shafts[s].segments) layerBase[g + 1] = layerBase[g++] + sg.layers.length;
   }
   // Diagram: breakpoints (two at a jump) plus interior points of loaded elements,
   // at most DIAGRAM_INTERIOR_BUDGET of them per shaft: with that many elements the
-  // breakpoints alone already trace the curve.
-  const elemN = last - first;
-  let loadedElements = 0;
-  for (let e = e0; e < e0 + elemN; e++) if (elemT1[e] !== 0 || elemT2[e] !== 0) loadedElements++;
-  const interior = Math.min(diagramPoints, Math.floor(DIAGRAM_INTERIOR_BUDGET / Math.max(1, loadedElements)));
-  const dz: number[] = [];
-  const dT: number[] = [];
-  const dPhi: number[] = [];
-  const dTau: number[] = [];
-  const point = (zz: number, T: number, p: number, tau: number) => {
-    dz.push(zz);
-    dT.push(T);
-    dPhi.push(p);
-    dTau.push(tau);
-  };
-  const nSeg = shaft.segments.length;
-  const { segMax, segAt, segPhiFrom, segPhiTo, roots } = scratch;
-  segMax.fill(0, 0, nSeg);
-  segPhiFrom.fill(Number.NaN, 0, nSeg);
-  for (let k = 0; k < nSeg; k++) segAt[k] = shaft.segments[k].z0;
-  let phiMin = Infinity;
-  let phiMax = -Infinity;
-  for (let e = e0; e < e0 + elemN; e++) {
-    const d = first + (e - e0);
-    const k = elemSegment[e];
-    const sg = shaft.segments[k];
-    if (Number.isNaN(segPhiFrom[k])) segPhiFrom[k] = phi[d];
-    segPhiTo[k] = phi[d + 1];
-    const h = z[d + 1] - z[d];
-    const t1 = elemT1[e];
-    const t2 = elemT2[e];
-    const T1 = TL[e];
-    const T2 = TR[e];
-    const gj = sg.rigidity;
-    const c = sg.shearFactor;
-    if (Math.abs(T1) > segMax[k]) {
-      segMax[k] = Math.abs(T1);
-      segAt[k] = z[d];
+  // breakpoints alone already trace the curve. Room for the most points a shaft can have.
+  const interior = i32(nShafts);
+  const diagStart = i32(nShafts + 1);
+  for (let s = 0; s < nShafts; s++) {
+    const e0 = shaftStart[s] - s;
+    const elemN = shaftStart[s + 1] - shaftStart[s] - 1;
+    let loaded = 0;
+    let jumped = 0;
+    for (let e = e0; e < e0 + elemN; e++) {
+      if (elemT1[e] !== 0 || elemT2[e] !== 0) loaded++;
+      jumped += jumps[shaftStart[s] + (e - e0)];
     }
-    if (Math.abs(T2) > segMax[k]) {
-      segMax[k] = Math.abs(T2);
-      segAt[k] = z[d + 1];
-    }
-    if (phi[d] < phiMin) phiMin = phi[d];
-    if (phi[d] > phiMax) phiMax = phi[d];
-    if (phi[d + 1] < phiMin) phiMin = phi[d + 1];
-    if (phi[d + 1] > phiMax) phiMax = phi[d + 1];
-    // A second point at the same z draws a jump; elsewhere T is continuous (up to round-off).
-    if (dT.length === 0 || (jumps[d] && dT[dT.length - 1] !== T1)) point(z[d], T1, phi[d], c * T1);
-    if (t1 !== 0 || t2 !== 0) {
-      const dt = t2 - t1;
-      // Interior extreme of T where t(s) = 0.
-      if (dt !== 0) {
-        const x = (-t1 * h) / dt;
-        if (x > 0 && x < h) {
-          const T = elementTorque(T1, t1, dt, h, x);
-          if (Math.abs(T) > segMax[k]) {
-            segMax[k] = Math.abs(T);
-            segAt[k] = z[d] + x;
+    interior[s] = Math.min(diagramPoints, Math.floor(DIAGRAM_INTERIOR_BUDGET / Math.max(1, loaded)));
+    // First point, a second point at each jump, interior points, and the right end of each element.
+    diagStart[s + 1] = diagStart[s] + 1 + jumped + interior[s] * loaded + elemN;
+  }
+  const room = diagStart[nShafts];
+  const dZ = f64(room);
+  const dT = f64(room);
+  const dPhi = f64(room);
+  const dTau = f64(room);
+  const diagCount = i32(nShafts);
+  const segMax = f64(nSegments);
+  const segAt = f64(nSegments);
+  const segPhiFrom = f64(nSegments).fill(Number.NaN);
+  const segPhiTo = f64(nSegments);
+  const totalTwist = f64(nShafts);
+  const roots = f64(2);
+
+  for (let s = 0; s < nShafts; s++) {
+    const shaft = model.shafts[s];
+    const first = shaftStart[s];
+    const last = shaftStart[s + 1] - 1;
+    const e0 = first - s; // element index of the first element of this shaft
+    const g0 = segBase[s];
+    const elemN = last - first;
+    const nInterior = interior[s];
+    let n = diagStart[s]; // next diagram point
+    const point = (zz: number, T: number, p: number, tau: number) => {
+      dZ[n] = zz;
+      dT[n] = T;
+      dPhi[n] = p;
+      dTau[n++] = tau;
+    };
+    for (let k = 0; k < shaft.segments.length; k++) segAt[g0 + k] = shaft.segments[k].z0;
+    let phiMin = Infinity;
+    let phiMax = -Infinity;
+    for (let e = e0; e < e0 + elemN; e++) {
+      const d = first + (e - e0);
+      const k = elemSegment[e];
+      const g = g0 + k;
+      const sg = shaft.segments[k];
+      if (Number.isNaN(segPhiFrom[g])) segPhiFrom[g] = phi[d];
+      segPhiTo[g] = phi[d + 1];
+      const h = z[d + 1] - z[d];
+      const t1 = elemT1[e];
+      const t2 = elemT2[e];
+      const T1 = TL[e];
+      const T2 = TR[e];
+      const gj = sg.rigidity;
+      const c = sg.shearFactor;
+      if (Math.abs(T1) > segMax[g]) {
+        segMax[g] = Math.abs(T1);
+        segAt[g] = z[d];
+      }
+      if (Math.abs(T2) > segMax[g]) {
+        segMax[g] = Math.abs(T2);
+        segAt[g] = z[d + 1];
+      }
+      if (phi[d] < phiMin) phiMin = phi[d];
+      if (phi[d] > phiMax) phiMax = phi[d];
+      if (phi[d + 1] < phiMin) phiMin = phi[d + 1];
+      if (phi[d + 1] > phiMax) phiMax = phi[d + 1];
+      // A second point at the same z draws a jump; elsewhere T is continuous (up to round-off).
+      if (n === diagStart[s] || (jumps[d] && dT[n - 1] !== T1)) point(z[d], T1, phi[d], c * T1);
+      if (t1 !== 0 || t2 !== 0) {
+        const dt = t2 - t1;
+        // Interior extreme of T where t(s) = 0.
+        if (dt !== 0) {
+          const x = (-t1 * h) / dt;
+          if (x > 0 && x < h) {
+            const T = elementTorque(T1, t1, dt, h, x);
+            if (Math.abs(T) > segMax[g]) {
+              segMax[g] = Math.abs(T);
+              segAt[g] = z[d] + x;
+            }
           }
         }
-      }
-      // Interior extremes of φ where T(s) = 0.
-      const na = -dt / (2 * h);
-      const nr = quadraticRoots(na, -t1, T1, roots);
-      for (let r = 0; r < nr; r++) {
-        const x = roots[r];
-        if (x > 0 && x < h) {
-          const p = elementRotation(phi[d], T1, t1, dt, h, gj, x);
-          if (p < phiMin) phiMin = p;
-          if (p > phiMax) phiMax = p;
+        // Interior extremes of φ where T(s) = 0.
+        const na = -dt / (2 * h);
+        const nr = quadraticRoots(na, -t1, T1, roots);
+        for (let r = 0; r < nr; r++) {
+          const x = roots[r];
+          if (x > 0 && x < h) {
+            const p = elementRotation(phi[d], T1, t1, dt, h, gj, x);
+            if (p < phiMin) phiMin = p;
+            if (p > phiMax) phiMax = p;
+          }
+        }
+        for (let m = 1; m <= nInterior; m++) {
+          const x = (h * m) / (nInterior + 1);
+          const T = elementTorque(T1, t1, dt, h, x);
+          point(z[d] + x, T, elementRotation(phi[d], T1, t1, dt, h, gj, x), c * T);
         }
       }
-      for (let m = 1; m <= interior; m++) {
-        const x = (h * m) / (interior + 1);
-        const T = elementTorque(T1, t1, dt, h, x);
-        point(z[d] + x, T, elementRotation(phi[d], T1, t1, dt, h, gj, x), c * T);
-      }
+      point(z[d + 1], T2, phi[d + 1], c * T2);
     }
-    point(z[d + 1], T2, phi[d + 1], c * T2);
+    if (elemN === 0) {
+      point(z[first], 0, phi[first], 0);
+      phiMin = phiMax = phi[first];
+    }
+    diagCount[s] = n - diagStart[s];
+    totalTwist[s] = phiMax - phiMin;
   }
-  if (elemN === 0) {
-    point(z[first], 0, phi[first], 0);
-    phiMin = phiMax = phi[first];
-  }
-  const segments: SegmentResult[] = shaft.segments.map((sg, k) => {
-    const maxAbs = segMax[k];
-    return {
-      index: k,
-      section: sg.sectionId,
-      from: sg.z0,
-      to: sg.z1,
-      torsionalRigidity: sg.rigidity,
-      maxAbsTorque: maxAbs,
-      governingZ: segAt[k],
-      maxTwistRate: maxAbs / sg.rigidity,
-      twist: segPhiTo[k] - segPhiFrom[k],
-      layers: sg.layers.map((l) => {
-        const maxShear = (l.G * l.rOuter * maxAbs) / sg.rigidity;
-        return {
-          material: l.materialId,
-          outerRadius: l.rOuter,
-          maxShear,
-          allowableShear: l.allowableShear,
-          utilisation: l.allowableShear === null ? null : maxShear / l.allowableShear,
-          shearYield: l.shearYield,
-        };
-      }),
-    };
-  });
-  return {
-    id: shaft.id,
-    ...(shaft.name === undefined ? {} : { name: shaft.name }),
-    length: shaft.length,
-    stations,
-    segments,
-    totalTwist: phiMax - phiMin,
-    diagram: { z: dz, torque: dT, rotation: dPhi, shear: dTau },
-  };
-}
 
-/** Work arrays of shaftResult, indexed by segment within a shaft. */
-interface Scratch {
-  readonly segMax: Float64Array;
-  readonly segAt: Float64Array;
-  readonly segPhiFrom: Float64Array;
-  readonly segPhiTo: Float64Array;
-  readonly roots: Float64Array;
+  // Twist of each segment, and the largest stress in each of its layers.
+  const segTwist = segPhiFrom; // reused in place: φ(to) − φ(from)
+  const layerMaxShear = f64(layerBase[nSegments]);
+  for (let s = 0, g = 0; s < nShafts; s++) {
+    for (const sg of model.shafts[s].segments) {
+      segTwist[g] = segPhiTo[g] - segPhiFrom[g];
+      const maxAbs = segMax[g];
+      for (let j = 0; j < sg.layers.length; j++) {
+        const l = sg.layers[j];
+        layerMaxShear[layerBase[g] + j] = (l.G * l.rOuter * maxAbs) / sg.rigidity;
+      }
+      g++;
+    }
+  }
+  return { segBase, segMaxAbs: segMax, segAt, segTwist, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
 }
 
 /** Interior diagram points per shaft at most. */
@@ -404,20 +446,19 @@ export const MAX_LISTED_CHECKS = 10_000;
 /**
  * The checks, worst utilisation first: at most MAX_LISTED_CHECKS of them (a
  * million-segment model has a million checks; the table wants the worst).
- * Candidates are gathered in typed arrays and objects are made only for the
- * ones listed. Answers the list and how many checks were evaluated.
+ * Candidates are gathered in typed arrays; `listed` orders those shown.
  */
-function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: CheckResult[]; total: number } {
+function buildChecks(model: ResolvedModel, cols: ShaftColumns): CheckColumns {
   const { twistRate, totalTwist } = model.limits;
+  const { segBase, layerBase, layerMaxShear, segMaxAbs } = cols;
   let n = 0;
-  for (const sr of shafts) {
-    for (const seg of sr.segments) {
+  for (const shaft of model.shafts) {
+    for (const seg of shaft.segments) {
       for (const l of seg.layers) if (l.allowableShear !== null) n++;
       if (twistRate !== null) n++;
     }
     if (totalTwist !== null) n++;
   }
-  // kind: 0 shear, 1 twist rate, 2 total twist; where: shaft, segment, layer.
   const kind = u8(n);
   const shaftIx = i32(n);
   const segIx = i32(n);
@@ -425,30 +466,31 @@ function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: Check
   const value = f64(n);
   const limit = f64(n);
   let k = 0;
-  shafts.forEach((sr, s) => {
-    for (const seg of sr.segments) {
+  model.shafts.forEach((shaft, s) => {
+    shaft.segments.forEach((seg, index) => {
+      const g = segBase[s] + index;
       for (let j = 0; j < seg.layers.length; j++) {
-        const l = seg.layers[j];
-        if (l.allowableShear === null) continue;
+        const allowable = seg.layers[j].allowableShear;
+        if (allowable === null) continue;
         kind[k] = 0;
         shaftIx[k] = s;
-        segIx[k] = seg.index;
+        segIx[k] = index;
         layerIx[k] = j;
-        value[k] = l.maxShear;
-        limit[k++] = l.allowableShear;
+        value[k] = layerMaxShear[layerBase[g] + j];
+        limit[k++] = allowable;
       }
       if (twistRate !== null) {
         kind[k] = 1;
         shaftIx[k] = s;
-        segIx[k] = seg.index;
-        value[k] = seg.maxTwistRate;
+        segIx[k] = index;
+        value[k] = segMaxAbs[g] / seg.rigidity;
         limit[k++] = twistRate;
       }
-    }
+    });
     if (totalTwist !== null) {
       kind[k] = 2;
       shaftIx[k] = s;
-      value[k] = sr.totalTwist;
+      value[k] = cols.totalTwist[s];
       limit[k++] = totalTwist;
     }
   });
@@ -459,23 +501,49 @@ function buildChecks(model: ResolvedModel, shafts: ShaftResult[]): { list: Check
   if (n <= MAX_LISTED_CHECKS) {
     for (let m = 0; m < n; m++) chosen.push(m);
   } else {
-    const sorted = util.slice().sort();
-    const threshold = sorted[n - MAX_LISTED_CHECKS];
+    const copy = f64(n);
+    copy.set(util);
+    const threshold = kthSmallest(copy, n - MAX_LISTED_CHECKS);
     for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] > threshold) chosen.push(m);
     for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] === threshold) chosen.push(m);
   }
   chosen = chosen.sort((x, y) => util[y] - util[x] || x - y);
-  const list = chosen.map((m): CheckResult => {
-    const shaft = shafts[shaftIx[m]];
-    const pass = value[m] <= limit[m];
-    if (kind[m] === 0) {
-      const material = shaft.segments[segIx[m]].layers[layerIx[m]].material;
-      return { kind: 'shear', shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass, segment: segIx[m], layer: layerIx[m], material };
+  const listed = i32(chosen.length);
+  listed.set(chosen);
+  return { total: n, listed, kind, shaft: shaftIx, segment: segIx, layer: layerIx, value, limit, utilisation: util };
+}
+
+/**
+ * The k-th smallest value (0-based) of `a`, which it reorders: Hoare's
+ * selection with the median of three as pivot, expected linear time.
+ * NaN is not expected (utilisations are finite).
+ */
+export function kthSmallest(a: Float64Array, k: number): number {
+  let lo = 0;
+  let hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >>> 1;
+    // Median of three of a[lo], a[mid], a[hi] as the pivot.
+    const x = a[lo];
+    const y = a[mid];
+    const z = a[hi];
+    const pivot = x < y ? (y < z ? y : x < z ? z : x) : x < z ? x : y < z ? z : y;
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i++] = a[j];
+        a[j--] = t;
+      }
     }
-    if (kind[m] === 1) return { kind: 'twistRate', shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass, segment: segIx[m] };
-    return { kind: 'totalTwist', shaft: shaft.id, value: value[m], limit: limit[m], utilisation: util[m], pass };
-  });
-  return { list, total: n };
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k];
+  }
+  return a[k];
 }
 
 /** Materials used by some segment without an allowable shear stress. */

@@ -7,7 +7,7 @@
  * one rotation unknown (a "dof"), numbered shaft by shaft, z ascending.
  */
 import type { ResolvedModel } from './normalise.js';
-import { f64, i32 } from './arena.js';
+import { f64, i32, i32Copy } from './arena.js';
 
 export interface StationLayout {
   readonly dofCount: number;
@@ -34,46 +34,65 @@ const MERGE_TOLERANCE = 1e-12;
 /** Builds the stations and elements of every shaft. */
 export function buildStations(model: ResolvedModel): StationLayout {
   const nShafts = model.shafts.length;
-  const points: number[][] = model.shafts.map(() => []);
-  const add = (s: number, z: number) => points[s].push(z);
-  model.shafts.forEach((shaft, s) => {
-    add(s, 0);
-    for (const seg of shaft.segments) add(s, seg.z1);
-  });
-  for (const p of model.supports) add(p.shaft, p.z);
-  for (const p of model.torques) add(p.shaft, p.z);
-  for (const p of model.discs) add(p.shaft, p.z);
-  for (const d of model.distributed) {
-    add(d.shaft, d.from);
-    add(d.shaft, d.to);
-  }
-  for (const g of model.meshes) {
-    add(g.a.shaft, g.a.z);
-    add(g.b.shaft, g.b.z);
-  }
-  for (const c of model.couplings) {
-    add(c.a.shaft, c.a.z);
-    add(c.b.shaft, c.b.z);
-  }
+  // Two passes over the points of every shaft: count them, then write them into one typed array.
+  const count = i32(nShafts + 1);
+  const start = i32(nShafts + 1);
+  const points = (visit: (s: number, z: number) => void) => {
+    model.shafts.forEach((shaft, s) => {
+      visit(s, 0);
+      for (const seg of shaft.segments) visit(s, seg.z1);
+    });
+    for (const p of model.supports) visit(p.shaft, p.z);
+    for (const p of model.torques) visit(p.shaft, p.z);
+    for (const p of model.discs) visit(p.shaft, p.z);
+    for (const d of model.distributed) {
+      visit(d.shaft, d.from);
+      visit(d.shaft, d.to);
+    }
+    for (const g of model.meshes) {
+      visit(g.a.shaft, g.a.z);
+      visit(g.b.shaft, g.b.z);
+    }
+    for (const c of model.couplings) {
+      visit(c.a.shaft, c.a.z);
+      visit(c.b.shaft, c.b.z);
+    }
+  };
+  points((s) => count[s + 1]++);
+  for (let s = 0; s < nShafts; s++) start[s + 1] = start[s] + count[s + 1];
+  const all = f64(start[nShafts]);
+  const fill = i32Copy(start, nShafts);
+  points((s, z) => (all[fill[s]++] = z));
 
+  // Each shaft's range holds its segment ends first (0 and every z1: ascending, as lengths are
+  // positive), then the other points. Sort the others only, then merge the two ascending runs,
+  // keeping one station of points closer than the tolerance.
   const shaftStart = i32(nShafts + 1);
-  const merged: Float64Array[] = [];
+  const merged = f64(start[nShafts]);
   for (let s = 0; s < nShafts; s++) {
-    const sorted = f64(points[s].length);
-    sorted.set(points[s]);
-    sorted.sort();
+    const ends = start[s] + 1 + model.shafts[s].segments.length;
+    let a = start[s];
+    let b = ends;
+    if (!ascending(all, a, ends)) {
+      all.subarray(a, start[s + 1]).sort(); // cannot happen for a normalised model; kept as a guard
+      b = start[s + 1];
+    } else if (!ascending(all, b, start[s + 1])) all.subarray(b, start[s + 1]).sort();
+    const aEnd = b;
+    const bEnd = start[s + 1];
     const tol = MERGE_TOLERANCE * model.shafts[s].length;
-    let n = 0;
-    for (let k = 0; k < sorted.length; k++) {
-      if (n === 0 || sorted[k] - sorted[n - 1] > tol) sorted[n++] = sorted[k];
+    const base = shaftStart[s];
+    let n = base;
+    while (a < aEnd || b < bEnd) {
+      const v = b >= bEnd || (a < aEnd && all[a] <= all[b]) ? all[a++] : all[b++];
+      if (n === base || v - merged[n - 1] > tol) merged[n++] = v;
     }
     // The last station is the shaft's end exactly, whatever point merged into it.
-    sorted[n - 1] = model.shafts[s].length;
-    merged.push(sorted.subarray(0, n));
-    shaftStart[s + 1] = shaftStart[s] + n;
+    merged[n - 1] = model.shafts[s].length;
+    shaftStart[s + 1] = n;
   }
   const dofCount = shaftStart[nShafts];
   const z = f64(dofCount);
+  z.set(merged.subarray(0, dofCount));
   const shaftOf = i32(dofCount);
   const elemCount = dofCount - nShafts;
   const elemLeft = i32(elemCount);
@@ -81,7 +100,6 @@ export function buildStations(model: ResolvedModel): StationLayout {
   let e = 0;
   for (let s = 0; s < nShafts; s++) {
     const base = shaftStart[s];
-    z.set(merged[s], base);
     shaftOf.fill(s, base, shaftStart[s + 1]);
     const segments = model.shafts[s].segments;
     let seg = 0;
@@ -123,4 +141,10 @@ export function buildStations(model: ResolvedModel): StationLayout {
   }
 
   return { dofCount, shaftStart, z, shaftOf, elemLeft, elemSegment, elemT1, elemT2, stationAt };
+}
+
+/** True when a[from … to − 1] never decreases. */
+function ascending(a: Float64Array, from: number, to: number): boolean {
+  for (let k = from + 1; k < to; k++) if (a[k] < a[k - 1]) return false;
+  return true;
 }
