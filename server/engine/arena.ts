@@ -37,6 +37,10 @@ let slabUsed = 0;
 let slabDirty = 0;
 /** Slabs outgrown during the current solve (their arrays are still in use). */
 const outgrown: ArrayBuffer[] = [];
+/** Large regions given back during the current solve, by size in bytes: [buffer, offset]. */
+const released = new Map<number, Array<[ArrayBuffer, number]>>();
+/** Offsets of the released regions of each buffer: a region is given back once. */
+const releasedAt = new Map<ArrayBuffer, Set<number>>();
 
 /** Runs `fn` with typed arrays taken from the arena, then releases them all. */
 export function withArena<T>(fn: () => T): T {
@@ -51,6 +55,8 @@ export function withArena<T>(fn: () => T): T {
     active = false;
     if (chunks.length > KEPT_CHUNKS) chunks.length = KEPT_CHUNKS;
     outgrown.length = 0;
+    released.clear();
+    releasedAt.clear();
     if (slab && slab.byteLength > SLAB_KEPT_BYTES) {
       slab = null;
       slabDirty = 0;
@@ -67,6 +73,28 @@ export function reserveLarge(bytes: number): void {
   if (slab && slab.byteLength >= bytes) return;
   slab = new ArrayBuffer(roundUp(bytes));
   slabDirty = 0;
+}
+
+/**
+ * Gives the space of large arrays back for the rest of the solve: a later
+ * array of the same size takes it. Only for arrays nothing reads again; small
+ * arrays and arrays from outside the arena are ignored.
+ */
+export function release(...arrays: Array<Float64Array | Int32Array | Uint8Array>): void {
+  if (!active) return;
+  for (const a of arrays) {
+    const buffer = a.buffer as ArrayBuffer;
+    if (a.byteLength <= LARGE_BYTES || a.byteOffset % ALIGN !== 0) continue;
+    if (buffer !== slab && !outgrown.includes(buffer)) continue;
+    const offsets = releasedAt.get(buffer) ?? new Set<number>();
+    if (offsets.has(a.byteOffset)) continue;
+    offsets.add(a.byteOffset);
+    releasedAt.set(buffer, offsets);
+    const size = roundUp(a.byteLength);
+    const list = released.get(size);
+    if (list) list.push([buffer, a.byteOffset]);
+    else released.set(size, [[buffer, a.byteOffset]]);
+  }
 }
 
 /** Drops the slab kept between solves (a long-lived process after a very large solve). */
@@ -98,6 +126,11 @@ function take(bytes: number): [ArrayBuffer, number, boolean] | null {
   if (!active) return null;
   if (bytes > LARGE_BYTES) {
     const size = roundUp(bytes);
+    const again = released.get(size)?.pop();
+    if (again) {
+      releasedAt.get(again[0])?.delete(again[1]);
+      return [again[0], again[1], true];
+    }
     if (!slab || slabUsed + size > slab.byteLength) {
       // Outgrown: a new slab of at least twice the size; arrays already handed out stay where they are.
       if (slab && slabUsed > 0) outgrown.push(slab);

@@ -11,7 +11,7 @@ import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import { reduceConstraints, type Reduction, type RigidEdge } from './constraints.js';
 import type { SymmetricEntries } from './sparse-solver.js';
-import { f64, i32, i32Copy, u8 } from './arena.js';
+import { f64, i32, i32Copy, release, u8 } from './arena.js';
 
 /** All elastic parts as springs; the first `elemCount` are the shaft elements, in element order. */
 export interface SpringSet {
@@ -239,5 +239,6 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     }
     if (free) groups.push(Array.from(members.subarray(first, visited)));
   }
+  release(deg, anchored, adjV, adjR, fill, rho, seen, stack, members);
   return groups;
 }

@@ -10,7 +10,7 @@ import { assemble, findMechanisms, type Assembly } from './assemble.js';
 import { SingularMatrixError, SparseLDLT } from './sparse-solver.js';
 import { solveDense } from './dense-solver.js';
 import { expandRotations, recover } from './recover.js';
-import { f64, i32, reserveLarge, withArena } from './arena.js';
+import { f64, i32, release, reserveLarge, withArena } from './arena.js';
 import { toSolution, writeSolutionJson, type Solved } from './output.js';
 
 export { normaliseModel } from './normalise.js';
@@ -71,10 +71,11 @@ export function withSolved<T>(model: ResolvedModel, options: SolveOptions, use: 
 
 /**
  * Bytes of large work arrays per station of `stationEstimate`, a little more
- * than the most measured (about 590, a chain under a distributed torque with
- * eight diagram points per element): reserved in one piece at the start.
+ * than the most measured (about 450 per station on a gear tree of 1e6
+ * stations, arrays given back with `release` being reused): reserved in one
+ * piece at the start of a large solve.
  */
-const LARGE_BYTES_PER_STATION = 640;
+const LARGE_BYTES_PER_STATION = 480;
 
 /** Stations a resolved model can have at most (each point on a shaft may be one). */
 function stationEstimate(model: ResolvedModel): number {
@@ -106,8 +107,9 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
       x = solveDense(asm.system, asm.rhs);
     } else {
       const ldl = new SparseLDLT(asm.system);
+      release(asm.system.rows, asm.system.cols, asm.system.vals);
       factorNonzeros = ldl.factorNonzeros;
-      x = refine(asm, ldl.solve(asm.rhs), (r) => ldl.solve(r));
+      x = refine(asm, ldl.solve(asm.rhs), (r, out) => ldl.solve(r, out));
       if (ldl.minPivotRatio < 1e-10) {
         warnings.push({
           code: 'SN_STIFFNESS_SPREAD',
@@ -134,6 +136,7 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
   }
   lap('factorise');
   const phi = expandRotations(asm, x);
+  release(x);
   const rec = recover(model, layout, asm, phi, options.diagramPoints ?? 8);
   lap('recover');
   let maxResidual = 0;
@@ -163,26 +166,38 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
  * k·φ: on long chains, where the triangular solves carry errors along the
  * chain, this recovers the reactions to round-off of the torques.
  */
-function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array) => Float64Array): Float64Array {
-  let best = springResidual(asm, x);
+function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array, out: Float64Array) => Float64Array): Float64Array {
+  const n = x.length;
+  const answer = x;
+  // Four vectors for the whole refinement: the residual, the correction, and the best and trial solutions.
+  const r = f64(n);
+  const dx = f64(n);
+  let trial = f64(n);
+  let best = springResidual(asm, x, r);
   // Below a few ulps of the torques summed into it, the residual is round-off: nothing to gain.
   for (let step = 0; step < 3 && best.norm > 16 * Number.EPSILON * best.scale; step++) {
-    const dx = solve(best.r);
-    const y = f64(x.length);
-    for (let k = 0; k < x.length; k++) y[k] = x[k] + dx[k];
-    const next = springResidual(asm, y);
+    solve(r, dx);
+    for (let k = 0; k < n; k++) trial[k] = x[k] + dx[k];
+    const next = springResidual(asm, trial, r);
     if (!(next.norm < best.norm)) break;
-    x = y;
+    const kept = x;
+    x = trial;
+    trial = kept;
     best = next;
   }
-  return x;
+  // The best solution is handed back in the vector that came in; the rest is work space.
+  if (x !== answer) {
+    answer.set(x);
+    release(r, dx, x);
+  } else release(r, dx, trial);
+  return answer;
 }
 
-/** f − K·x of the reduced system, summed over the springs in difference form; with its largest entry. */
-function springResidual(asm: Assembly, x: Float64Array): { r: Float64Array; norm: number; scale: number } {
+/** f − K·x of the reduced system into `r`, summed over the springs in difference form; with its largest entry. */
+function springResidual(asm: Assembly, x: Float64Array, r: Float64Array): { norm: number; scale: number } {
   const { springs: s, load } = asm;
   const { varOf, alpha, beta } = asm.reduction;
-  const r = f64(x.length);
+  r.fill(0);
   let scale = 0;
   for (let m = 0; m < s.count; m++) {
     const i = s.i[m];
@@ -206,7 +221,7 @@ function springResidual(asm: Assembly, x: Float64Array): { r: Float64Array; norm
   }
   let norm = 0;
   for (let k = 0; k < r.length; k++) norm = Math.max(norm, Math.abs(r[k]));
-  return { r, norm, scale };
+  return { norm, scale };
 }
 
 /** Throws SN_MECHANISM naming the shafts of every group free to turn. */

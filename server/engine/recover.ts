@@ -12,7 +12,7 @@ import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Assembly } from './assemble.js';
 import type { CouplingResult, GearMeshResult, ReactionResult, Warning } from '../../shared-types/solution.js';
-import { f64, i32, u8 } from './arena.js';
+import { f64, f64Copy, i32, i32Copy, release, u8 } from './arena.js';
 
 /**
  * Everything recovered, in columns (typed arrays from the arena) rather than
@@ -108,6 +108,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   }
   for (let d = 0; d < need.length; d++) need[d] -= load[d];
   const lambda = constraintTorques(edges, need);
+  release(need);
 
   const warnings: Warning[] = [];
   for (const loop of asm.reduction.lockedLoops) {
@@ -172,6 +173,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   // Equilibrium of every shaft, summed from the recovered torques (not assumed).
   const sums = f64(model.shafts.length);
   for (let d = 0; d < applied.length; d++) sums[layout.shaftOf[d]] += applied[d];
+  release(applied);
   for (const t of model.torques) sums[t.shaft] += t.torque;
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
   for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
@@ -188,6 +190,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
   }
   const cols = recoverShafts(model, layout, phi, TL, TR, jumps, diagramPoints);
+  release(jumps);
   const checks = buildChecks(model, cols);
   for (const mat of missingAllowables(model)) {
     warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
@@ -203,39 +206,58 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
 function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float64Array {
   const lambda = f64(edges.length);
   if (edges.length === 0) return lambda;
-  const rest = new Map<number, number>(); // dof → undecided edge count
-  const incident = new Map<number, number[]>();
+  // Incidence of dofs and edges in compressed rows (a dof appears once per edge, even if the edge ties it to itself).
+  const nDof = need.length;
+  const rest = i32(nDof); // undecided edges at each dof
+  const ends = (e: (typeof edges)[number]) => (e.j >= 0 && e.j !== e.i ? 2 : 1);
+  for (const e of edges) {
+    rest[e.i]++;
+    if (ends(e) === 2) rest[e.j]++;
+  }
+  const rowStart = i32(nDof + 1);
+  for (let d = 0; d < nDof; d++) rowStart[d + 1] = rowStart[d] + rest[d];
+  const incident = i32(rowStart[nDof]);
+  const fill = i32Copy(rowStart, nDof);
   edges.forEach((e, n) => {
-    for (const d of e.j >= 0 && e.j !== e.i ? [e.i, e.j] : [e.i]) {
-      rest.set(d, (rest.get(d) ?? 0) + 1);
-      const list = incident.get(d);
-      if (list) list.push(n);
-      else incident.set(d, [n]);
-    }
+    incident[fill[e.i]++] = n;
+    if (ends(e) === 2) incident[fill[e.j]++] = n;
   });
   const coef = (e: (typeof edges)[number], d: number) => (e.i === d ? e.p : 0) + (e.j === d ? e.q : 0);
   const decided = u8(edges.length);
-  const residual = new Map<number, number>();
-  for (const d of rest.keys()) residual.set(d, need[d]);
-  const stack = [...rest.entries()].filter(([, c]) => c === 1).map(([d]) => d);
-  while (stack.length > 0) {
-    const d = stack.pop()!;
-    if (rest.get(d) !== 1) continue;
-    const n = incident.get(d)!.find((m) => !decided[m]);
-    if (n === undefined) continue;
+  const residual = f64Copy(need, nDof);
+  const stack = i32(2 * rowStart[nDof]); // a dof is pushed at most once at the start and once per edge it loses
+  let sp = 0;
+  for (let d = 0; d < nDof; d++) if (rest[d] === 1) stack[sp++] = d;
+  while (sp > 0) {
+    const d = stack[--sp];
+    if (rest[d] !== 1) continue;
+    let n = -1;
+    for (let p = rowStart[d]; p < rowStart[d + 1]; p++) {
+      if (!decided[incident[p]]) {
+        n = incident[p];
+        break;
+      }
+    }
+    if (n < 0) continue;
     const e = edges[n];
     const a = coef(e, d);
     if (a === 0) continue;
-    lambda[n] = residual.get(d)! / a;
+    lambda[n] = residual[d] / a;
     decided[n] = 1;
-    for (const o of e.j >= 0 && e.j !== e.i ? [e.i, e.j] : [e.i]) {
-      rest.set(o, rest.get(o)! - 1);
-      if (o !== d) {
-        residual.set(o, residual.get(o)! - lambda[n] * coef(e, o));
-        if (rest.get(o) === 1) stack.push(o);
+    rest[e.i]--;
+    if (e.i !== d) {
+      residual[e.i] -= lambda[n] * coef(e, e.i);
+      if (rest[e.i] === 1) stack[sp++] = e.i;
+    }
+    if (ends(e) === 2) {
+      rest[e.j]--;
+      if (e.j !== d) {
+        residual[e.j] -= lambda[n] * coef(e, e.j);
+        if (rest[e.j] === 1) stack[sp++] = e.j;
       }
     }
   }
+  release(rest, rowStart, incident, fill, stack);
   const open = edges.map((_, n) => n).filter((n) => !decided[n]);
   if (open.length === 0) return lambda;
   const dofs = [...new Set(open.flatMap((n) => [edges[n].i, edges[n].j]).filter((d) => d >= 0))];
@@ -246,7 +268,7 @@ function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float6
     A.set(row.get(e.i)!, c, A.get(row.get(e.i)!, c) + e.p);
     if (e.j >= 0) A.set(row.get(e.j)!, c, A.get(row.get(e.j)!, c) + e.q);
   });
-  const b = Matrix.columnVector(dofs.map((d) => residual.get(d)!));
+  const b = Matrix.columnVector(dofs.map((d) => residual[d]));
   const x = pseudoInverse(A).mmul(b);
   open.forEach((n, c) => (lambda[n] = x.get(c, 0)));
   return lambda;
@@ -408,6 +430,7 @@ function recoverShafts(
       g++;
     }
   }
+  release(segPhiTo, interior);
   return { segBase, segMaxAbs: segMax, segAt, segTwist, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
 }
 
@@ -504,6 +527,7 @@ function buildChecks(model: ResolvedModel, cols: ShaftColumns): CheckColumns {
     const copy = f64(n);
     copy.set(util);
     const threshold = kthSmallest(copy, n - MAX_LISTED_CHECKS);
+    release(copy);
     for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] > threshold) chosen.push(m);
     for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] === threshold) chosen.push(m);
   }

@@ -10,7 +10,7 @@
  *
  * The constructor factorises; `solve` answers K·x = b.
  */
-import { f64, i32, i32Copy, u8 } from './arena.js';
+import { f64, i32, i32Copy, release, u8 } from './arena.js';
 
 /** A symmetric matrix by its diagonal and its strictly off-diagonal entries (either triangle, duplicates summed). */
 export interface SymmetricEntries {
@@ -130,14 +130,16 @@ export class SparseLDLT {
     this.Li = Li;
     this.Lx = Lx;
     this.D = D;
+    release(Ap, Ai, Ax, pinv, parent, lnz, flag, Y, pattern);
     this.factorNonzeros = nnz;
     this.minPivotRatio = n === 0 ? 1 : minRatio;
   }
 
-  /** Solves K·x = b. */
-  solve(b: Float64Array): Float64Array {
+  /** Solves K·x = b, into `out` when given (it may not be `b`); answers x. */
+  solve(b: Float64Array, out?: Float64Array): Float64Array {
     const { n, perm, Lp, Li, Lx, D } = this;
-    const y = f64(n);
+    this.work ??= f64(n);
+    const y = this.work;
     for (let k = 0; k < n; k++) y[k] = b[perm[k]];
     for (let j = 0; j < n; j++) {
       const yj = y[j];
@@ -149,10 +151,13 @@ export class SparseLDLT {
       for (let p = Lp[j]; p < Lp[j + 1]; p++) yj -= Lx[p] * y[Li[p]];
       y[j] = yj;
     }
-    const x = f64(n);
+    const x = out ?? f64(n);
     for (let k = 0; k < n; k++) x[perm[k]] = y[k];
     return x;
   }
+
+  /** The permuted right-hand side during a solve, reused by every solve. */
+  private work: Float64Array | null = null;
 }
 
 /** Compressed columns of the off-diagonal part, both triangles, duplicates summed. */
@@ -194,6 +199,7 @@ export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array
     }
     Ap[c + 1] = w;
   }
+  release(counts, start, last);
   return { Ap, Ai: Ai.subarray(0, w), Ax: Ax.subarray(0, w) };
 }
 
@@ -222,7 +228,10 @@ export function fillReducingOrder(n: number, Ap: Int32Array, Ai: Int32Array): In
       if (!done[u] && --degree[u] === 1) stack[sp++] = u;
     }
   }
-  if (placed === n) return order;
+  if (placed === n) {
+    release(degree, done, stack);
+    return order;
+  }
 
   // Minimum degree on the loops that remain, with explicit adjacency sets.
   const adj = new Map<number, Set<number>>();

@@ -7,7 +7,7 @@
  * one rotation unknown (a "dof"), numbered shaft by shaft, z ascending.
  */
 import type { ResolvedModel } from './normalise.js';
-import { f64, i32, i32Copy } from './arena.js';
+import { f64, i32, i32Copy, release } from './arena.js';
 
 export interface StationLayout {
   readonly dofCount: number;
@@ -93,6 +93,7 @@ export function buildStations(model: ResolvedModel): StationLayout {
   const dofCount = shaftStart[nShafts];
   const z = f64(dofCount);
   z.set(merged.subarray(0, dofCount));
+  release(all, merged, fill);
   const shaftOf = i32(dofCount);
   const elemCount = dofCount - nShafts;
   const elemLeft = i32(elemCount);
