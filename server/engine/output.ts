@@ -105,9 +105,28 @@ export function toSolution(sv: Solved): Solution {
   };
 }
 
+/**
+ * The text of numbers written lately, in a small direct-mapped table keyed by
+ * the bits of the double: most numbers of an answer appear more than once (a
+ * station's z, rotation and torques again in the diagram, a segment's peak
+ * torque again in its layers and its checks), and turning a double into its
+ * shortest text costs more than looking it up. Cleared for every answer.
+ */
+const NUM_SLOTS = 4096; // a power of two
+const numKey = new Float64Array(NUM_SLOTS).fill(Number.NaN);
+const numText: string[] = new Array<string>(NUM_SLOTS).fill('');
+const numBits = new Float64Array(1);
+const numWords = new Int32Array(numBits.buffer);
+
 /** A JSON number as JSON.stringify writes it (null for NaN and ±Infinity). */
 function num(x: number): string {
-  return Number.isFinite(x) ? String(x) : 'null';
+  numBits[0] = x;
+  const slot = (numWords[0] ^ numWords[1] ^ (numWords[1] >>> 12)) & (NUM_SLOTS - 1);
+  if (numKey[slot] === x) return numText[slot]; // NaN never equals: it is never found
+  const text = Number.isFinite(x) ? String(x) : 'null';
+  numKey[slot] = x;
+  numText[slot] = text;
+  return text;
 }
 
 /** A nullable JSON number. */
@@ -123,6 +142,7 @@ export function writeSolutionJson(sv: Solved, sink: (text: string) => void, piec
   const { model, layout, rec } = sv;
   const { z, shaftStart } = layout;
   const { phi, TL, TR, segBase, segMaxAbs, segAt, segTwist, layerBase, layerMaxShear, diagStart, diagCount } = rec;
+  numKey.fill(Number.NaN);
   let out = '';
   const flush = () => {
     if (out.length >= pieceChars) {

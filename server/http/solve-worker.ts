@@ -1,15 +1,17 @@
 /**
  * A solver worker thread. It takes one job at a time from the pool and answers
- * with the solution already serialised to JSON bytes, in chunks transferred
- * (not copied) to the request thread, so that a large solution never costs the
- * request thread a serialisation or a copy.
+ * with the solution already written as JSON bytes, in chunks transferred (not
+ * copied) to the request thread, so that a large solution never costs the
+ * request thread a serialisation or a copy. After each job it drops the
+ * engine's kept work memory: an idle server should not hold the hundreds of
+ * megabytes a million-station solve needed.
  */
 import { parentPort } from 'node:worker_threads';
 import { ModelError } from '../../shared-types/errors.js';
-import { solveModel } from '../engine/index.js';
+import { solveModelJson } from '../engine/index.js';
+import { releaseArena } from '../engine/arena.js';
 import { normaliseModel } from '../engine/normalise.js';
 import { HttpError } from './errors.js';
-import { jsonToChunks } from './json-bytes.js';
 import { checkModelShape, checkSize, parseJsonText } from './solve-core.js';
 import type { WorkerJob, WorkerReply } from './solver-pool.js';
 
@@ -32,13 +34,14 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
     }
     const chunks: Uint8Array[] = [];
     const transfer = new Set<ArrayBuffer>();
-    for (const c of jsonToChunks(solveModel(model))) {
+    solveModelJson(model, (text) => {
+      const c = Buffer.from(text, 'utf8');
       if (c.byteLength < COPY_BELOW) chunks.push(new Uint8Array(c));
       else {
         chunks.push(new Uint8Array(c.buffer, c.byteOffset, c.byteLength));
         transfer.add(c.buffer as ArrayBuffer);
       }
-    }
+    });
     return { reply: { id: job.id, ok: true, chunks }, transfer: [...transfer] };
   } catch (err) {
     if (err instanceof HttpError || err instanceof ModelError) {
@@ -52,4 +55,5 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
 parentPort?.on('message', (job: WorkerJob) => {
   const { reply, transfer } = run(job);
   parentPort?.postMessage(reply, transfer);
+  releaseArena();
 });

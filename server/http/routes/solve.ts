@@ -14,8 +14,8 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import type { FastifyReply } from 'fastify';
 import rateLimit from '@fastify/rate-limit';
 import { Model } from '../../../shared-types/model.js';
-import { Solution } from '../../../shared-types/solution.js';
-import { solveModel } from '../../engine/index.js';
+import { Solution, type Solution as SolutionT } from '../../../shared-types/solution.js';
+import { solveModelJson } from '../../engine/index.js';
 import { HttpError } from '../errors.js';
 import { errorResponses } from '../schemas.js';
 import { checkSize, type SizeLimits } from '../solve-core.js';
@@ -89,7 +89,11 @@ const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) =
         const chunks = await opts.pool.run({ kind: 'model', model: body });
         return sendChunks(reply, chunks ?? []);
       }
-      return solveModel(body);
+      // The engine writes the JSON text itself (the text JSON.stringify would give the solution object);
+      // Fastify sends a string as it is, so the type provider is told it is the Solution it encodes.
+      let text = '';
+      solveModelJson(body, (piece) => (text += piece), {}, Infinity);
+      return reply.type('application/json; charset=utf-8').send(text as unknown as SolutionT);
     },
   );
 };
