@@ -131,8 +131,21 @@ export function unitsOfKind(kind: QuantityKind): string[] {
   return table.filter((row) => row[0] === kind).map((row) => row[1]);
 }
 
+/** Canonical spellings already worked out: a model repeats the same few units many times. */
+const canonicalSeen = new Map<string, string>();
+const CANONICAL_SEEN_MAX = 1000; // spellings kept; the map starts afresh beyond
+
 /** Spellings that mean the same symbol: `·` or a space for `*`, `²`/`³`/`^2` for 2/3, `μ` for u. */
 export function canonicalUnit(text: string): string {
+  const seen = canonicalSeen.get(text);
+  if (seen !== undefined) return seen;
+  if (canonicalSeen.size >= CANONICAL_SEEN_MAX) canonicalSeen.clear();
+  const canonical = spellCanonical(text);
+  canonicalSeen.set(text, canonical);
+  return canonical;
+}
+
+function spellCanonical(text: string): string {
   return text
     .trim()
     .replace(/[·⋅×]/g, '*')

@@ -37,8 +37,8 @@ let slabUsed = 0;
 let slabDirty = 0;
 /** Slabs outgrown during the current solve (their arrays are still in use). */
 const outgrown: ArrayBuffer[] = [];
-/** Large regions given back during the current solve, by size in bytes: [buffer, offset]. */
-const released = new Map<number, Array<[ArrayBuffer, number]>>();
+/** Large regions given back during the current solve: size in bytes, buffer, offset. */
+const released: Array<[number, ArrayBuffer, number]> = [];
 /** Offsets of the released regions of each buffer: a region is given back once. */
 const releasedAt = new Map<ArrayBuffer, Set<number>>();
 
@@ -55,7 +55,7 @@ export function withArena<T>(fn: () => T): T {
     active = false;
     if (chunks.length > KEPT_CHUNKS) chunks.length = KEPT_CHUNKS;
     outgrown.length = 0;
-    released.clear();
+    released.length = 0;
     releasedAt.clear();
     if (slab && slab.byteLength > SLAB_KEPT_BYTES) {
       slab = null;
@@ -77,7 +77,7 @@ export function reserveLarge(bytes: number): void {
 
 /**
  * Gives the space of large arrays back for the rest of the solve: a later
- * array of the same size takes it. Only for arrays nothing reads again; small
+ * array that fits takes the smallest such space. Only for arrays nothing reads again; small
  * arrays and arrays from outside the arena are ignored.
  */
 export function release(...arrays: Array<Float64Array | Int32Array | Uint8Array>): void {
@@ -90,10 +90,7 @@ export function release(...arrays: Array<Float64Array | Int32Array | Uint8Array>
     if (offsets.has(a.byteOffset)) continue;
     offsets.add(a.byteOffset);
     releasedAt.set(buffer, offsets);
-    const size = roundUp(a.byteLength);
-    const list = released.get(size);
-    if (list) list.push([buffer, a.byteOffset]);
-    else released.set(size, [[buffer, a.byteOffset]]);
+    released.push([roundUp(a.byteLength), buffer, a.byteOffset]);
   }
 }
 
@@ -126,10 +123,17 @@ function take(bytes: number): [ArrayBuffer, number, boolean] | null {
   if (!active) return null;
   if (bytes > LARGE_BYTES) {
     const size = roundUp(bytes);
-    const again = released.get(size)?.pop();
-    if (again) {
-      releasedAt.get(again[0])?.delete(again[1]);
-      return [again[0], again[1], true];
+    // The smallest region given back that holds it (its pages are already in memory; fresh ones are slow).
+    let fit = -1;
+    for (let k = 0; k < released.length; k++) {
+      if (released[k][0] >= size && (fit < 0 || released[k][0] < released[fit][0])) fit = k;
+    }
+    if (fit >= 0) {
+      const [, buffer, at] = released[fit];
+      released[fit] = released[released.length - 1];
+      released.pop();
+      releasedAt.get(buffer)?.delete(at);
+      return [buffer, at, true];
     }
     if (!slab || slabUsed + size > slab.byteLength) {
       // Outgrown: a new slab of at least twice the size; arrays already handed out stay where they are.

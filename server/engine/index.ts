@@ -71,11 +71,11 @@ export function withSolved<T>(model: ResolvedModel, options: SolveOptions, use: 
 
 /**
  * Bytes of large work arrays per station of `stationEstimate`, a little more
- * than the most measured (about 450 per station on a gear tree of 1e6
+ * than the most measured (about 350 per station on a loaded chain of 1e6
  * stations, arrays given back with `release` being reused): reserved in one
  * piece at the start of a large solve.
  */
-const LARGE_BYTES_PER_STATION = 480;
+const LARGE_BYTES_PER_STATION = 400;
 
 /** Stations a resolved model can have at most (each point on a shaft may be one). */
 function stationEstimate(model: ResolvedModel): number {
@@ -110,6 +110,8 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
       release(asm.system.rows, asm.system.cols, asm.system.vals);
       factorNonzeros = ldl.factorNonzeros;
       x = refine(asm, ldl.solve(asm.rhs), (r, out) => ldl.solve(r, out));
+      ldl.dispose();
+      release(asm.system.diag, asm.rhs);
       if (ldl.minPivotRatio < 1e-10) {
         warnings.push({
           code: 'SN_STIFFNESS_SPREAD',
@@ -136,7 +138,7 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
   }
   lap('factorise');
   const phi = expandRotations(asm, x);
-  release(x);
+  release(x, asm.reduction.varOf, asm.reduction.alpha, asm.reduction.beta);
   const rec = recover(model, layout, asm, phi, options.diagramPoints ?? 8);
   lap('recover');
   let maxResidual = 0;

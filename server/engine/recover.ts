@@ -189,6 +189,8 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     jumps[springs.i[m]] = 1;
     if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
   }
+  // The assembly is read no more: its space goes to the per-shaft results.
+  release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load, elemF1, elemF2);
   const cols = recoverShafts(model, layout, phi, TL, TR, jumps, diagramPoints);
   release(jumps);
   const checks = buildChecks(model, cols);

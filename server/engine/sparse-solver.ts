@@ -156,6 +156,13 @@ export class SparseLDLT {
     return x;
   }
 
+  /** Gives the factor's arrays back to the arena: no solve may follow. */
+  dispose(): void {
+    release(this.Lp, this.Li, this.Lx, this.D, this.perm);
+    if (this.work) release(this.work);
+    this.work = null;
+  }
+
   /** The permuted right-hand side during a solve, reused by every solve. */
   private work: Float64Array | null = null;
 }

@@ -278,6 +278,28 @@ describe('mechanisms (SN_MECHANISM, 422)', () => {
     );
     expect(sol.couplings[0].twist).toBeCloseTo(0, 12);
   });
+
+  /** No supports; the demo's compliant G1 and C1 plus a compliant G2 from tail back to input: an elastic loop. */
+  const elasticLoop = (g2RadiusA: string): Json =>
+    demo((m) => {
+      m.supports = [];
+      const g1 = m.gearMeshes[0];
+      m.gearMeshes.push({ id: 'G2', a: { shaft: 'tail', at: 0, radius: g2RadiusA }, b: { shaft: 'input', at: '600 mm', radius: '40 mm' }, sense: 'opposite', stiffness: g1.stiffness });
+    });
+
+  it('an elastic loop whose ratios multiply to one turns freely as a whole: a mechanism of all three shafts', () => {
+    // G1: φ_out = −(40/120)·φ_in; C1: φ_tail = φ_out; G2 (120 mm on tail, 40 mm on input): φ_tail = −(40/120)·φ_in. They agree.
+    const e = refusal(elasticLoop('120 mm'));
+    expect(e.code).toBe('SN_MECHANISM');
+    expect(mechanism(e).map((i) => sorted(i.shafts))).toEqual([['input', 'output', 'tail']]);
+  });
+
+  it('an elastic loop whose ratios disagree cannot turn without strain: solved, in equilibrium, not a mechanism', () => {
+    const sol = solveModel(elasticLoop('100 mm'));
+    expect(sol.reactions).toHaveLength(0);
+    const scale = sol.shafts.reduce((m, sh) => sh.segments.reduce((mm, sg) => Math.max(mm, sg.maxAbsTorque), m), 0);
+    expect(sol.equilibrium.maxResidual).toBeLessThan(1e-9 * scale);
+  });
 });
 
 /** The demo with a rigid loop input@600 —G1— output@50 —C1— tail@0 —G2— input@600. */
