@@ -14,7 +14,7 @@ import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 import { ModelError } from '../shared-types/errors.js';
 import type { Solution } from '../shared-types/solution.js';
-import { solveModel } from './engine/index.js';
+import { solveModel, solveModelJson } from './engine/index.js';
 import { formatReport, stationCsv, type UnitSystem } from './report.js';
 
 const USAGE = `usage:
@@ -23,7 +23,7 @@ const USAGE = `usage:
   shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
 
   --units si|us   tables in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
-  --json          print the solution object (SI units) instead of tables
+  --json          print the solution object (SI units, compact JSON) instead of tables
   --csv           print the station table (SI units) as CSV
   --dense         solve with the dense reference solver (small models only)`;
 
@@ -75,7 +75,12 @@ function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
 class UsageError extends Error {}
 
 /** Runs the command line; answers the exit status. Output goes through the two writers. */
-export async function runCli(argv: string[], out: (s: string) => void, err: (s: string) => void): Promise<number> {
+/**
+ * Runs the command line. `out` and `err` take whole lines; `write`, when
+ * given, takes raw text for the JSON of --json, which is written in pieces
+ * (a million-station answer is longer than one string can be).
+ */
+export async function runCli(argv: string[], out: (s: string) => void, err: (s: string) => void, write?: (text: string) => void): Promise<number> {
   const [command, ...rest] = argv;
   try {
     if (command === 'serve') {
@@ -103,9 +108,21 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       err(`${path}: not valid JSON (${(e as Error).message})`);
       return 2;
     }
-    const solution: Solution = solveModel(model, { solver: args.dense ? 'dense' : 'sparse' });
-    if (args.output === 'json') out(JSON.stringify(solution, null, 2));
-    else if (args.output === 'csv') out(stationCsv(solution));
+    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const) };
+    if (args.output === 'json') {
+      // The engine writes the JSON itself: the same text as JSON.stringify of the solution object.
+      if (write) {
+        solveModelJson(model, write, options);
+        write('\n');
+      } else {
+        let text = '';
+        solveModelJson(model, (piece) => (text += piece), options, Infinity);
+        out(text);
+      }
+      return 0;
+    }
+    const solution: Solution = solveModel(model, options);
+    if (args.output === 'csv') out(stationCsv(solution));
     else out(formatReport(model as { name?: string }, solution, args.units));
     return 0;
   } catch (e) {
@@ -131,6 +148,7 @@ if (isMain) {
     process.argv.slice(2),
     (s) => process.stdout.write(s.endsWith('\n') ? s : s + '\n'),
     (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n'),
+    (text) => process.stdout.write(text),
   );
   // `serve` keeps running; everything else ends with its status.
   if (process.argv[2] !== 'serve' || code !== 0) process.exitCode = code;

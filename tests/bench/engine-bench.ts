@@ -11,6 +11,7 @@
  */
 import { normaliseModel, solveResolved, withSolved } from '../../server/engine/index.js';
 import { writeSolutionJson } from '../../server/engine/output.js';
+import { calibrationLine } from './calibrate.js';
 
 type Json = Record<string, unknown>;
 
@@ -173,6 +174,7 @@ function main(): void {
   console.log('first = first solve of this size in the process (fresh memory); best = best of the repeats (memory reused); ns/stn from best');
   console.log('core = stations + assembly + factorisation + solve; recover = every result, in columns; json = writing the JSON text (apart)');
   console.log('residual = largest equilibrium residual / largest |T|');
+  console.log(calibrationLine());
   console.log(
     [
       'kind'.padEnd(12),

@@ -18,6 +18,7 @@ import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { calibrationLine } from './calibrate.js';
 
 interface Histogram {
   average: number;
@@ -156,7 +157,7 @@ async function main(): Promise<void> {
   const kill = () => child.exitCode === null && child.kill('SIGKILL');
   process.on('exit', kill);
   const rows: string[] = [];
-  const notes: string[] = [];
+  const notes: string[] = [calibrationLine() + ', before'];
   try {
     const small = JSON.stringify(smallModel());
     const check = await fetch(new URL('/api/solve', url), { method: 'POST', body: small, headers: { 'content-type': 'application/json' } });
@@ -198,6 +199,7 @@ async function main(): Promise<void> {
       const r = await load.done;
       rows.push(row(label, r, `big solve: ${big.status}, ${big.seconds.toFixed(1)} s, ${(big.bytes / 1e6).toFixed(0)} MB answer`));
     }
+    notes.push(calibrationLine() + ', after');
   } finally {
     kill();
     fs.rmSync(dataDir, { recursive: true, force: true });

@@ -32,6 +32,27 @@ describe('shaftnet solve', () => {
     expect(printed.reactions).toEqual(solveModel(demo).reactions);
   });
 
+  it('--json with a raw writer streams the text in pieces: JSON.stringify of the solution, then a newline', async () => {
+    const n = 40_000; // segments: an answer of several pieces of 1 Mi characters
+    const model = {
+      format: 'shaftnet/1',
+      name: 'Long bar for the command line (invented)',
+      materials: [{ id: 's', G: 79.3e9 }],
+      sections: [{ id: 'd', shape: 'solid', d: 0.04 }],
+      shafts: [{ id: 'bar', segments: Array.from({ length: n }, () => ({ length: 2 ** -12, section: 'd', material: 's' })) }],
+      supports: [
+        { id: 'A', shaft: 'bar', at: 0, kind: 'fixed' },
+        { id: 'B', shaft: 'bar', at: n * 2 ** -12, kind: 'fixed' },
+      ],
+      torques: [{ id: 'T', shaft: 'bar', at: 1, torque: 250 }],
+    };
+    const pieces: string[] = [];
+    const code = await runCli(['solve', writeModel(model), '--json'], () => undefined, () => undefined, (t) => pieces.push(t));
+    expect(code).toBe(0);
+    expect(pieces.length).toBeGreaterThan(2);
+    expect(pieces.join('')).toBe(JSON.stringify(solveModel(model)) + '\n');
+  });
+
   it('tables show each reaction in the chosen units', async () => {
     const s = solveModel(demo);
     const si = await run(['solve', demoPath]);
