@@ -36,9 +36,6 @@ export interface Assembly {
   readonly load: Float64Array;
   readonly system: SymmetricEntries;
   readonly rhs: Float64Array;
-  /** Per element, the consistent nodal shares of its distributed torque, N·m. */
-  readonly elemF1: Float64Array;
-  readonly elemF2: Float64Array;
 }
 
 /** Builds springs, constraints and the reduced system K·x = f. */
@@ -82,8 +79,6 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
     ref: new Int32Array(extra.map((e) => e.ref)),
   };
   const load = f64(layout.dofCount);
-  const elemF1 = f64(elemCount);
-  const elemF2 = f64(elemCount);
   for (let e = 0; e < elemCount; e++) {
     const left = elemLeft[e];
     const h = z[left + 1] - z[left];
@@ -97,10 +92,8 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
     const t2 = elemT2[e];
     if (t1 !== 0 || t2 !== 0) {
       // ∫ N·t dz with linear N and linear t: exact nodal loads for a linear element.
-      elemF1[e] = (h * (2 * t1 + t2)) / 6;
-      elemF2[e] = (h * (t1 + 2 * t2)) / 6;
-      load[left] += elemF1[e];
-      load[left + 1] += elemF2[e];
+      load[left] += consistentLeft(h, t1, t2);
+      load[left + 1] += consistentRight(h, t1, t2);
     }
   }
   extra.forEach((s, n) => {
@@ -117,7 +110,20 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
   const shaftName = (dof: number) => model.shafts[shaftOf[dof]].id;
   const reduction = reduceConstraints(layout.dofCount, edges, shaftName);
   const { system, rhs } = reducedSystem(springs, load, reduction);
-  return { springs, edges, reduction, load, system, rhs, elemF1, elemF2 };
+  return { springs, edges, reduction, load, system, rhs };
+}
+
+/**
+ * The consistent nodal shares of a linear distributed torque t1 → t2 over an
+ * element of length h, ∫ N·t dz, at its left and right end, N·m (recovery
+ * recomputes them with the same arithmetic rather than keeping two arrays).
+ */
+export function consistentLeft(h: number, t1: number, t2: number): number {
+  return (h * (2 * t1 + t2)) / 6;
+}
+
+export function consistentRight(h: number, t1: number, t2: number): number {
+  return (h * (t1 + 2 * t2)) / 6;
 }
 
 /** K·x = f in the unknowns of the reduction. */

@@ -10,7 +10,7 @@
 import { Matrix, pseudoInverse } from 'ml-matrix';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
-import type { Assembly } from './assemble.js';
+import { consistentLeft, consistentRight, type Assembly } from './assemble.js';
 import type { CouplingResult, GearMeshResult, ReactionResult, Warning } from '../../shared-types/solution.js';
 import { f64, f64Copy, i32, i32Copy, release, u8 } from './arena.js';
 
@@ -82,8 +82,8 @@ export function expandRotations(asm: Assembly, x: Float64Array): Float64Array {
 
 /** Everything from the rotations. `diagramPoints` interior samples per loaded element. */
 export function recover(model: ResolvedModel, layout: StationLayout, asm: Assembly, phi: Float64Array, diagramPoints: number): Recovered {
-  const { springs, edges, load, elemF1, elemF2 } = asm;
-  const { z, elemLeft, shaftStart } = layout;
+  const { springs, edges, load } = asm;
+  const { z, elemLeft, shaftStart, elemT1, elemT2 } = layout;
   const elemCount = springs.elemCount;
 
   // Element end torques.
@@ -92,8 +92,12 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   for (let e = 0; e < elemCount; e++) {
     const d = elemLeft[e];
     const kd = springs.k[e] * (phi[d + 1] - phi[d]);
-    TL[e] = kd + elemF1[e];
-    TR[e] = kd - elemF2[e];
+    const t1 = elemT1[e];
+    const t2 = elemT2[e];
+    const loaded = t1 !== 0 || t2 !== 0;
+    const h = z[d + 1] - z[d];
+    TL[e] = kd + (loaded ? consistentLeft(h, t1, t2) : 0);
+    TR[e] = kd - (loaded ? consistentRight(h, t1, t2) : 0);
   }
 
   // Torque each elastic part puts on its dofs, and the constraint torque every dof needs: r = K·φ − F.
@@ -190,7 +194,7 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
   }
   // The assembly is read no more: its space goes to the per-shaft results.
-  release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load, elemF1, elemF2);
+  release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
   const cols = recoverShafts(model, layout, phi, TL, TR, jumps, diagramPoints);
   release(jumps);
   const checks = buildChecks(model, cols);
