@@ -13,11 +13,19 @@ import { reduceConstraints, type Reduction, type RigidEdge } from './constraints
 import type { SymmetricEntries } from './sparse-solver.js';
 import { f64, i32, i32Copy, release, u8 } from './arena.js';
 
-/** All elastic parts as springs; the first `elemCount` are the shaft elements, in element order. */
+/**
+ * All elastic parts as springs; the first `elemCount` are the shaft elements,
+ * in element order. Every spring has its stiffness in `k`. A shaft element e
+ * joins dof elemLeft[e] (p = −1) and the next dof (q = 1) with no initial
+ * strain, so only the other springs keep their ends and coefficients, in
+ * `i`, `j`, `p`, `q`, `c` at m − elemCount (a million elements save 32 MB).
+ * Read any spring with `readSpring`.
+ */
 export interface SpringSet {
   readonly count: number;
   readonly elemCount: number;
   readonly k: Float64Array;
+  readonly elemLeft: Int32Array;
   readonly i: Int32Array;
   readonly j: Int32Array;
   readonly p: Float64Array;
@@ -26,6 +34,27 @@ export interface SpringSet {
   /** For springs after the elements: which part ('support' | 'mesh' | 'coupling') and its index in the model. */
   readonly kind: ReadonlyArray<'support' | 'mesh' | 'coupling'>;
   readonly ref: Int32Array;
+}
+
+/** The ends (j = −1: none) and coefficients of the spring last read by `readSpring`. */
+export const spring = { i: 0, j: 0, p: 0, q: 0, c: 0 };
+
+/** Puts the ends and coefficients of spring m into `spring`. */
+export function readSpring(s: SpringSet, m: number): void {
+  const x = m - s.elemCount;
+  if (x < 0) {
+    spring.i = s.elemLeft[m];
+    spring.j = spring.i + 1;
+    spring.p = -1;
+    spring.q = 1;
+    spring.c = 0;
+  } else {
+    spring.i = s.i[x];
+    spring.j = s.j[x];
+    spring.p = s.p[x];
+    spring.q = s.q[x];
+    spring.c = s.c[x];
+  }
 }
 
 export interface Assembly {
@@ -70,11 +99,12 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
     count,
     elemCount,
     k: f64(count),
-    i: i32(count),
-    j: i32(count),
-    p: f64(count),
-    q: f64(count),
-    c: f64(count),
+    elemLeft,
+    i: i32(extra.length),
+    j: i32(extra.length),
+    p: f64(extra.length),
+    q: f64(extra.length),
+    c: f64(extra.length),
     kind: extra.map((e) => e.kind),
     ref: new Int32Array(extra.map((e) => e.ref)),
   };
@@ -84,10 +114,6 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
     const h = z[left + 1] - z[left];
     const seg = model.shafts[shaftOf[left]].segments[elemSegment[e]];
     springs.k[e] = seg.rigidity / h;
-    springs.i[e] = left;
-    springs.j[e] = left + 1;
-    springs.p[e] = -1;
-    springs.q[e] = 1;
     const t1 = elemT1[e];
     const t2 = elemT2[e];
     if (t1 !== 0 || t2 !== 0) {
@@ -97,13 +123,12 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
     }
   }
   extra.forEach((s, n) => {
-    const m = elemCount + n;
-    springs.k[m] = s.k;
-    springs.i[m] = s.i;
-    springs.j[m] = s.j;
-    springs.p[m] = s.p;
-    springs.q[m] = s.q;
-    springs.c[m] = s.c;
+    springs.k[elemCount + n] = s.k;
+    springs.i[n] = s.i;
+    springs.j[n] = s.j;
+    springs.p[n] = s.p;
+    springs.q[n] = s.q;
+    springs.c[n] = s.c;
   });
   for (const t of model.torques) load[layout.stationAt(t.shaft, t.z)] += t.torque;
 
@@ -138,14 +163,14 @@ function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction): { syst
   let nnz = 0;
   for (let m = 0; m < s.count; m++) {
     const k = s.k[m];
-    const i = s.i[m];
-    const j = s.j[m];
+    readSpring(s, m);
+    const { i, j, p, q } = spring;
     const u = varOf[i];
     const v = j >= 0 ? varOf[j] : -1;
-    const cu = u >= 0 ? s.p[m] * alpha[i] : 0;
-    const cv = v >= 0 ? s.q[m] * alpha[j] : 0;
+    const cu = u >= 0 ? p * alpha[i] : 0;
+    const cv = v >= 0 ? q * alpha[j] : 0;
     // e: the spring's stretch when every unknown is zero, with its sign turned into a load.
-    const e = s.c[m] - s.p[m] * beta[i] - (j >= 0 ? s.q[m] * beta[j] : 0);
+    const e = spring.c - p * beta[i] - (j >= 0 ? q * beta[j] : 0);
     if (u >= 0 && u === v) {
       const cc = cu + cv;
       diag[u] += k * cc * cc;
@@ -221,10 +246,11 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     return root;
   };
   for (let m = 0; m < s.count; m++) {
-    const u = varOf[s.i[m]];
-    const v = s.j[m] >= 0 ? varOf[s.j[m]] : -1;
-    const cu = u >= 0 ? s.p[m] * alpha[s.i[m]] : 0;
-    const cv = v >= 0 ? s.q[m] * alpha[s.j[m]] : 0;
+    readSpring(s, m);
+    const u = varOf[spring.i];
+    const v = spring.j >= 0 ? varOf[spring.j] : -1;
+    const cu = u >= 0 ? spring.p * alpha[spring.i] : 0;
+    const cv = v >= 0 ? spring.q * alpha[spring.j] : 0;
     if (u >= 0 && u === v) {
       if (Math.abs(cu + cv) > 1e-12 * (Math.abs(cu) + Math.abs(cv))) held[find(u)] = 1;
       continue;

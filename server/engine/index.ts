@@ -6,7 +6,7 @@ import { ModelError } from '../../shared-types/errors.js';
 import type { Solution, Warning } from '../../shared-types/solution.js';
 import { normaliseModel, type ResolvedModel } from './normalise.js';
 import { buildStations, type StationLayout } from './stations.js';
-import { assemble, findMechanisms, type Assembly } from './assemble.js';
+import { assemble, findMechanisms, readSpring, spring, type Assembly } from './assemble.js';
 import { SingularMatrixError, SparseLDLT } from './sparse-solver.js';
 import { solveDense } from './dense-solver.js';
 import { expandRotations, recover } from './recover.js';
@@ -202,16 +202,16 @@ function springResidual(asm: Assembly, x: Float64Array, r: Float64Array): { norm
   r.fill(0);
   let scale = 0;
   for (let m = 0; m < s.count; m++) {
-    const i = s.i[m];
-    const j = s.j[m];
+    readSpring(s, m);
+    const { i, j, p, q, c } = spring;
     const u = varOf[i];
     const v = j >= 0 ? varOf[j] : -1;
     // Stretch g = p·φ_i + q·φ_j − c; the spring's force k·g acts on u with −p·α_i and on v with −q·α_j.
-    const pi = s.p[m] * (u >= 0 ? alpha[i] * x[u] + beta[i] : beta[i]);
-    const qj = j >= 0 ? s.q[m] * (v >= 0 ? alpha[j] * x[v] + beta[j] : beta[j]) : 0;
-    const f = s.k[m] * (pi + qj - s.c[m]);
-    const fu = f * s.p[m] * alpha[i];
-    const fv = f * s.q[m] * (j >= 0 ? alpha[j] : 0);
+    const pi = p * (u >= 0 ? alpha[i] * x[u] + beta[i] : beta[i]);
+    const qj = j >= 0 ? q * (v >= 0 ? alpha[j] * x[v] + beta[j] : beta[j]) : 0;
+    const f = s.k[m] * (pi + qj - c);
+    const fu = f * p * alpha[i];
+    const fv = f * q * (j >= 0 ? alpha[j] : 0);
     if (u >= 0) r[u] -= fu;
     if (v >= 0) r[v] -= fv;
     scale = Math.max(scale, Math.abs(fu), Math.abs(fv));

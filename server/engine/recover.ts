@@ -10,7 +10,7 @@
 import { Matrix, pseudoInverse } from 'ml-matrix';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
-import { consistentLeft, consistentRight, type Assembly } from './assemble.js';
+import { consistentLeft, consistentRight, readSpring, spring, type Assembly } from './assemble.js';
 import type { CouplingResult, GearMeshResult, ReactionResult, Warning } from '../../shared-types/solution.js';
 import { f64, f64Copy, i32, i32Copy, release, u8 } from './arena.js';
 
@@ -103,12 +103,12 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   // Torque each elastic part puts on its dofs, and the constraint torque every dof needs: r = K·φ − F.
   const need = f64(layout.dofCount);
   for (let m = 0; m < springs.count; m++) {
-    const i = springs.i[m];
-    const j = springs.j[m];
-    const g = springs.p[m] * phi[i] + (j >= 0 ? springs.q[m] * phi[j] : 0) - springs.c[m];
+    readSpring(springs, m);
+    const { i, j, p, q } = spring;
+    const g = p * phi[i] + (j >= 0 ? q * phi[j] : 0) - spring.c;
     const f = springs.k[m] * g;
-    need[i] += f * springs.p[m];
-    if (j >= 0) need[j] += f * springs.q[m];
+    need[i] += f * p;
+    if (j >= 0) need[j] += f * q;
   }
   for (let d = 0; d < need.length; d++) need[d] -= load[d];
   const lambda = constraintTorques(edges, need);
@@ -168,10 +168,10 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   };
   edges.forEach((e, n) => put(e.kind, e.ref, e.i, e.j, lambda[n] * e.p, lambda[n] * e.q, -lambda[n]));
   for (let m = elemCount; m < springs.count; m++) {
-    const i = springs.i[m];
-    const j = springs.j[m];
-    const f = springs.k[m] * (springs.p[m] * phi[i] + (j >= 0 ? springs.q[m] * phi[j] : 0) - springs.c[m]);
-    put(springs.kind[m - elemCount], springs.ref[m - elemCount], i, j, -f * springs.p[m], -f * springs.q[m], f);
+    readSpring(springs, m);
+    const { i, j, p, q } = spring;
+    const f = springs.k[m] * (p * phi[i] + (j >= 0 ? q * phi[j] : 0) - spring.c);
+    put(springs.kind[m - elemCount], springs.ref[m - elemCount], i, j, -f * p, -f * q, f);
   }
 
   // Equilibrium of every shaft, summed from the recovered torques (not assumed).
@@ -190,8 +190,9 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     if (e.j >= 0) jumps[e.j] = 1;
   }
   for (let m = elemCount; m < springs.count; m++) {
-    jumps[springs.i[m]] = 1;
-    if (springs.j[m] >= 0) jumps[springs.j[m]] = 1;
+    readSpring(springs, m);
+    jumps[spring.i] = 1;
+    if (spring.j >= 0) jumps[spring.j] = 1;
   }
   // The assembly is read no more: its space goes to the per-shaft results.
   release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
