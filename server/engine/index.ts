@@ -162,11 +162,12 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
 }
 
 /**
- * Iterative refinement: x += K⁻¹·(f − K·x) while the residual shrinks (at most
- * three steps). The residual is summed spring by spring in difference form,
- * k·(φ_j − φ_i), so it is accurate to round-off of the torques rather than of
- * k·φ: on long chains, where the triangular solves carry errors along the
- * chain, this recovers the reactions to round-off of the torques.
+ * Iterative refinement: x += K⁻¹·(f − K·x) while the residual shrinks at
+ * least by half (at most three steps). The residual is summed spring by
+ * spring in difference form, k·(φ_j − φ_i), so it is accurate to round-off
+ * of the torques rather than of k·φ: on long chains, where the triangular
+ * solves carry errors along the chain, this recovers the reactions to
+ * round-off of the torques.
  */
 function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array, out: Float64Array) => Float64Array): Float64Array {
   const n = x.length;
@@ -185,7 +186,10 @@ function refine(asm: Assembly, x: Float64Array, solve: (r: Float64Array, out: Fl
     const kept = x;
     x = trial;
     trial = kept;
+    const gain = best.norm / next.norm;
     best = next;
+    // A step that does not halve the residual has met the floor of the residual's own round-off.
+    if (gain < 2) break;
   }
   // The best solution is handed back in the vector that came in; the rest is work space.
   if (x !== answer) {
