@@ -166,7 +166,7 @@ async function main(): Promise<void> {
     notes.push(`small model: ${sol.stats?.stations} stations, ${small.length} bytes; answer ${JSON.stringify(sol).length} bytes`);
 
     const smallOpts = { url: new URL('/api/solve', url).href, method: 'POST', body: small, headers: { 'content-type': 'application/json' }, connections: 16 };
-    await cannon({ ...smallOpts, duration: 2 }).done; // warm-up (JIT)
+    await cannon({ ...smallOpts, duration: 5 }).done; // warm-up: JIT and heap reach their steady state
     // This machine's speed drifts from minute to minute (other guests share the host): the small-solve
     // phase runs REPEATS times and the median is reported with the range.
     const rates: number[] = [];
