@@ -6,14 +6,17 @@
  * of them, most of its time. Inside `withArena`, small arrays are instead
  * zeroed views into reused chunks (about 40 ns each).
  *
- * Large arrays (a million-station solve needs some forty of 8 MB) are carved
- * from one large slab, reserved at the start of the solve from an estimate
- * of what it will need (`reserveLarge`), grown by doubling if the estimate
- * falls short, and kept for the next solve up to SLAB_KEPT_BYTES. Fresh
- * off-heap memory counts towards V8's heap limits: allocating hundreds of
- * megabytes in forty pieces sets off one full garbage collection after
+ * Large arrays (a million-station solve needs dozens of 4 to 8 MB) are
+ * carved from one large slab, reserved at the start of the solve from an
+ * estimate of what it will need (`reserveLarge`), grown by doubling if the
+ * estimate falls short, and kept for the next solve up to SLAB_KEPT_BYTES.
+ * Fresh off-heap memory counts towards V8's heap limits: allocating hundreds
+ * of megabytes in dozens of pieces sets off one full garbage collection after
  * another, one slab only one. Pages of the slab that a solve never touches
- * cost address space only.
+ * cost address space only. A large array nothing will read again is given
+ * back with `release`, and a later one takes its space: fresh pages are slow
+ * to come by (about 3 ms per MB on the machine this was measured on), pages
+ * already in use are not.
  *
  * Outside `withArena` every array is allocated as usual. Nothing allocated here
  * may outlive the `withArena` call: a solution is written out (as objects or
@@ -35,12 +38,10 @@ let offset = 0;
 let slab: ArrayBuffer | null = null;
 let slabUsed = 0;
 let slabDirty = 0;
-/** Slabs outgrown during the current solve (their arrays are still in use). */
-const outgrown: ArrayBuffer[] = [];
+/** Large regions handed out in the current solve: buffer → offset → size in bytes. */
+const handed = new Map<ArrayBuffer, Map<number, number>>();
 /** Large regions given back during the current solve: size in bytes, buffer, offset. */
 const released: Array<[number, ArrayBuffer, number]> = [];
-/** Offsets of the released regions of each buffer: a region is given back once. */
-const releasedAt = new Map<ArrayBuffer, Set<number>>();
 
 /** Runs `fn` with typed arrays taken from the arena, then releases them all. */
 export function withArena<T>(fn: () => T): T {
@@ -54,9 +55,8 @@ export function withArena<T>(fn: () => T): T {
   } finally {
     active = false;
     if (chunks.length > KEPT_CHUNKS) chunks.length = KEPT_CHUNKS;
-    outgrown.length = 0;
     released.length = 0;
-    releasedAt.clear();
+    handed.clear();
     if (slab && slab.byteLength > SLAB_KEPT_BYTES) {
       slab = null;
       slabDirty = 0;
@@ -77,21 +77,27 @@ export function reserveLarge(bytes: number): void {
 
 /**
  * Gives the space of large arrays back for the rest of the solve: a later
- * array that fits takes the smallest such space. Only for arrays nothing reads again; small
- * arrays and arrays from outside the arena are ignored.
+ * array that fits takes the smallest such space. Only for arrays nothing
+ * reads again. An array (or a subarray from its start) is given back once;
+ * small arrays, arrays from outside the arena and subarrays from elsewhere
+ * than a start are ignored.
  */
 export function release(...arrays: Array<Float64Array | Int32Array | Uint8Array>): void {
-  if (!active) return;
+  if (!active || handed.size === 0) return;
   for (const a of arrays) {
-    const buffer = a.buffer as ArrayBuffer;
-    if (a.byteLength <= LARGE_BYTES || a.byteOffset % ALIGN !== 0) continue;
-    if (buffer !== slab && !outgrown.includes(buffer)) continue;
-    const offsets = releasedAt.get(buffer) ?? new Set<number>();
-    if (offsets.has(a.byteOffset)) continue;
-    offsets.add(a.byteOffset);
-    releasedAt.set(buffer, offsets);
-    released.push([roundUp(a.byteLength), buffer, a.byteOffset]);
+    const regions = handed.get(a.buffer as ArrayBuffer);
+    const size = regions?.get(a.byteOffset);
+    if (regions === undefined || size === undefined) continue;
+    regions.delete(a.byteOffset);
+    released.push([size, a.buffer as ArrayBuffer, a.byteOffset]);
   }
+}
+
+/** Notes a large region as handed out. */
+function hand(buffer: ArrayBuffer, at: number, size: number): void {
+  const regions = handed.get(buffer);
+  if (regions) regions.set(at, size);
+  else handed.set(buffer, new Map([[at, size]]));
 }
 
 /** Drops the slab kept between solves (a long-lived process after a very large solve). */
@@ -129,15 +135,14 @@ function take(bytes: number): [ArrayBuffer, number, boolean] | null {
       if (released[k][0] >= size && (fit < 0 || released[k][0] < released[fit][0])) fit = k;
     }
     if (fit >= 0) {
-      const [, buffer, at] = released[fit];
+      const [whole, buffer, at] = released[fit];
       released[fit] = released[released.length - 1];
       released.pop();
-      releasedAt.get(buffer)?.delete(at);
+      hand(buffer, at, whole);
       return [buffer, at, true];
     }
     if (!slab || slabUsed + size > slab.byteLength) {
       // Outgrown: a new slab of at least twice the size; arrays already handed out stay where they are.
-      if (slab && slabUsed > 0) outgrown.push(slab);
       slab = new ArrayBuffer(Math.max(size, 2 * (slab?.byteLength ?? 0)));
       slabUsed = 0;
       slabDirty = 0;
@@ -146,6 +151,7 @@ function take(bytes: number): [ArrayBuffer, number, boolean] | null {
     slabUsed += size;
     const dirty = at < slabDirty;
     slabDirty = Math.max(slabDirty, slabUsed);
+    hand(slab, at, size);
     return [slab, at, dirty];
   }
   if (offset + bytes > CHUNK_BYTES) {
