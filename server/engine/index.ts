@@ -106,8 +106,7 @@ function solveInArena(model: ResolvedModel, options: SolveOptions): Solved {
     if (options.solver === 'dense') {
       x = solveDense(asm.system, asm.rhs);
     } else {
-      const ldl = new SparseLDLT(asm.system);
-      release(asm.system.rows, asm.system.cols, asm.system.vals);
+      const ldl = new SparseLDLT(asm.system, { consume: true });
       factorNonzeros = ldl.factorNonzeros;
       x = refine(asm, ldl.solve(asm.rhs), (r, out) => ldl.solve(r, out));
       ldl.dispose();

@@ -48,10 +48,16 @@ export class SparseLDLT {
   private readonly Lx: Float64Array;
   private readonly D: Float64Array;
 
-  constructor(a: SymmetricEntries) {
+  /**
+   * Factorises `a`. With `consume`, the off-diagonal entries (rows, cols,
+   * vals) are given back to the arena as soon as they are read: the caller
+   * must not read them again.
+   */
+  constructor(a: SymmetricEntries, options: { consume?: boolean } = {}) {
     const n = a.n;
     this.n = n;
     const { Ap, Ai, Ax } = toFullCSC(a);
+    if (options.consume) release(a.rows, a.cols, a.vals);
     const perm = fillReducingOrder(n, Ap, Ai);
     const pinv = i32(n);
     for (let k = 0; k < n; k++) pinv[perm[k]] = k;
