@@ -132,6 +132,9 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
 
   // Reactions, mesh and coupling results, and the torque each puts on each dof.
   const applied = f64(layout.dofCount); // torques from supports and connections, per dof
+  // Stations where T may jump: a point torque, a support or a connection acts there.
+  const jumps = u8(layout.dofCount);
+  for (const t of model.torques) jumps[layout.stationAt(t.shaft, t.z)] = 1;
   const reactions: ReactionResult[] = model.supports.map((s) => ({
     support: s.id,
     shaft: model.shafts[s.shaft].id,
@@ -161,7 +164,11 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   // A constraint torque λ acts as λ·p on dof i and λ·q on dof j; a spring's as −k·g·p and −k·g·q.
   const put = (kind: 'support' | 'mesh' | 'coupling', ref: number, i: number, j: number, onI: number, onJ: number, force: number) => {
     applied[i] += onI;
-    if (j >= 0) applied[j] += onJ;
+    jumps[i] = 1;
+    if (j >= 0) {
+      applied[j] += onJ;
+      jumps[j] = 1;
+    }
     if (kind === 'support') reactions[ref].torque = onI;
     else if (kind === 'mesh') Object.assign(gearMeshes[ref], { torqueA: onI, torqueB: onJ, force });
     else Object.assign(couplings[ref], { torqueA: onI, torqueB: onJ });
@@ -182,18 +189,6 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
   for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
 
-  // Stations where T may jump: a point torque, a support or a connection acts there.
-  const jumps = u8(layout.dofCount);
-  for (const t of model.torques) jumps[layout.stationAt(t.shaft, t.z)] = 1;
-  for (const e of edges) {
-    jumps[e.i] = 1;
-    if (e.j >= 0) jumps[e.j] = 1;
-  }
-  for (let m = elemCount; m < springs.count; m++) {
-    readSpring(springs, m);
-    jumps[spring.i] = 1;
-    if (spring.j >= 0) jumps[spring.j] = 1;
-  }
   // The assembly is read no more: its space goes to the per-shaft results.
   release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
   const cols = recoverShafts(model, layout, phi, TL, TR, jumps, diagramPoints);

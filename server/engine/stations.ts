@@ -35,7 +35,6 @@ const MERGE_TOLERANCE = 1e-12;
 export function buildStations(model: ResolvedModel): StationLayout {
   const nShafts = model.shafts.length;
   // Two passes over the points of every shaft: count them, then write them into one typed array.
-  const count = i32(nShafts + 1);
   const start = i32(nShafts + 1);
   const points = (visit: (s: number, z: number) => void) => {
     model.shafts.forEach((shaft, s) => {
@@ -58,8 +57,8 @@ export function buildStations(model: ResolvedModel): StationLayout {
       visit(c.b.shaft, c.b.z);
     }
   };
-  points((s) => count[s + 1]++);
-  for (let s = 0; s < nShafts; s++) start[s + 1] = start[s] + count[s + 1];
+  points((s) => start[s + 1]++);
+  for (let s = 0; s < nShafts; s++) start[s + 1] += start[s];
   const all = f64(start[nShafts]);
   const fill = i32Copy(start, nShafts);
   points((s, z) => (all[fill[s]++] = z));
