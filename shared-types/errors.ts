@@ -8,7 +8,7 @@
 
 export interface ErrorCodeInfo {
   /** HTTP status the API answers with. */
-  readonly status: 400 | 401 | 404 | 409 | 413 | 422 | 429 | 500 | 503 | 504;
+  readonly status: 400 | 401 | 404 | 409 | 413 | 422 | 429 | 500 | 503 | 504 | 507;
   /** One line for the docs and for logs. */
   readonly summary: string;
 }
@@ -42,6 +42,7 @@ export const ERROR_CODES = {
   SN_RATE_LIMITED: { status: 429, summary: 'Too many solve requests; wait and retry.' },
   SN_BUSY: { status: 503, summary: 'All solver workers are busy; retry shortly.' },
   SN_TIMEOUT: { status: 504, summary: 'The solve took longer than the configured time limit.' },
+  SN_DISK_FULL: { status: 507, summary: "Nothing was saved: the library's disk is full. The same save succeeds once space is freed." },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
 } as const satisfies Record<string, ErrorCodeInfo>;
 

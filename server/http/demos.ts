@@ -40,22 +40,22 @@ export function loadDemos(dir: string): Demo[] {
     });
 }
 
-const SEEDED = 'demosSeeded';
+/** The meta flag set once the demos were seeded (or a library was found not empty). */
+export const SEEDED = 'demosSeeded';
 
 /**
- * On the first start with an empty library, saves each demo as a model, so a
- * new team finds something to open. Runs once: a library emptied later (it
- * cannot be, through the API) or one whose demos were archived stays as it is.
+ * Seeds each demo as a model into a new library, so a new team finds something
+ * to open. Once per library, decided inside the library: the demos are created
+ * and the flag `demosSeeded` set in one transaction that holds the write lock
+ * (BEGIN IMMEDIATE), so servers starting together on one new directory seed them
+ * exactly once between them, and a start interrupted half-way leaves no demo.
+ * Never again afterwards: a library whose demos were archived (nothing can be
+ * deleted through the API) or one that held models before the flag existed gets
+ * none. Returns how many were created by this call.
  */
 export function seedDemos(store: ModelStore, demos: readonly Demo[]): number {
-  if (store.getMeta(SEEDED) !== undefined) return 0;
-  let seeded = 0;
-  if (store.count() === 0) {
-    for (const demo of demos) {
-      store.create({ model: demo.model, name: demo.name, author: 'Shaftnet', message: 'Demo model, seeded on first start' });
-      seeded++;
-    }
-  }
-  store.setMeta(SEEDED, new Date().toISOString());
-  return seeded;
+  return store.seedOnce(
+    SEEDED,
+    demos.map((demo) => ({ model: demo.model, name: demo.name, author: 'Shaftnet', message: 'Demo model, seeded on first start' })),
+  );
 }

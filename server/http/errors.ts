@@ -7,6 +7,7 @@
  */
 import type { FastifyError } from 'fastify';
 import { ERROR_CODES, ModelError, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
+import { StoreFullError } from '../store/store.js';
 import { validationIssues, type ValidationErrorLike } from './validation.js';
 
 /** An error with a registry code, raised by the routes. */
@@ -80,6 +81,10 @@ const PARTS: Record<string, string> = { body: 'body', querystring: 'query parame
 export function toErrorReply(err: unknown): ErrorReply & { internal: boolean } {
   if (err instanceof HttpError) return { ...errorReply(err.code, err.message, err.issues, err.extra), internal: false };
   if (err instanceof ModelError) return { ...modelErrorReply(err), internal: false };
+  if (err instanceof StoreFullError) {
+    // No path in the answer; the server's log has the code and status of every refusal.
+    return { ...errorReply('SN_DISK_FULL', "nothing was saved: the library's disk is full; the same save succeeds once space is freed"), internal: false };
+  }
   const fe = err as Partial<FastifyError> & { validation?: ValidationErrorLike[]; validationContext?: string };
   if (Array.isArray(fe.validation)) {
     const context = fe.validationContext ?? 'body';

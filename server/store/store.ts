@@ -79,6 +79,22 @@ export class ModelNotFoundError extends Error {
   }
 }
 
+/**
+ * Thrown by every write when the library's disk (or its file system's quota) is
+ * full. The transaction was rolled back: nothing of that write was saved, and the
+ * library is as it was. The same write succeeds once space is freed; the store
+ * needs no restart.
+ */
+export class StoreFullError extends Error {
+  constructor(
+    /** The library file that could not grow. */
+    readonly file: string,
+  ) {
+    super(`nothing was saved: the disk that holds the library ${file} is full`);
+    this.name = 'StoreFullError';
+  }
+}
+
 export interface ModelStore {
   /** Creates a model at revision 1. */
   create(input: SaveInput): SaveResult;
@@ -97,5 +113,13 @@ export interface ModelStore {
   /** A flag that survives restarts (e.g. "demos seeded"). */
   getMeta(key: string): string | undefined;
   setMeta(key: string, value: string): void;
+  /**
+   * Creates `inputs` as new models, all or none, in one transaction that holds the
+   * write lock throughout, unless the flag `marker` is already set; then sets it.
+   * Only into an empty library: a library that holds models but not the flag gets
+   * the flag and nothing else. Returns how many models were created (0 when the
+   * flag was set, by this process or another one).
+   */
+  seedOnce(marker: string, inputs: readonly SaveInput[]): number;
   close(): void;
 }
