@@ -122,6 +122,38 @@ describe('SqliteStore', () => {
     expect(store.getMeta('other')).toBeUndefined();
   });
 
+  it('seedOnce: creates into an empty library once, sets the flag, and never again', () => {
+    const demos = [input('demo a'), input('demo b'), input('demo c')];
+    expect(store.seedOnce('demosSeeded', demos)).toBe(3);
+    expect(store.getMeta('demosSeeded')).toMatch(/^\d{4}-\d\d-\d\dT/);
+    expect(store.list({ archived: false }).map((m) => m.name).sort()).toEqual(['demo a', 'demo b', 'demo c']);
+    // archived demos are not seeded again, nor are they on a second connection
+    for (const m of store.list({ archived: false })) store.setArchived(m.id, true);
+    expect(store.seedOnce('demosSeeded', demos)).toBe(0);
+    const other = openSqliteStore(dir);
+    try {
+      expect(other.seedOnce('demosSeeded', demos)).toBe(0);
+    } finally {
+      other.close();
+    }
+    expect(store.count()).toBe(3);
+  });
+
+  it('seedOnce: a library that already holds models gets the flag and no demo', () => {
+    store.create(input('mine'));
+    expect(store.seedOnce('demosSeeded', [input('demo a')])).toBe(0);
+    expect(store.getMeta('demosSeeded')).toBeDefined();
+    expect(store.count()).toBe(1);
+  });
+
+  it('seedOnce: all or none; a failure half-way leaves no model and no flag', () => {
+    const bad = { model: { n: 1n }, name: 'cannot be written', author: 'x', message: '' }; // JSON.stringify throws on a BigInt
+    expect(() => store.seedOnce('demosSeeded', [input('demo a'), bad])).toThrow(TypeError);
+    expect(store.count()).toBe(0);
+    expect(store.getMeta('demosSeeded')).toBeUndefined();
+    expect(store.seedOnce('demosSeeded', [input('demo a')])).toBe(1);
+  });
+
   it('makes ids without look-alike characters', () => {
     const ids = new Set(Array.from({ length: 2000 }, () => newModelId()));
     expect(ids.size).toBe(2000);
