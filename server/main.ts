@@ -10,7 +10,7 @@ import { fileURLToPath } from 'node:url';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from './http/app.js';
 import { ConfigError, isLoopback, parseConfig, usage, type ServerConfig } from './http/config.js';
-import { openSqliteStore } from './store/sqlite-store.js';
+import { LibraryOpenError, openSqliteStore } from './store/sqlite-store.js';
 
 /** A running server and how to stop it. */
 export interface RunningServer {
@@ -82,16 +82,18 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
   }
   let server: RunningServer;
   try {
-    fs.mkdirSync(config.dataDir, { recursive: true });
+    // The store makes the data directory (not its parents) and checks the library.
     server = await startServer(config);
   } catch (err) {
     const e = err as NodeJS.ErrnoException;
     const reason =
-      e.code === 'EADDRINUSE'
-        ? `port ${config.port} on ${config.host} is in use (choose another with --port)`
-        : e.code === 'EACCES'
-          ? `no permission for ${e.syscall === 'listen' ? `port ${config.port}` : config.dataDir}`
-          : e.message;
+      err instanceof LibraryOpenError
+        ? err.message // names the directory or file, and what to do
+        : e.code === 'EADDRINUSE'
+          ? `port ${config.port} on ${config.host} is in use (choose another with --port)`
+          : e.code === 'EACCES' && e.syscall === 'listen'
+            ? `no permission for port ${config.port}`
+            : e.message;
     process.stderr.write(`shaftnet serve: cannot start: ${reason}\n`);
     process.exitCode = 1;
     return;

@@ -340,7 +340,14 @@ function checkLibraryFile(file: string, stat: fs.Stats): void {
 /** After SQLite opened it: whole (quick_check), and ours (application id or our tables). */
 function checkOpenedLibrary(db: Database.Database, file: string): void {
   db.pragma('busy_timeout = 5000'); // ms: another process holding the write lock
-  const problems = (db.pragma('quick_check(5)') as Array<{ quick_check: string }>).map((r) => r.quick_check);
+  let problems: string[];
+  try {
+    problems = (db.pragma('quick_check(5)') as Array<{ quick_check: string }>).map((r) => r.quick_check);
+  } catch (err) {
+    const code = (err as { code?: string }).code ?? '';
+    if (code === 'SQLITE_NOTADB' || code.startsWith('SQLITE_CORRUPT')) throw damaged(file, `the check stopped at: ${(err as Error).message}`);
+    throw err;
+  }
   if (problems.length !== 1 || problems[0] !== 'ok') throw damaged(file, `the check found: ${problems.join('; ')}`);
   const appId = db.pragma('application_id', { simple: true }) as number;
   const tables = (db.prepare("SELECT name FROM sqlite_schema WHERE type = 'table'").all() as Array<{ name: string }>).map((r) => r.name);
