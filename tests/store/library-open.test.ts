@@ -13,7 +13,14 @@ import { DATABASE_FILE, LibraryOpenError, openSqliteStore } from '../../server/s
 import { mountTmpfs, unmount } from './mounts.js';
 
 const root = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-open-'));
-afterAll(() => fs.rmSync(root, { recursive: true, force: true }));
+// Root writes through chmod, so read-only needs a read-only mount; where mount is refused that one case is not run.
+const ro = path.join(root, 'ro');
+fs.mkdirSync(ro);
+const mounted = mountTmpfs(ro, '64k', ['ro']);
+afterAll(() => {
+  if (mounted) unmount(ro);
+  fs.rmSync(root, { recursive: true, force: true });
+});
 
 let n = 0;
 const freshDir = () => {
@@ -205,13 +212,7 @@ describe('the data directory', () => {
     expect(openError(dir).message).toMatch(/shaftnet\.sqlite is a directory, but it is where the library file belongs/);
   });
 
-  describe('read-only (a tmpfs mounted read-only; where mount is refused the case cannot be made as root, and this one test is not run)', () => {
-    const ro = path.join(root, 'ro');
-    fs.mkdirSync(ro);
-    const mounted = mountTmpfs(ro, '64k', ['ro']);
-    afterAll(() => {
-      if (mounted) unmount(ro);
-    });
+  describe('read-only (a tmpfs mounted read-only)', () => {
     it.runIf(mounted)('a read-only data directory, existing or to be made in it, is named with the reason', () => {
       expect(openError(ro).message).toBe(
         `the data directory ${ro} is not writable (read-only file system, EROFS): Shaftnet writes the library ${DATABASE_FILE} and its -wal and -shm files there. Choose another --data, or make ${ro} writable.`,

@@ -30,7 +30,13 @@ beforeAll(() => {
   tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-startup-'));
 });
 
+// Root writes through chmod, so read-only needs a read-only mount; where mount is refused that one case is not run.
+const ro = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-ro-'));
+const mounted = mountTmpfs(ro, '64k', ['ro']);
+
 afterAll(() => {
+  if (mounted) unmount(ro);
+  fs.rmSync(ro, { recursive: true, force: true });
   for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill('SIGKILL');
   fs.rmSync(tmp, { recursive: true, force: true });
 });
@@ -82,13 +88,6 @@ describe('the server refuses a data path that cannot hold a library', () => {
     expect(fs.existsSync(parent)).toBe(false);
   });
 
-  // Root writes through chmod, so read-only needs a read-only mount; where mount is refused this case is not run.
-  const ro = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-ro-'));
-  const mounted = mountTmpfs(ro, '64k', ['ro']);
-  afterAll(() => {
-    if (mounted) unmount(ro);
-    fs.rmSync(ro, { recursive: true, force: true });
-  });
   it.runIf(mounted)('a read-only data directory (a read-only tmpfs)', () => {
     expectRefusal(
       refused(ro),
