@@ -374,7 +374,33 @@ function openFault(file: string, err: unknown): LibraryOpenError {
   return new LibraryOpenError(`cannot open the library ${file}: ${(err as Error).message}${code ? ` (${code})` : ''}`, file);
 }
 
+/**
+ * Thrown by every write once this store has met damage in its file while running
+ * (SQLite reported the file corrupt, or a stored model no longer parses): the
+ * server saves nothing more into it. The API answers 500 SN_INTERNAL and the
+ * server log has this message, with the file and how to restore.
+ */
+export class LibraryDamagedError extends Error {
+  constructor(
+    readonly file: string,
+    readonly detail: string,
+  ) {
+    super(
+      `the library ${file} was found damaged while the server ran (${detail}); this server saves nothing more into it. ` +
+        `Stop every server that uses it. ${restoreAdvice(file)}`,
+    );
+    this.name = 'LibraryDamagedError';
+  }
+}
+
+const isCorrupt = (err: unknown): boolean => {
+  const code = (err as { code?: unknown }).code;
+  return typeof code === 'string' && (code === 'SQLITE_NOTADB' || code.startsWith('SQLITE_CORRUPT'));
+};
+
 export class SqliteStore implements ModelStore {
+  /** Set once damage was met: what SQLite (or JSON.parse) said. */
+  private damage: string | undefined;
   private readonly stmts;
   private readonly createTx;
   private readonly saveTx;
@@ -470,9 +496,11 @@ export class SqliteStore implements ModelStore {
    * may have written carry no commit mark, so no reader ever sees them).
    */
   private write<T>(work: () => T): T {
+    if (this.damage !== undefined) throw new LibraryDamagedError(this.file, this.damage);
     try {
       return work();
     } catch (err) {
+      if (isCorrupt(err)) this.damage = (err as Error).message;
       if (this.db.inTransaction) {
         try {
           this.db.exec('ROLLBACK');
@@ -502,6 +530,16 @@ export class SqliteStore implements ModelStore {
     }
   }
 
+  /** Runs a read; damage met there stops every later write (see LibraryDamagedError). */
+  private read<T>(work: () => T): T {
+    try {
+      return work();
+    } catch (err) {
+      if (isCorrupt(err)) this.damage ??= (err as Error).message;
+      throw err;
+    }
+  }
+
   create(input: SaveInput): SaveResult {
     return this.write(() => this.createTx.immediate(input));
   }
@@ -517,22 +555,31 @@ export class SqliteStore implements ModelStore {
   list(filter: ListFilter): ModelSummary[] {
     const archived = filter.archived ? 1 : 0;
     const q = filter.q?.trim() ?? '';
-    const rows =
+    const rows = this.read(() =>
       q === ''
         ? this.stmts.list.all(archived)
-        : this.stmts.search.all(archived, '%' + q.replace(/[\\%_]/g, (c) => '\\' + c) + '%');
+        : this.stmts.search.all(archived, '%' + q.replace(/[\\%_]/g, (c) => '\\' + c) + '%'),
+    );
     return rows.map(summary);
   }
 
   get(id: string, revision?: number): StoredRevision | undefined {
-    const row = this.stmts.modelById.get(id);
+    const row = this.read(() => this.stmts.modelById.get(id));
     if (!row) return undefined;
-    const rev = this.stmts.revision.get(id, revision ?? row.revision);
+    const rev = this.read(() => this.stmts.revision.get(id, revision ?? row.revision));
     if (!rev) return undefined;
+    let model: unknown;
+    try {
+      model = JSON.parse(rev.model);
+    } catch (err) {
+      // Only JSON.stringify's output is ever stored: text that does not parse was changed on disk.
+      this.damage ??= `revision ${rev.revision} of model ${id} is no longer the JSON that was saved`;
+      throw err;
+    }
     return {
       id,
       revision: rev.revision,
-      model: JSON.parse(rev.model),
+      model,
       author: rev.author,
       message: rev.message,
       created: rev.created,
@@ -541,8 +588,8 @@ export class SqliteStore implements ModelStore {
   }
 
   revisions(id: string): RevisionInfo[] | undefined {
-    if (!this.stmts.modelById.get(id)) return undefined;
-    return this.stmts.revisions.all(id).map((r) => ({
+    if (!this.read(() => this.stmts.modelById.get(id))) return undefined;
+    return this.read(() => this.stmts.revisions.all(id)).map((r) => ({
       revision: r.revision,
       author: r.author,
       message: r.message,
@@ -556,11 +603,11 @@ export class SqliteStore implements ModelStore {
   }
 
   count(): number {
-    return this.stmts.count.get()?.n ?? 0;
+    return this.read(() => this.stmts.count.get()?.n ?? 0);
   }
 
   getMeta(key: string): string | undefined {
-    return this.stmts.getMeta.get(key)?.value;
+    return this.read(() => this.stmts.getMeta.get(key)?.value);
   }
 
   setMeta(key: string, value: string): void {

@@ -9,7 +9,7 @@ import os from 'node:os';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DATABASE_FILE, LibraryOpenError, openSqliteStore } from '../../server/store/sqlite-store.js';
+import { DATABASE_FILE, LibraryDamagedError, LibraryOpenError, openSqliteStore, type SqliteStore } from '../../server/store/sqlite-store.js';
 import { mountTmpfs, unmount } from './mounts.js';
 
 const root = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-open-'));
@@ -220,5 +220,81 @@ describe('the data directory', () => {
       const inside = path.join(ro, 'data');
       expect(openError(inside).message).toBe(`cannot create the data directory ${inside} in ${ro}: read-only file system, EROFS`);
     });
+  });
+});
+
+describe('damage met while the server runs', () => {
+  /** A library of 12 models, each with a 6 kB note (so its text runs onto overflow pages), open in `store`. */
+  function openLibrary() {
+    const dir = freshDir();
+    const first = openSqliteStore(dir);
+    const ids = Array.from({ length: 12 }, (_, i) => first.create({ model: { format: 'shaftnet/1', name: `m${i}`, notes: `${i}`.repeat(6000) }, name: `m${i}`, author: 'a', message: '' }).id);
+    first.close();
+    const file = path.join(dir, DATABASE_FILE);
+    const raw = new Database(file, { readonly: true });
+    const pages = raw.prepare("SELECT pageno, pagetype FROM dbstat WHERE name = 'revisions'").all() as Array<{ pageno: number; pagetype: string }>;
+    const size = raw.pragma('page_size', { simple: true }) as number;
+    raw.close();
+    return { dir, file, ids, pages, size, store: openSqliteStore(dir) };
+  }
+
+  /** Another connection commits, so the store's page cache is dropped and it reads the file again. */
+  function touch(file: string) {
+    const other = new Database(file);
+    other.prepare("INSERT INTO meta (key, value) VALUES ('touched', 'yes')").run();
+    other.close();
+  }
+
+  function readAll(store: SqliteStore, ids: string[]): unknown[] {
+    const failures: unknown[] = [];
+    for (const id of ids) {
+      try {
+        store.get(id);
+      } catch (err) {
+        failures.push(err);
+      }
+    }
+    return failures;
+  }
+
+  it('a table page zeroed under a running store: reads fail, and every later write is refused', () => {
+    const lib = openLibrary();
+    try {
+      const leaf = lib.pages.find((p) => p.pagetype === 'leaf')!;
+      const fd = fs.openSync(lib.file, 'r+');
+      fs.writeSync(fd, Buffer.alloc(lib.size), 0, lib.size, (leaf.pageno - 1) * lib.size);
+      fs.closeSync(fd);
+      touch(lib.file);
+      const failures = readAll(lib.store, lib.ids);
+      expect(failures.length).toBeGreaterThan(0);
+      expect((failures[0] as { code: string }).code).toMatch(/^SQLITE_CORRUPT/);
+      const save = () => lib.store.create({ model: { format: 'shaftnet/1', name: 'x' }, name: 'x', author: 'a', message: '' });
+      expect(save).toThrow(LibraryDamagedError);
+      expect(save).toThrow(`the library ${lib.file} was found damaged while the server ran (database disk image is malformed); this server saves nothing more into it.`);
+      expect(() => lib.store.setArchived(lib.ids[0], true)).toThrow(LibraryDamagedError);
+    } finally {
+      lib.store.close();
+    }
+  });
+
+  it('text changed inside a stored model passes quick_check (SQLite keeps no checksum of it), but reading it stops every later write', () => {
+    const lib = openLibrary();
+    lib.store.close();
+    const overflow = lib.pages.find((p) => p.pagetype === 'overflow')!;
+    const fd = fs.openSync(lib.file, 'r+');
+    // Past the page's 4-byte link to the next overflow page: only stored text changes.
+    fs.writeSync(fd, Buffer.alloc(64), 0, 64, (overflow.pageno - 1) * lib.size + 100);
+    fs.closeSync(fd);
+    const store = openSqliteStore(lib.dir); // the structure is whole: the check passes
+    try {
+      const failures = readAll(store, lib.ids);
+      expect(failures).toHaveLength(1);
+      expect(failures[0]).toBeInstanceOf(SyntaxError); // 64 NUL characters inside a JSON string
+      expect(() => store.save(lib.ids[0], 1, { model: { format: 'shaftnet/1', name: 'x' }, name: 'x', author: 'a', message: '' })).toThrow(
+        /was found damaged while the server ran \(revision 1 of model [a-z2-9]{16} is no longer the JSON that was saved\)/,
+      );
+    } finally {
+      store.close();
+    }
   });
 });
