@@ -136,7 +136,16 @@ export function openSqliteStore(dataDir: string): SqliteStore {
   const file = path.join(dir, DATABASE_FILE);
   let stat = statOrUndefined(file);
   if (stat === undefined) {
-    createLibrary(dir, file);
+    // SQLite would replay a left-behind log into the new file as if it were its own.
+    // (The second look: another server may have just made the library and begun its log.)
+    if ((statOrUndefined(file + '-wal')?.size ?? 0) > 0 && statOrUndefined(file) === undefined) {
+      throw new LibraryOpenError(
+        `${file}-wal is there but the library ${file} is not: the library was moved or deleted after a server was stopped abruptly, ` +
+          `and this log holds its latest saves. Put the library back beside it, or move ${file}-wal (and ${file}-shm) aside to start a new library.`,
+        file,
+      );
+    }
+    if (statOrUndefined(file) === undefined) createLibrary(dir, file);
     stat = fs.statSync(file);
   }
   checkLibraryFile(file, stat);

@@ -181,6 +181,17 @@ describe('the data directory', () => {
     again.close();
   });
 
+  it('a log (-wal) left without its library is not replayed into a new one', () => {
+    const dir = freshDir();
+    const file = path.join(dir, DATABASE_FILE);
+    fs.writeFileSync(file + '-wal', Buffer.alloc(4128, 1));
+    expect(openError(dir).message).toBe(
+      `${file}-wal is there but the library ${file} is not: the library was moved or deleted after a server was stopped abruptly, ` +
+        `and this log holds its latest saves. Put the library back beside it, or move ${file}-wal (and ${file}-shm) aside to start a new library.`,
+    );
+    expect(fs.existsSync(file)).toBe(false);
+  });
+
   it('a missing parent is named, and nothing is created', () => {
     const parent = path.join(freshDir(), 'not-mounted');
     const dir = path.join(parent, 'shaftnet');
