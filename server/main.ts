@@ -28,6 +28,9 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
     app = await buildApp({
       store,
       token: config.token,
+      listenHost: config.host,
+      allowedHosts: config.allowedHosts,
+      trustProxy: config.trustProxy.length > 0 ? config.trustProxy : false,
       maxBodyBytes: config.maxBodyBytes,
       limits: { maxStations: config.maxStations, maxShafts: config.maxShafts },
       solveTimeoutMs: config.solveTimeoutMs,
