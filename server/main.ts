@@ -83,6 +83,9 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
       `WARNING: listening on ${config.host} without a team token: anyone who can reach this machine can read and change the model library. Set --token or SHAFTNET_TOKEN.\n`,
     );
   }
+  if (argv.some((a) => a === '--token' || a.startsWith('--token='))) {
+    process.stderr.write('NOTE: a token given with --token is visible to every user of this machine (ps); prefer --token-file or SHAFTNET_TOKEN.\n');
+  }
   let server: RunningServer;
   try {
     fs.mkdirSync(config.dataDir, { recursive: true });
