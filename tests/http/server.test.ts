@@ -52,6 +52,11 @@ describe('server', () => {
     const solveBody = doc.paths['/api/solve'].post.requestBody.content['application/json'].schema;
     expect(solveBody.properties.gearMeshes).toBeDefined();
     expect(doc.paths['/api/models/{id}'].put.responses['409']).toBeDefined();
+    // The public routes say so in the document: no security requirement.
+    for (const [p, m] of [['/api/health', 'get'], ['/api/session', 'get'], ['/api/session', 'post'], ['/api/session', 'delete']]) {
+      expect(doc.paths[p][m].security, `${m} ${p}`).toEqual([]);
+    }
+    expect(doc.paths['/api/models'].get.security).toBeUndefined(); // the document's default (the token, in token mode)
     const page = await t.app.inject({ method: 'GET', url: '/api/docs' });
     expect(page.statusCode).toBe(200);
     expect(page.headers['content-type']).toMatch(/text\/html/);

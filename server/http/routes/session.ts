@@ -36,7 +36,7 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
     '/api/session',
     {
       config: open,
-      schema: { tags: ['session'], summary: 'Does this server need the team token, and does this client have it?', response: { 200: SessionState, ...errorResponses(429) } },
+      schema: { security: [], tags: ['session'], summary: 'Does this server need the team token, and does this client have it?', response: { 200: SessionState, ...errorResponses(429) } },
     },
     async (req, reply) => ({ tokenRequired: auth !== undefined, signedIn: auth === undefined || auth.isSignedIn(req, reply) }),
   );
@@ -46,6 +46,7 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
     {
       config: open,
       schema: {
+        security: [],
         tags: ['session'],
         summary: 'Sign in with the team token (sets an HttpOnly cookie holding a new session id)',
         description: 'At most 10 attempts a minute from one address (wrong bearer tokens count too); then 429 with Retry-After.',
@@ -65,7 +66,7 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
     '/api/session',
     {
       config: open,
-      schema: { tags: ['session'], summary: 'Sign out (ends the session on the server and clears the cookie)', response: { 200: SessionState, ...errorResponses(403) } },
+      schema: { security: [], tags: ['session'], summary: 'Sign out (ends the session on the server and clears the cookie)', response: { 200: SessionState, ...errorResponses(403) } },
     },
     async (req, reply) => {
       auth?.signOut(req);
