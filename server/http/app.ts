@@ -7,7 +7,7 @@ import helmet from '@fastify/helmet';
 import swagger from '@fastify/swagger';
 import swaggerUi from '@fastify/swagger-ui';
 import type { TypeBoxTypeProvider } from '@fastify/type-provider-typebox';
-import Fastify, { type FastifyInstance, type FastifyServerOptions } from 'fastify';
+import Fastify, { type FastifyInstance, type FastifyReply, type FastifyServerOptions } from 'fastify';
 import type { ModelStore } from '../store/store.js';
 import { authHook, TeamAuth } from './auth.js';
 import { loadDemos, seedDemos } from './demos.js';
@@ -124,7 +124,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     // The router's own refusals (a bad percent-escape, an over-long path part) in the project's error shape.
     frameworkErrors: (err, _req, reply) => {
       const { status, body } = toErrorReply(err);
-      const r = reply as unknown as import('fastify').FastifyReply;
+      const r = reply as unknown as FastifyReply; // the type provider's reply type wants a route's schema
       void r.code(status).header('x-content-type-options', 'nosniff').send(body);
     },
     // A request Node's parser refuses (broken request line or header) gets the project's shape too.
