@@ -28,6 +28,9 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
     app = await buildApp({
       store,
       token: config.token,
+      listenHost: config.host,
+      allowedHosts: config.allowedHosts,
+      trustProxy: config.trustProxy.length > 0 ? config.trustProxy : false,
       maxBodyBytes: config.maxBodyBytes,
       limits: { maxStations: config.maxStations, maxShafts: config.maxShafts },
       solveTimeoutMs: config.solveTimeoutMs,
@@ -79,6 +82,9 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
     process.stderr.write(
       `WARNING: listening on ${config.host} without a team token: anyone who can reach this machine can read and change the model library. Set --token or SHAFTNET_TOKEN.\n`,
     );
+  }
+  if (argv.some((a) => a === '--token' || a.startsWith('--token='))) {
+    process.stderr.write('NOTE: a token given with --token is visible to every user of this machine (ps); prefer --token-file or SHAFTNET_TOKEN.\n');
   }
   let server: RunningServer;
   try {

@@ -8,7 +8,7 @@
 
 export interface ErrorCodeInfo {
   /** HTTP status the API answers with. */
-  readonly status: 400 | 401 | 404 | 409 | 413 | 422 | 429 | 500 | 503 | 504 | 507;
+  readonly status: 400 | 401 | 403 | 404 | 405 | 409 | 413 | 414 | 421 | 422 | 429 | 500 | 503 | 504 | 507;
   /** One line for the docs and for logs. */
   readonly summary: string;
 }
@@ -39,10 +39,15 @@ export const ERROR_CODES = {
   SN_NOT_FOUND: { status: 404, summary: 'No model or revision with that id.' },
   SN_STALE_REVISION: { status: 409, summary: 'The model was saved by someone else since your base revision.' },
   SN_UNAUTHORISED: { status: 401, summary: 'This server needs the team token.' },
-  SN_RATE_LIMITED: { status: 429, summary: 'Too many solve requests; wait and retry.' },
+  SN_RATE_LIMITED: { status: 429, summary: 'Too many solve requests, or sign-in attempts, from one address; wait and retry.' },
   SN_BUSY: { status: 503, summary: 'All solver workers are busy; retry shortly.' },
   SN_TIMEOUT: { status: 504, summary: 'The solve took longer than the configured time limit.' },
   SN_DISK_FULL: { status: 507, summary: "Nothing was saved: the library's disk is full. The same save succeeds once space is freed." },
+  SN_CROSS_SITE: { status: 403, summary: 'A state-changing request that a page of another site could have sent (no JSON content type, or a foreign Origin or Sec-Fetch-Site).' },
+  SN_HOST: { status: 421, summary: 'The Host header names neither this server nor a configured name (--allowed-hosts).' },
+  SN_METHOD: { status: 405, summary: 'The path exists but not with this method; the Allow header lists the methods it has.' },
+  SN_BAD_REQUEST: { status: 400, summary: 'The request itself is malformed: a path escape that is not UTF-8, or a broken request line or header.' },
+  SN_PATH_TOO_LONG: { status: 414, summary: 'A part of the path is longer than the server reads (1000 characters).' },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
 } as const satisfies Record<string, ErrorCodeInfo>;
 

@@ -7,11 +7,12 @@ import helmet from '@fastify/helmet';
 import swagger from '@fastify/swagger';
 import swaggerUi from '@fastify/swagger-ui';
 import type { TypeBoxTypeProvider } from '@fastify/type-provider-typebox';
-import Fastify, { type FastifyInstance, type FastifyServerOptions } from 'fastify';
+import Fastify, { type FastifyInstance, type FastifyReply, type FastifyServerOptions } from 'fastify';
 import type { ModelStore } from '../store/store.js';
-import { authHook } from './auth.js';
+import { authHook, TeamAuth } from './auth.js';
 import { loadDemos, seedDemos } from './demos.js';
-import { toErrorReply } from './errors.js';
+import { clientErrorResponse, toErrorReply } from './errors.js';
+import { crossSiteHook, hostHook, hostPolicy } from './guard.js';
 import { defaultClientDir, defaultDemosDir, packageVersion } from './paths.js';
 import clientRoutes from './routes/client.js';
 import demosRoutes from './routes/demos.js';
@@ -20,6 +21,8 @@ import modelsRoutes from './routes/models.js';
 import sessionRoutes from './routes/session.js';
 import solveRoutes from './routes/solve.js';
 import type { SizeLimits } from './solve-core.js';
+import { RouteTable, type RegisteredRoute } from './route-table.js';
+import { MemorySessionStore, SESSION_DEFAULTS, type SessionLimits, type SessionStore } from './sessions.js';
 import { SolverPool } from './solver-pool.js';
 import { readJsonBody } from './body.js';
 import { validatorCompiler } from './validation.js';
@@ -29,6 +32,20 @@ export interface AppOptions {
   readonly store: ModelStore;
   /** Team token; undefined = open server. */
   readonly token?: string;
+  /** Sign-in attempts per minute per address (default 10). */
+  readonly signInPerMinute?: number;
+  /** Where sign-in sessions are kept (default: in memory, with `sessionLimits`). */
+  readonly sessions?: SessionStore;
+  /** Idle and absolute lifetimes of a session (default 12 h / 7 days). */
+  readonly sessionLimits?: Partial<SessionLimits>;
+  /** The clock of sessions and sign-in limits, ms since the epoch (default Date.now; tests pass their own). */
+  readonly now?: () => number;
+  /** The address the server listens on (default 127.0.0.1): decides which Host names it answers. */
+  readonly listenHost?: string;
+  /** More names (or addresses) the server answers to in `Host` (--allowed-hosts). */
+  readonly allowedHosts?: readonly string[];
+  /** Fastify's trustProxy: the proxies whose X-Forwarded-* headers are believed (default none). */
+  readonly trustProxy?: FastifyServerOptions['trustProxy'];
   /** Largest request body, bytes (default 64 MiB). */
   readonly maxBodyBytes?: number;
   /** Model size limits (default 2,000,000 stations, 10,000 shafts). */
@@ -75,6 +92,13 @@ function positiveInt(name: string, value: number, min = 1): number {
   return value;
 }
 
+declare module 'fastify' {
+  interface FastifyInstance {
+    /** Every registered route with its method and whether it is public (for the route walk of the tests). */
+    shaftnetRoutes(): RegisteredRoute[];
+  }
+}
+
 export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   const maxBodyBytes = positiveInt('maxBodyBytes', opts.maxBodyBytes ?? 64 * 1024 * 1024);
   const limits: SizeLimits = opts.limits ?? { maxStations: 2_000_000, maxShafts: 10_000 };
@@ -85,14 +109,44 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   const rateLimitPerMinute = positiveInt('rateLimitPerMinute', opts.rateLimitPerMinute ?? 1200, 0);
   const token = opts.token;
   if (token !== undefined && token.length === 0) throw new Error('buildApp: token must not be empty');
+  const sessionLimits: SessionLimits = { ...SESSION_DEFAULTS, ...opts.sessionLimits };
+  const auth =
+    token === undefined
+      ? undefined
+      : new TeamAuth(token, opts.sessions ?? new MemorySessionStore(sessionLimits), positiveInt('signInPerMinute', opts.signInPerMinute ?? 10), opts.now);
 
   const app = Fastify({
     logger: opts.logger ?? false,
     bodyLimit: maxBodyBytes,
+    trustProxy: opts.trustProxy ?? false,
+    // Path parameters up to 1000 characters reach the routes' schemas, which name the parameter in a 400.
+    routerOptions: { maxParamLength: 1000 },
+    // The router's own refusals (a bad percent-escape, an over-long path part) in the project's error shape.
+    frameworkErrors: (err, _req, reply) => {
+      const { status, body } = toErrorReply(err);
+      const r = reply as unknown as FastifyReply; // the type provider's reply type wants a route's schema
+      void r.code(status).header('x-content-type-options', 'nosniff').send(body);
+    },
+    // A request Node's parser refuses (broken request line or header) gets the project's shape too.
+    clientErrorHandler: (err, socket) => {
+      const code = (err as NodeJS.ErrnoException).code;
+      if (code === 'ECONNRESET' || code === 'ERR_HTTP_REQUEST_TIMEOUT' || socket.destroyed) {
+        socket.destroy();
+        return;
+      }
+      const message = code === 'HPE_HEADER_OVERFLOW' ? 'the request headers are larger than this server reads' : 'the HTTP request is malformed';
+      if (socket.writable) socket.write(clientErrorResponse(message));
+      socket.destroy();
+    },
     // Fastify's request logs carry method, URL, status and time, never bodies: models stay out of the logs.
     return503OnClosing: true,
     forceCloseConnections: true,
   }).withTypeProvider<TypeBoxTypeProvider>();
+
+  // Every route, as registered: the 405 answer and the route walk of the tests read it.
+  const routes = new RouteTable();
+  app.addHook('onRoute', (route) => routes.add(route));
+  app.decorate('shaftnetRoutes', () => routes.list());
 
   app.setValidatorCompiler(validatorCompiler);
   // Plain JSON.stringify: the response schemas document the API but never filter what is sent.
@@ -170,7 +224,10 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   });
   app.get('/api/openapi.json', { schema: { hide: true } }, async () => app.swagger());
 
-  app.addHook('onRequest', authHook(token));
+  // In this order, on every request (404s too): the Host, then cross-site, then the token.
+  app.addHook('onRequest', hostHook(hostPolicy(opts.listenHost ?? '127.0.0.1', opts.allowedHosts ?? [])));
+  app.addHook('onRequest', crossSiteHook());
+  app.addHook('onRequest', authHook(auth));
 
   const demos = loadDemos(opts.demosDir ?? defaultDemosDir());
   if (opts.seedDemos ?? true) {
@@ -179,11 +236,11 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   }
 
   await app.register(healthRoutes, { version: opts.version ?? packageVersion(), workers: () => pool.stats() });
-  await app.register(sessionRoutes, { token });
+  await app.register(sessionRoutes, { auth, maxAgeMs: sessionLimits.absoluteMs });
   await app.register(solveRoutes, { pool, limits, workerThreshold, rateLimitPerMinute });
   await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold });
   await app.register(demosRoutes, { demos });
-  await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir });
+  await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir, auth, routes });
 
   return app as unknown as FastifyInstance;
 }

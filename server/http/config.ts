@@ -3,6 +3,8 @@
  * at startup: a bad value stops the server with a message that names the flag,
  * never a silent fallback to a default. Flags win over the environment.
  */
+import fs from 'node:fs';
+import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 
@@ -14,6 +16,10 @@ export interface ServerConfig {
   dataDir: string;
   /** Team token; undefined = open server. */
   token: string | undefined;
+  /** Names (or addresses) the server answers to besides its own address (Host header). */
+  allowedHosts: string[];
+  /** Proxies whose X-Forwarded-For/-Proto/-Host are believed: addresses, CIDR ranges or loopback/linklocal/uniquelocal. */
+  trustProxy: string[];
   /** Largest request body, bytes. */
   maxBodyBytes: number;
   /** Largest model, stations (engine's upper bound). */
@@ -39,6 +45,8 @@ export const DEFAULTS: ServerConfig = {
   host: '127.0.0.1',
   dataDir: './data',
   token: undefined,
+  allowedHosts: [],
+  trustProxy: [],
   maxBodyBytes: 64 * 1024 * 1024, // bytes: a 1e6-station model written compactly is ~30-50 MB
   maxStations: 2_000_000, // stations
   maxShafts: 10_000, // shafts
@@ -107,13 +115,53 @@ function token(text: string, name: string): string {
   return text;
 }
 
+/** Reads the token from a file (first line, trailing white space dropped): keeps it out of the process list. */
+function tokenFile(text: string, name: string): string {
+  let content: string;
+  try {
+    content = fs.readFileSync(path.resolve(text), 'utf8');
+  } catch (err) {
+    throw new ConfigError(`${name}: cannot read ${path.resolve(text)} (${(err as NodeJS.ErrnoException).code ?? String(err)})`);
+  }
+  return token(content.split(/\r?\n/)[0].trimEnd(), `${name} (${path.resolve(text)})`);
+}
+
+/** "a.example, b.example": host names or addresses, without scheme, path or port. */
+function hostList(text: string, name: string): string[] {
+  const items = text.split(',').map((t) => t.trim().toLowerCase()).filter((t) => t !== '');
+  for (const h of items) {
+    if (!/^[a-z0-9.-]+$/.test(h) && net.isIP(h.replace(/^\[|\]$/g, '')) === 0) {
+      throw new ConfigError(`${name}: "${h}" is not a host name or address (give names such as shaftnet.example.com, without scheme or port)`);
+    }
+  }
+  return items;
+}
+
+/** "127.0.0.1, 10.0.0.0/8, loopback": what Fastify's trustProxy takes as a list. */
+function proxyList(text: string, name: string): string[] {
+  const items = text.split(',').map((t) => t.trim()).filter((t) => t !== '');
+  for (const p of items) {
+    const [addr, bits, extra] = p.split('/');
+    const named = ['loopback', 'linklocal', 'uniquelocal'].includes(p);
+    const family = net.isIP(addr);
+    const okBits = bits === undefined || (/^\d+$/.test(bits) && Number(bits) <= (family === 6 ? 128 : 32));
+    if (!named && (family === 0 || !okBits || extra !== undefined)) {
+      throw new ConfigError(`${name}: "${p}" is not an address, a CIDR range (10.0.0.0/8) or one of loopback, linklocal, uniquelocal`);
+    }
+  }
+  return items;
+}
+
 const LOG_LEVELS = ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'];
 
 export const OPTIONS: readonly OptionSpec[] = [
   { key: 'port', flag: '--port', env: 'SHAFTNET_PORT', help: 'TCP port (0 = any free port)', read: integer(0, 65535) },
   { key: 'host', flag: '--host', env: 'SHAFTNET_HOST', help: 'address to bind; 0.0.0.0 serves the network', read: nonEmpty },
   { key: 'dataDir', flag: '--data', env: 'SHAFTNET_DATA', help: 'directory of the model library database', read: nonEmpty },
-  { key: 'token', flag: '--token', env: 'SHAFTNET_TOKEN', help: 'team token; every API call then needs it', read: token },
+  { key: 'token', flag: '--token', env: 'SHAFTNET_TOKEN', help: 'team token; every API call then needs it (visible in ps: prefer the next two)', read: token },
+  { key: 'token', flag: '--token-file', env: 'SHAFTNET_TOKEN_FILE', help: 'file whose first line is the team token', read: tokenFile },
+  { key: 'allowedHosts', flag: '--allowed-hosts', env: 'SHAFTNET_ALLOWED_HOSTS', help: 'names the server answers to (a,b), besides its address', read: hostList },
+  { key: 'trustProxy', flag: '--trust-proxy', env: 'SHAFTNET_TRUST_PROXY', help: 'proxies to believe X-Forwarded-* from (addresses, CIDR, loopback)', read: proxyList },
   { key: 'maxBodyBytes', flag: '--max-body', env: 'SHAFTNET_MAX_BODY', help: 'largest request body (e.g. 64mb)', read: bytes },
   { key: 'maxStations', flag: '--max-stations', env: 'SHAFTNET_MAX_STATIONS', help: 'largest model, stations', read: integer(1, 100_000_000) },
   { key: 'maxShafts', flag: '--max-shafts', env: 'SHAFTNET_MAX_SHAFTS', help: 'largest model, shafts', read: integer(1, 10_000_000) },
@@ -138,7 +186,7 @@ export const OPTIONS: readonly OptionSpec[] = [
 export function usage(): string {
   const lines = OPTIONS.map((o) => {
     const def = DEFAULTS[o.key];
-    const shown = def === undefined ? '' : ` (default ${o.key === 'maxBodyBytes' ? `${(def as number) / 1024 ** 2}mb` : o.key === 'solveTimeoutMs' ? `${(def as number) / 1000}s` : def})`;
+    const shown = def === undefined || Array.isArray(def) || o.flag === '--token-file' ? '' : ` (default ${o.key === 'maxBodyBytes' ? `${(def as number) / 1024 ** 2}mb` : o.key === 'solveTimeoutMs' ? `${(def as number) / 1000}s` : def})`;
     return `  ${(o.flag + ' <value>').padEnd(28)} ${o.env.padEnd(26)} ${o.help}${shown}`;
   });
   return ['Usage: shaftnet serve [options]', '', '  flag                         environment variable', ...lines, '  --help'].join('\n');
@@ -150,10 +198,18 @@ export function parseConfig(argv: readonly string[], env: NodeJS.ProcessEnv = pr
   const set = (spec: OptionSpec, text: string, name: string) => {
     (config as unknown as Record<string, unknown>)[spec.key] = spec.read(text, name);
   };
+  const given = (specs: Array<[OptionSpec, string]>, where: string) => {
+    const tokens = specs.filter(([s]) => s.key === 'token').map(([, n]) => n);
+    if (tokens.length > 1) throw new ConfigError(`give the team token once ${where}, not with both ${tokens.join(' and ')}`);
+  };
+  const fromEnv: Array<[OptionSpec, string]> = [];
   for (const spec of OPTIONS) {
     const value = env[spec.env];
-    if (value !== undefined && value !== '') set(spec, value, spec.env);
+    if (value !== undefined && value !== '') fromEnv.push([spec, spec.env]);
   }
+  given(fromEnv, 'in the environment');
+  for (const [spec] of fromEnv) set(spec, env[spec.env] as string, spec.env);
+  const fromFlags: Array<[OptionSpec, string]> = [];
   for (let i = 0; i < argv.length; i++) {
     const arg = argv[i];
     const eq = arg.indexOf('=');
@@ -167,6 +223,8 @@ export function parseConfig(argv: readonly string[], env: NodeJS.ProcessEnv = pr
       i++;
     }
     if (value === undefined) throw new ConfigError(`${flag} needs a value`);
+    fromFlags.push([spec, flag]);
+    given(fromFlags, 'on the command line');
     set(spec, value, flag);
   }
   config.dataDir = path.resolve(config.dataDir);

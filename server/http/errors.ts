@@ -111,6 +111,11 @@ export function toErrorReply(err: unknown): ErrorReply & { internal: boolean } {
       return jsonError('send the body as JSON with "Content-Type: application/json"');
     case 'FST_ERR_NOT_FOUND':
       return { ...errorReply('SN_NOT_FOUND', 'no such route'), internal: false };
+    // The router's own refusals (passed on by buildApp's frameworkErrors).
+    case 'FST_ERR_BAD_URL':
+      return jsonError('the path has a percent-escape that does not decode to UTF-8 text', 'SN_BAD_REQUEST');
+    case 'FST_ERR_MAX_PARAM_LENGTH':
+      return jsonError('a part of the path is longer than 1000 characters', 'SN_PATH_TOO_LONG');
   }
   const status = typeof fe.statusCode === 'number' ? fe.statusCode : 500;
   if (status === 404) return { ...errorReply('SN_NOT_FOUND', 'not found'), internal: false };
@@ -124,6 +129,16 @@ export function toErrorReply(err: unknown): ErrorReply & { internal: boolean } {
     ...errorReply('SN_INTERNAL', 'internal server error; the server log has the details'),
     internal: true,
   };
+}
+
+/**
+ * The raw HTTP answer for a request Node's parser refused before any route saw
+ * it (a broken request line or header): the project's body, then the
+ * connection is closed.
+ */
+export function clientErrorResponse(message: string): string {
+  const body = JSON.stringify(errorReply('SN_BAD_REQUEST', message, [{ code: 'SN_BAD_REQUEST', pointer: '', message }]).body);
+  return `HTTP/1.1 400 Bad Request\r\nContent-Type: application/json; charset=utf-8\r\nContent-Length: ${Buffer.byteLength(body)}\r\nConnection: close\r\n\r\n${body}`;
 }
 
 function jsonError(message: string, code: ErrorCode = 'SN_JSON'): ErrorReply & { internal: boolean } {

@@ -31,26 +31,29 @@ export function parseJsonText(text: string): unknown {
     throw jsonError(`the body is not valid JSON: ${detail.length > 200 ? detail.slice(0, 200) + '...' : detail}`);
   }
   // JSON.parse makes "__proto__" an own property; refuse it before any code merges objects.
-  if (text.includes('__proto__') && hasProtoKey(value)) throw jsonError('the body contains a "__proto__" key');
+  const proto = text.includes('__proto__') ? protoKeyPointer(value) : null;
+  if (proto !== null) throw jsonError('the body contains a "__proto__" key', proto);
   return value;
 }
 
-function hasProtoKey(value: unknown): boolean {
-  const stack: unknown[] = [value];
+/** The JSON pointer of the first "__proto__" key (depth first), or null. */
+function protoKeyPointer(value: unknown): string | null {
+  const stack: Array<[unknown, string]> = [[value, '']];
   while (stack.length > 0) {
-    const v = stack.pop();
+    const [v, at] = stack.pop()!;
     if (v === null || typeof v !== 'object') continue;
-    if (Array.isArray(v)) stack.push(...v);
+    if (Array.isArray(v)) for (let i = v.length - 1; i >= 0; i--) stack.push([v[i], `${at}/${i}`]);
     else {
-      if (Object.prototype.hasOwnProperty.call(v, '__proto__')) return true;
-      for (const k in v) stack.push((v as Record<string, unknown>)[k]);
+      if (Object.prototype.hasOwnProperty.call(v, '__proto__')) return `${at}/__proto__`;
+      const keys = Object.keys(v);
+      for (let i = keys.length - 1; i >= 0; i--) stack.push([(v as Record<string, unknown>)[keys[i]], at + '/' + keys[i].replace(/~/g, '~0').replace(/\//g, '~1')]);
     }
   }
-  return false;
+  return null;
 }
 
-function jsonError(message: string): HttpError {
-  return new HttpError('SN_JSON', message, [{ code: 'SN_JSON', pointer: '', message }]);
+function jsonError(message: string, pointer = ''): HttpError {
+  return new HttpError('SN_JSON', message, [{ code: 'SN_JSON', pointer, message }]);
 }
 
 /** Checks the shape of a model (what Fastify checks for a parsed body); throws a 400 naming the fields. */

@@ -70,7 +70,9 @@ describe('token mode', () => {
     expect(setCookie).toMatch(/^shaftnet_session=/);
     expect(setCookie).toMatch(/HttpOnly/);
     expect(setCookie).toMatch(/SameSite=Strict/);
-    expect(setCookie).not.toContain(TOKEN); // the cookie holds an HMAC, not the token
+    expect(setCookie).not.toContain(TOKEN); // the cookie holds a random session id, not the token
+    expect(setCookie).toMatch(/Max-Age=604800/); // 7 days, the session's absolute lifetime
+    expect(setCookie).not.toMatch(/Secure/); // plain HTTP, no trusted proxy
     const value = /^shaftnet_session=([^;]+)/.exec(setCookie)![1];
 
     const cookie = { cookie: `shaftnet_session=${value}` };
@@ -79,9 +81,12 @@ describe('token mode', () => {
     const forged = await t.app.inject({ method: 'GET', url: '/api/models', headers: { cookie: `shaftnet_session=${value.slice(0, -2)}xx` } });
     expect(forged.statusCode).toBe(401);
 
-    const out = await t.app.inject({ method: 'DELETE', url: '/api/session', headers: cookie });
+    const out = await t.app.inject({ method: 'DELETE', url: '/api/session', headers: { ...cookie, ...json } });
     expect(out.statusCode).toBe(200);
     expect(String(out.headers['set-cookie'])).toMatch(/shaftnet_session=;.*Expires=Thu, 01 Jan 1970/);
+    // Signed out on the server: a copy of the cookie kept elsewhere no longer works.
+    expect((await t.app.inject({ method: 'GET', url: '/api/models', headers: cookie })).statusCode).toBe(401);
+    expect((await t.app.inject({ method: 'GET', url: '/api/session', headers: cookie })).json().signedIn).toBe(false);
   });
 
   it('an open server needs no token and says so', async () => {

@@ -1,3 +1,5 @@
+import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { ConfigError, DEFAULTS, isLoopback, parseConfig, usage } from '../../server/http/config.js';
@@ -57,6 +59,38 @@ describe('server options', () => {
       expect(text).toContain(flag);
     }
     expect(text).toContain('SHAFTNET_TOKEN');
+  });
+
+  it('reads the token from a file (--token-file / SHAFTNET_TOKEN_FILE), keeping it out of the process list', () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-token-'));
+    try {
+      const file = path.join(dir, 'token');
+      fs.writeFileSync(file, 'file-token-123456\n');
+      expect(parseConfig(['--token-file', file], {}).token).toBe('file-token-123456');
+      expect(parseConfig([], { SHAFTNET_TOKEN_FILE: file }).token).toBe('file-token-123456');
+      // A flag wins over the environment, as for every option.
+      expect(parseConfig(['--token-file', file], { SHAFTNET_TOKEN: 'env-token-1234567' }).token).toBe('file-token-123456');
+      fs.writeFileSync(file, 'short\n');
+      expect(() => parseConfig(['--token-file', file], {})).toThrow(/--token-file \(.*token\) must be at least 8/);
+      expect(() => parseConfig(['--token-file', path.join(dir, 'missing')], {})).toThrow(/--token-file: cannot read .*missing \(ENOENT\)/);
+      expect(() => parseConfig(['--token', 'abcdefgh12', '--token-file', file], {})).toThrow(/not with both --token and --token-file/);
+      expect(() => parseConfig([], { SHAFTNET_TOKEN: 'abcdefgh12', SHAFTNET_TOKEN_FILE: file })).toThrow(/not with both SHAFTNET_TOKEN and SHAFTNET_TOKEN_FILE/);
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('reads --allowed-hosts and --trust-proxy as lists, and refuses what is not a name or an address', () => {
+    const c = parseConfig(['--allowed-hosts', 'Shaftnet.Example, 10.0.0.5', '--trust-proxy=127.0.0.1,10.0.0.0/8,loopback'], {});
+    expect(c.allowedHosts).toEqual(['shaftnet.example', '10.0.0.5']);
+    expect(c.trustProxy).toEqual(['127.0.0.1', '10.0.0.0/8', 'loopback']);
+    expect(parseConfig([], { SHAFTNET_ALLOWED_HOSTS: 'a.example', SHAFTNET_TRUST_PROXY: '::1' })).toMatchObject({ allowedHosts: ['a.example'], trustProxy: ['::1'] });
+    expect(parseConfig([], {})).toMatchObject({ allowedHosts: [], trustProxy: [] });
+    expect(() => parseConfig(['--allowed-hosts', 'http://a.example/'], {})).toThrow(/--allowed-hosts: "http:\/\/a.example\/" is not a host name/);
+    expect(() => parseConfig(['--trust-proxy', 'everyone'], {})).toThrow(/--trust-proxy: "everyone" is not an address/);
+    expect(() => parseConfig(['--trust-proxy', '10.0.0.0/33'], {})).toThrow(/--trust-proxy/);
+    const text = usage();
+    for (const flag of ['--token-file', '--allowed-hosts', '--trust-proxy', 'SHAFTNET_TOKEN_FILE', 'SHAFTNET_ALLOWED_HOSTS', 'SHAFTNET_TRUST_PROXY']) expect(text).toContain(flag);
   });
 
   it('importing server/main.ts starts nothing', async () => {

@@ -106,7 +106,7 @@ describe('model library', () => {
     // an archived model is still readable and saveable: nothing is deleted
     expect((await t.app.inject({ method: 'GET', url: `/api/models/${id}` })).json().archived).toBe(true);
 
-    const restore = await t.app.inject({ method: 'POST', url: `/api/models/${id}/restore` });
+    const restore = await t.app.inject({ method: 'POST', url: `/api/models/${id}/restore`, headers: { 'content-type': 'application/json' } });
     expect(restore.json()).toEqual({ id, archived: false });
     expect((await t.app.inject({ method: 'GET', url: '/api/models?q=zebra' })).json().models).toHaveLength(1);
   });
@@ -125,7 +125,7 @@ describe('model library', () => {
       ['PUT', '/api/models/nosuchmodel', { model: cantilever(1), baseRevision: 1, author: 'a', message: '' }],
     ];
     for (const [method, url, body] of cases) {
-      const r = await t.app.inject({ method: method as 'GET', url, ...(body ? json(body) : {}) });
+      const r = await t.app.inject({ method: method as 'GET', url, ...(body ? json(body) : method === 'POST' ? { headers: { 'content-type': 'application/json' } } : {}) });
       expect(r.statusCode, `${method} ${url}`).toBe(404);
       expect(errorOf(r.body).error.code).toBe('SN_NOT_FOUND');
     }

@@ -1,5 +1,12 @@
+import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
 import { Writable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { parseConfig } from '../../server/http/config.js';
+import { startServer } from '../../server/main.js';
 import { cantilever, errorOf, makeApp, type TestApp } from './helpers.js';
 
 let t: TestApp;
@@ -45,6 +52,11 @@ describe('server', () => {
     const solveBody = doc.paths['/api/solve'].post.requestBody.content['application/json'].schema;
     expect(solveBody.properties.gearMeshes).toBeDefined();
     expect(doc.paths['/api/models/{id}'].put.responses['409']).toBeDefined();
+    // The public routes say so in the document: no security requirement.
+    for (const [p, m] of [['/api/health', 'get'], ['/api/session', 'get'], ['/api/session', 'post'], ['/api/session', 'delete']]) {
+      expect(doc.paths[p][m].security, `${m} ${p}`).toEqual([]);
+    }
+    expect(doc.paths['/api/models'].get.security).toBeUndefined(); // the document's default (the token, in token mode)
     const page = await t.app.inject({ method: 'GET', url: '/api/docs' });
     expect(page.statusCode).toBe(200);
     expect(page.headers['content-type']).toMatch(/text\/html/);
@@ -121,6 +133,40 @@ describe('server', () => {
       await app.close();
     } finally {
       await broken.close();
+    }
+  });
+
+  it('startServer passes the bound address, --allowed-hosts and --trust-proxy to the app', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-start-'));
+    const config = parseConfig(
+      ['--port', '0', '--host', '127.0.0.1', '--data', dir, '--workers', '1', '--log-level', 'silent', '--allowed-hosts', 'shaftnet.example', '--trust-proxy', '127.0.0.1'],
+      {},
+    );
+    const server = await startServer(config);
+    try {
+      const port = (server.app.server.address() as AddressInfo).port;
+      const get = (headers: Record<string, string>) =>
+        new Promise<{ status: number; body: string }>((resolve, reject) => {
+          const req = http.request({ host: '127.0.0.1', port, path: '/api/health', headers }, (res) => {
+            let body = '';
+            res.setEncoding('utf8');
+            res.on('data', (d) => (body += d));
+            res.on('end', () => resolve({ status: res.statusCode ?? 0, body }));
+          });
+          req.on('error', reject);
+          req.end();
+        });
+      expect((await get({ host: `127.0.0.1:${port}` })).status).toBe(200);
+      expect((await get({ host: `localhost:${port}` })).status).toBe(200);
+      expect((await get({ host: 'shaftnet.example' })).status).toBe(200);
+      const evil = await get({ host: `attacker.example:${port}` });
+      expect(evil.status).toBe(421);
+      expect(errorOf(evil.body).error.code).toBe('SN_HOST');
+      // The proxy on 127.0.0.1 is trusted: its forwarded host is the one checked.
+      expect((await get({ host: `127.0.0.1:${port}`, 'x-forwarded-host': 'attacker.example' })).status).toBe(421);
+    } finally {
+      await server.close();
+      fs.rmSync(dir, { recursive: true, force: true });
     }
   });
 });

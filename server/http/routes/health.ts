@@ -18,7 +18,7 @@ const healthRoutes: FastifyPluginAsyncTypebox<HealthOptions> = async (app, opts)
   const started = performance.now();
   app.get(
     '/api/health',
-    { schema: { tags: ['server'], summary: 'Is the server up?', response: { 200: HealthReply } } },
+    { config: { public: true }, schema: { security: [], tags: ['server'], summary: 'Is the server up?', response: { 200: HealthReply } } },
     async () => ({
       status: 'ok' as const,
       version: opts.version,

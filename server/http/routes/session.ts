@@ -1,62 +1,77 @@
 /**
- * Sign-in for token mode: `POST /api/session {token}` sets an HttpOnly,
- * SameSite=Strict cookie; `GET /api/session` says whether a token is needed and
- * whether this client has it; `DELETE /api/session` signs out.
+ * Sign-in for token mode, all three routes public: `POST /api/session {token}`
+ * makes a new server-side session and sets its id in an HttpOnly,
+ * SameSite=Strict cookie (Secure when the request came over TLS, directly or
+ * through a proxy the server trusts); `GET /api/session` says whether a token
+ * is needed and whether this client has it; `DELETE /api/session` ends the
+ * session, so a copy of the cookie stops working too.
  */
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import Type from 'typebox';
-import { isSignedIn, sameSecret, SESSION_COOKIE, sessionValue } from '../auth.js';
-import { HttpError } from '../errors.js';
+import { SESSION_COOKIE, type TeamAuth } from '../auth.js';
 import { errorResponses } from '../schemas.js';
+import { SESSION_DEFAULTS } from '../sessions.js';
 
 export interface SessionOptions {
-  readonly token: string | undefined;
+  /** Token mode; undefined = open server. */
+  readonly auth: TeamAuth | undefined;
+  /** The cookie's Max-Age, ms (the session's absolute lifetime). */
+  readonly maxAgeMs?: number;
 }
 
 const SessionState = Type.Object({ tokenRequired: Type.Boolean(), signedIn: Type.Boolean() });
 
 const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opts) => {
-  const { token } = opts;
+  const { auth } = opts;
+  const maxAge = Math.floor((opts.maxAgeMs ?? SESSION_DEFAULTS.absoluteMs) / 1000); // s
   const cookieOptions = (secure: boolean) => ({
     path: '/',
     httpOnly: true,
     sameSite: 'strict' as const,
     secure, // only when the request came over TLS: the team server usually speaks plain HTTP on the LAN
   });
+  const open = { public: true };
 
   app.get(
     '/api/session',
-    { schema: { tags: ['session'], summary: 'Does this server need the team token, and does this client have it?', response: { 200: SessionState } } },
-    async (req) => ({ tokenRequired: token !== undefined, signedIn: isSignedIn(req, token) }),
+    {
+      config: open,
+      schema: { security: [], tags: ['session'], summary: 'Does this server need the team token, and does this client have it?', response: { 200: SessionState, ...errorResponses(429) } },
+    },
+    async (req, reply) => ({ tokenRequired: auth !== undefined, signedIn: auth === undefined || auth.isSignedIn(req, reply) }),
   );
 
   app.post(
     '/api/session',
     {
+      config: open,
       schema: {
+        security: [],
         tags: ['session'],
-        summary: 'Sign in with the team token (sets an HttpOnly cookie)',
+        summary: 'Sign in with the team token (sets an HttpOnly cookie holding a new session id)',
+        description: 'At most 10 attempts a minute from one address (wrong bearer tokens count too); then 429 with Retry-After.',
         body: Type.Object({ token: Type.String({ minLength: 1, maxLength: 1000 }) }, { additionalProperties: false }),
-        response: { 200: SessionState, ...errorResponses(400, 401) },
+        response: { 200: SessionState, ...errorResponses(400, 401, 403, 429) },
       },
     },
     async (req, reply) => {
-      if (token === undefined) return { tokenRequired: false, signedIn: true };
-      if (!sameSecret(req.body.token, token)) {
-        const message = 'that is not the team token';
-        throw new HttpError('SN_UNAUTHORISED', message, [{ code: 'SN_UNAUTHORISED', pointer: '/token', message }]);
-      }
-      reply.setCookie(SESSION_COOKIE, sessionValue(token), cookieOptions(req.protocol === 'https'));
+      if (auth === undefined) return { tokenRequired: false, signedIn: true };
+      const id = auth.signIn(req, reply, req.body.token);
+      reply.setCookie(SESSION_COOKIE, id, { ...cookieOptions(req.protocol === 'https'), maxAge });
       return { tokenRequired: true, signedIn: true };
     },
   );
 
   app.delete(
     '/api/session',
-    { schema: { tags: ['session'], summary: 'Sign out (clears the cookie)', response: { 200: SessionState } } },
+    {
+      config: open,
+      schema: { security: [], tags: ['session'], summary: 'Sign out (ends the session on the server and clears the cookie)', response: { 200: SessionState, ...errorResponses(403) } },
+    },
     async (req, reply) => {
+      auth?.signOut(req);
       reply.clearCookie(SESSION_COOKIE, cookieOptions(req.protocol === 'https'));
-      return { tokenRequired: token !== undefined, signedIn: token === undefined };
+      return { tokenRequired: auth !== undefined, signedIn: auth === undefined };
     },
   );
 };
