@@ -8,7 +8,7 @@ import { Compile } from 'typebox/compile';
 import { Settings } from 'typebox/system';
 import { Model, MODEL_FORMAT, type GearEnd, type Model as ModelT } from '../../shared-types/model.js';
 import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
-import { isProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
+import { isProblem, rangeProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
 import { buildSectionLayers, type SectionLayer } from './sections.js';
 
 export interface ResolvedMaterial {
@@ -264,7 +264,7 @@ class Resolver {
         } else if (module === null) {
           if (g.module === undefined) this.issue('SN_GEAR_SIZE', base + '/module', `"teeth" on gear ${key} needs the mesh "module"`);
         } else {
-          radius = ((e.teeth as number) * module) / 2;
+          radius = this.derived(((e.teeth as number) * module) / 2, 'length', `${base}/${key}/teeth`, 'the pitch radius teeth × module / 2 =');
         }
         return { ...p, radius };
       };
@@ -323,6 +323,14 @@ class Resolver {
     return r;
   }
 
+  /** A number worked out from others, held to the physical range of its kind like a typed one (NaN if not). */
+  private derived(si: number, kind: QuantityKind, ptr: string, what: string): number {
+    const problem = rangeProblem(si, kind, undefined, what);
+    if (problem === null) return si;
+    this.issue(problem.code, ptr, problem.message);
+    return Number.NaN;
+  }
+
   private positive(value: unknown, kind: QuantityKind, ptr: string): number {
     const v = this.q(value, kind, ptr);
     if (v <= 0) this.issue('SN_NOT_POSITIVE', ptr, `must be greater than zero (got ${String(value)})`);
@@ -347,7 +355,10 @@ class Resolver {
     } else if (mat.E !== undefined && mat.nu !== undefined) {
       const E = this.positive(mat.E, 'stress', base + '/E');
       if (!(mat.nu > -1 && mat.nu < 0.5)) this.issue('SN_OUT_OF_RANGE', base + '/nu', "Poisson's ratio must lie in (-1, 0.5)");
-      G = E / (2 * (1 + mat.nu));
+      else if (E > 0) {
+        // G = E / (2(1 + nu)) grows without bound as nu nears −1: name nu then, else E.
+        G = this.derived(E / (2 * (1 + mat.nu)), 'stress', base + (mat.nu < -0.5 ? '/nu' : '/E'), 'the shear modulus G = E / (2(1 + nu)) =');
+      }
     } else {
       this.issue('SN_MATERIAL', mat.E === undefined ? base + '/E' : base + '/nu', 'give the shear modulus G, or both E and nu');
     }
@@ -498,6 +509,6 @@ class Resolver {
       return 0;
     }
     // P = T·ω, so T = P/ω: the sign of the power gives the sense of the torque about +z.
-    return power / speed;
+    return Number.isFinite(power) ? this.derived(power / speed, 'torque', base + '/power', 'the torque power / speed =') : 0;
   }
 }
