@@ -436,7 +436,10 @@ class Resolver {
         sec.layers.forEach((layer, k) => {
           const lp = `${sp}/layers/${k}`;
           const rOuter = this.positive(layer.d, 'length', lp + '/d') / 2;
-          if (!(rOuter > r)) this.issue('SN_SECTION_GEOMETRY', lp + '/d', 'each layer must be larger than the bore or the layer inside it');
+          // A size already refused (NaN) is not compared again: one issue for one mistake.
+          if (Number.isFinite(rOuter) && Number.isFinite(r) && !(rOuter > r)) {
+            this.issue('SN_SECTION_GEOMETRY', lp + '/d', 'each layer must be larger than the bore or the layer inside it');
+          }
           rings.push({ rInner: r, rOuter, material: lookup(layer.material, lp + '/material') });
           r = rOuter;
         });
@@ -450,7 +453,9 @@ class Resolver {
         if (sec.di === undefined) this.issue('SN_SCHEMA', sp + '/di', 'a hollow section needs an inner diameter di');
         else {
           rInner = di(sp + '/di') / 2;
-          if (!(rInner < rOuter)) this.issue('SN_SECTION_GEOMETRY', sp + '/di', 'the bore di must be smaller than d');
+          if (Number.isFinite(rInner) && Number.isFinite(rOuter) && !(rInner < rOuter)) {
+            this.issue('SN_SECTION_GEOMETRY', sp + '/di', 'the bore di must be smaller than d');
+          }
         }
       } else if (sec.di !== undefined) {
         this.issue('SN_SCHEMA', sp + '/di', 'a solid section has no bore (use shape "hollow")');
