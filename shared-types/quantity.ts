@@ -69,11 +69,13 @@ export interface QuantityRange {
 /**
  * Physical range of every kind (common practice, no source: judgements, documented in README's
  * table). Each is wide enough for any real machine, from instrument mechanisms to ship and mill
- * drives, and narrow enough that no product the engine forms from in-range inputs can overflow or
- * fall below the smallest normal double (2.2e-308): with lengths and diameters in 1e-7 … 1e5 m and
- * moduli in 1e3 … 1e13 Pa, G·J lies within about 1e-42 … 1e32 N·m² and G·J/L within 1e-47 … 1e55 N·m/rad,
- * and rotations, torques and stresses stay within about 1e±130. Zero passes here (a torque of 0 is
- * a torque); a field that must be positive says so itself.
+ * drives, and narrow enough that no product the engine forms for a shaft from in-range inputs can
+ * overflow or fall below the smallest normal double (2.2e-308): with lengths and diameters in 1e-7 … 1e5 m and
+ * moduli in 1e3 … 1e13 Pa, G·J lies within about 1e-42 … 1e32 N·m² and G·J/h of an element within about
+ * 1e-47 … 1e51 N·m/rad, and the rotations, torques and stresses of one shaft stay far inside double
+ * range. What several items do together (a long train of rigid meshes) is caught after the solve, by
+ * server/engine/finite-guard.ts. Zero passes here (a torque of 0 is a torque); a field that must be
+ * positive says so itself.
  */
 export const QUANTITY_RANGE: Readonly<Record<QuantityKind, QuantityRange>> = Object.freeze({
   length: Object.freeze({ min: 1e-7, max: 1e5 }),
