@@ -82,6 +82,7 @@ async function main(): Promise<void> {
   let nullAnswers = 0;
   let nullNumbers = 0;
   let unknownCodes = 0;
+  let byGuard = 0;
   const examples: string[] = [];
   const t0 = performance.now();
   for (let k = 0; k < solves; k++) {
@@ -93,6 +94,8 @@ async function main(): Promise<void> {
     if (a.code !== '') {
       byCode.set(a.code, (byCode.get(a.code) ?? 0) + 1);
       if (!(a.code in ERROR_CODES)) unknownCodes++;
+      // The finite guard's refusals (server/engine/finite-guard.ts) say what the solve gave.
+      if (a.code === 'SN_ILL_CONDITIONED' && a.body.includes('the solve gave')) byGuard++;
     }
     if (a.status >= 500 && examples.length < 10) examples.push(`seed ${caseSeed}: ${a.status} ${a.body.slice(0, 300)}`);
     if (a.status === 200) {
@@ -112,6 +115,7 @@ async function main(): Promise<void> {
   console.log(`answers: ${['2xx', '4xx', '5xx'].map((c) => `${c} ${byClass.get(c) ?? 0}`).join(', ')}${[...byClass.keys()].some((c) => !['2xx', '4xx', '5xx'].includes(c)) ? ` (other: ${JSON.stringify([...byClass])})` : ''}`);
   console.log(`null numbers: ${nullNumbers} in ${nullAnswers} answers of 200`);
   console.log(`error codes: ${[...byCode].sort((x, y) => y[1] - x[1]).map(([c, n]) => `${c} ${n}`).join(', ')}`);
+  console.log(`refused by the finite guard after the solve (SN_ILL_CONDITIONED, "the solve gave ..."): ${byGuard}`);
   if (unknownCodes > 0) console.log(`codes not in the registry: ${unknownCodes}`);
   for (const e of examples) console.log(`  ${e}`);
   if ((byClass.get('5xx') ?? 0) > 0 || nullNumbers > 0 || unknownCodes > 0) process.exitCode = 1;
