@@ -106,6 +106,13 @@ export interface ResolvedModel {
 /** Smallest positive normal double: below it numbers lose precision and products underflow. */
 const MIN_NORMAL = 2.2250738585072014e-308;
 
+/**
+ * Shortest segment, as a fraction of its shaft's length, whose ends stay two stations: stations.ts
+ * merges points closer than 1e-12 of the shaft's length (MERGE_TOLERANCE there), so a shorter
+ * segment would have no element and no results. Twice that, for the round-off of the summed ends.
+ */
+const MIN_SEGMENT_FRACTION = 2e-12;
+
 /** Most shape issues reported for one model: all of them for any real model, bounded against abuse. */
 export const MAX_REPORTED_ISSUES = 500;
 Settings.Set({ maxErrors: MAX_REPORTED_ISSUES });
@@ -405,7 +412,18 @@ class Resolver {
       }
       return { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor };
     });
-    return { id: s.id, name: s.name, length: z + carry, segments };
+    const length = z + carry;
+    for (let j = 0; j < segments.length && Number.isFinite(length); j++) {
+      const h = segments[j].z1 - segments[j].z0;
+      if (h > 0 && h <= MIN_SEGMENT_FRACTION * length) {
+        this.issue(
+          'SN_OUT_OF_RANGE',
+          `${base}/segments/${j}/length`,
+          `a segment of ${h} m on a shaft ${length} m long is shorter than ${MIN_SEGMENT_FRACTION} of the shaft's length: its ends cannot be told apart (check the units, or model the shaft in parts)`,
+        );
+      }
+    }
+    return { id: s.id, name: s.name, length, segments };
   }
 
   private readonly sectionCache = new Map<string, SectionLayer[]>();

@@ -95,7 +95,10 @@ async function main(): Promise<void> {
       byCode.set(a.code, (byCode.get(a.code) ?? 0) + 1);
       if (!(a.code in ERROR_CODES)) unknownCodes++;
       // The finite guard's refusals (server/engine/finite-guard.ts) say what the solve gave.
-      if (a.code === 'SN_ILL_CONDITIONED' && a.body.includes('the solve gave')) byGuard++;
+      if (a.code === 'SN_ILL_CONDITIONED' && a.body.includes('the solve gave')) {
+        byGuard++;
+        if (examples.length < 10) examples.push(`seed ${caseSeed}: refused by the finite guard: ${a.body.slice(0, 300)}`);
+      }
     }
     if (a.status >= 500 && examples.length < 10) examples.push(`seed ${caseSeed}: ${a.status} ${a.body.slice(0, 300)}`);
     if (a.status === 200) {

@@ -169,6 +169,18 @@ describe('values outside the physical range of their kind (SN_OUT_OF_RANGE; rang
     expect(e.issues[0].message).toMatch(/is outside the physical range for .+: its size must lie from \S+ to \S+ \S+$/);
   });
 
+  it('a segment shorter than 2e-12 of its shaft (stations closer than 1e-12 of the length merge) is refused at its length', () => {
+    // 1e-7 m beside 1e5 m: 1e-7 ≤ 2e-12 × (1e5 + 1e-7) ≈ 2e-7, each length inside its own range.
+    const e = expectIssue(
+      demo((m) => (m.shafts[2].segments = [{ length: 1e-7, section: 'd40', material: 'steel' }, { length: 1e5, section: 'd40', material: 'steel' }])),
+      'SN_OUT_OF_RANGE',
+      '/shafts/2/segments/0/length',
+    );
+    expect(e.issues[0].message).toMatch(/its ends cannot be told apart/);
+    // 1 µm beside 1 m is far above the limit (1e-6 > 2e-12): it solves.
+    expect(() => solveModel(demo((m) => (m.shafts[2].segments = [{ length: 1e-6, section: 'd40', material: 'steel' }, { length: 1, section: 'd40', material: 'steel' }])))).not.toThrow();
+  });
+
   it('zero is in range for a signed quantity (a torque, a misfit, a rotation, an offset)', () => {
     expect(() =>
       solveModel(
