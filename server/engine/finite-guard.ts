@@ -35,7 +35,7 @@ export function assertFiniteResults(sv: Solved): void {
     pointer: found.pointer,
     message:
       `the solve gave ${String(found.value)} for ${found.what}${shaft === undefined ? '' : ` of shaft "${shaft}"`}: ` +
-      'numbers of this model run beyond double precision (sizes, stiffnesses or gear ratios many orders of magnitude apart, ' +
+      'numbers of this model run beyond the range of double precision (sizes, stiffnesses or gear ratios many orders of magnitude apart, ' +
       'or a long train of rigid meshes whose ratios multiply past 1e308); check the units',
     ...(shaft === undefined ? {} : { shafts: [shaft] }),
   };
