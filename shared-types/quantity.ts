@@ -60,6 +60,45 @@ export const SI_UNIT: Readonly<Record<QuantityKind, string>> = {
   angularSpeed: 'rad/s',
 };
 
+/** The physical range of a kind: the size |x| that a nonzero quantity of it may have, in SI (bounds included). */
+export interface QuantityRange {
+  readonly min: number;
+  readonly max: number;
+}
+
+/**
+ * Physical range of every kind (common practice, no source: judgements, documented in README's
+ * table). Each is wide enough for any real machine, from instrument mechanisms to ship and mill
+ * drives, and narrow enough that no product the engine forms for a shaft from in-range inputs can
+ * overflow or fall below the smallest normal double (2.2e-308): with lengths and diameters in 1e-7 … 1e5 m and
+ * moduli in 1e3 … 1e13 Pa, G·J lies within about 1e-42 … 1e32 N·m² and G·J/h of an element within about
+ * 1e-47 … 1e51 N·m/rad, and the rotations, torques and stresses of one shaft stay far inside double
+ * range. What several items do together (a long train of rigid meshes) is caught after the solve, by
+ * server/engine/finite-guard.ts. Zero passes here (a torque of 0 is a torque); a field that must be
+ * positive says so itself.
+ */
+export const QUANTITY_RANGE: Readonly<Record<QuantityKind, QuantityRange>> = Object.freeze({
+  length: Object.freeze({ min: 1e-7, max: 1e5 }),
+  torque: Object.freeze({ min: 1e-12, max: 1e12 }),
+  stress: Object.freeze({ min: 1e3, max: 1e13 }),
+  angle: Object.freeze({ min: 1e-12, max: 1e4 }),
+  rotationalStiffness: Object.freeze({ min: 1e-9, max: 1e15 }),
+  linearStiffness: Object.freeze({ min: 1e-6, max: 1e15 }),
+  torquePerLength: Object.freeze({ min: 1e-12, max: 1e12 }),
+  twistRate: Object.freeze({ min: 1e-12, max: 1e6 }),
+  density: Object.freeze({ min: 1e-2, max: 1e5 }),
+  massInertia: Object.freeze({ min: 1e-20, max: 1e10 }),
+  power: Object.freeze({ min: 1e-9, max: 1e10 }),
+  angularSpeed: Object.freeze({ min: 1e-6, max: 1e6 }),
+});
+
+/**
+ * Relative slack at the bounds: a bound typed in another unit ("1e-4 mm" for 1e-7 m) may land an
+ * ulp or two outside it after conversion. 1e-12 is many ulps (2.2e-16 each) and far below any
+ * physical meaning.
+ */
+const RANGE_SLACK = 1e-12;
+
 const table: Array<[QuantityKind, string, number]> = [
   ['length', 'm', 1],
   ['length', 'mm', 1e-3],
@@ -131,18 +170,13 @@ export function unitsOfKind(kind: QuantityKind): string[] {
   return table.filter((row) => row[0] === kind).map((row) => row[1]);
 }
 
-/** Canonical spellings already worked out: a model repeats the same few units many times. */
-const canonicalSeen = new Map<string, string>();
-const CANONICAL_SEEN_MAX = 1000; // spellings kept; the map starts afresh beyond
-
-/** Spellings that mean the same symbol: `·` or a space for `*`, `²`/`³`/`^2` for 2/3, `μ` for u. */
+/**
+ * Spellings that mean the same symbol: `·`, `⋅`, `×` or a space for `*`, spaces around `*` and `/`,
+ * `²`/`³`/`^2`/`^3` for 2/3, `µ`/`μ` for u. Pure: no cache. The usual spellings of every symbol are
+ * looked up in `SPELLINGS`, built once below and frozen; anything else is spelt out by rule.
+ */
 export function canonicalUnit(text: string): string {
-  const seen = canonicalSeen.get(text);
-  if (seen !== undefined) return seen;
-  if (canonicalSeen.size >= CANONICAL_SEEN_MAX) canonicalSeen.clear();
-  const canonical = spellCanonical(text);
-  canonicalSeen.set(text, canonical);
-  return canonical;
+  return SPELLINGS[text] ?? spellCanonical(text);
 }
 
 function spellCanonical(text: string): string {
@@ -158,9 +192,44 @@ function spellCanonical(text: string): string {
     .replace(/[μµ]/g, 'u');
 }
 
+/** Every catalogue symbol in the spellings people type, each with the symbol it means. */
+function buildSpellings(): Readonly<Record<string, string | undefined>> {
+  const out: Record<string, string> = Object.create(null) as Record<string, string>;
+  const stars = ['*', '·', '⋅', '×', ' ', ' * ', ' · '];
+  const slashes = ['/', ' / '];
+  const powers: Array<[string, string]> = [['2', '3'], ['²', '³'], ['^2', '^3']];
+  const micros = ['u', 'µ', 'μ'];
+  for (const symbol of UNITS.keys()) {
+    for (const star of stars) {
+      for (const slash of slashes) {
+        for (const [two, three] of powers) {
+          for (const micro of micros) {
+            const spelt = symbol
+              .replace(/(^|\/)u/, `$1${micro}`)
+              .replace(/\*/g, star)
+              .replace(/\//g, slash)
+              .replace(/2$/, two)
+              .replace(/3$/, three);
+            out[spelt] = symbol;
+          }
+        }
+      }
+    }
+  }
+  return Object.freeze(out);
+}
+
+/**
+ * The usual spellings of every unit, built once from the catalogue and frozen (so no state changes
+ * after the module loads): a model repeats the same few units thousands of times, and a lookup here
+ * is much cheaper than spelling a text out by rule. A test holds every entry to `canonicalUnit`'s rule.
+ */
+export const UNIT_SPELLINGS: Readonly<Record<string, string | undefined>> = buildSpellings();
+const SPELLINGS = UNIT_SPELLINGS;
+
 /** Why a value could not be read as a quantity; `code` is one of the error registry's. */
 export interface QuantityProblem {
-  readonly code: 'SN_NOT_FINITE' | 'SN_QUANTITY_SYNTAX' | 'SN_UNIT_UNKNOWN' | 'SN_UNIT_KIND' | 'SN_UNIT_MISSING';
+  readonly code: 'SN_NOT_FINITE' | 'SN_QUANTITY_SYNTAX' | 'SN_UNIT_UNKNOWN' | 'SN_UNIT_KIND' | 'SN_UNIT_MISSING' | 'SN_OUT_OF_RANGE';
   readonly message: string;
 }
 
@@ -169,11 +238,12 @@ const NUMBER_AND_UNIT = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(
 /**
  * Reads a quantity of the given kind into SI, or says why it cannot.
  * A plain number is already SI; a string needs a unit of the right kind.
+ * Either must be finite and, unless zero, within the kind's physical range.
  */
 export function readQuantity(value: unknown, kind: QuantityKind): number | QuantityProblem {
   if (typeof value === 'number') {
     if (!Number.isFinite(value)) return { code: 'SN_NOT_FINITE', message: 'must be a finite number' };
-    return value;
+    return rangeProblem(value, kind) ?? value;
   }
   if (typeof value !== 'string') {
     return { code: 'SN_QUANTITY_SYNTAX', message: `must be a number in ${SI_UNIT[kind]} or a string like "${example(kind)}"` };
@@ -209,7 +279,34 @@ export function readQuantity(value: unknown, kind: QuantityKind): number | Quant
   }
   const si = magnitude * unit.toSI;
   if (!Number.isFinite(si)) return { code: 'SN_NOT_FINITE', message: `"${value}" overflows` };
-  return si;
+  return rangeProblem(si, kind, value) ?? si;
+}
+
+/**
+ * Null when `si` (finite) is zero or its size lies within the physical range of `kind`; otherwise
+ * the SN_OUT_OF_RANGE problem, naming the range and its unit. `typed` is what the user wrote, when it
+ * was not the SI number itself; `what` says what the number is when it is derived ("the torque P/ω").
+ */
+export function rangeProblem(si: number, kind: QuantityKind, typed?: unknown, what?: string): QuantityProblem | null {
+  const size = Math.abs(si);
+  const { min, max } = QUANTITY_RANGE[kind];
+  if (size === 0 || (size >= min * (1 - RANGE_SLACK) && size <= max * (1 + RANGE_SLACK))) return null;
+  const unit = SI_UNIT[kind];
+  const value = `${short(si)} ${unit}`;
+  const shown = typed === undefined || typed === si ? value : `${JSON.stringify(typed)} (${value})`;
+  return {
+    code: 'SN_OUT_OF_RANGE',
+    message: `${what === undefined ? '' : `${what} `}${shown} is outside the physical range for ${describeKind(kind)}: its size must lie from ${short(min)} to ${short(max)} ${unit}`,
+  };
+}
+
+/** A number for messages: four figures at most, powers of ten written plainly ("1e-7", "2.5e12", "-1.798e308"). */
+function short(x: number): string {
+  if (x === 0) return '0';
+  const [mantissa, exponent] = x.toExponential(3).split('e');
+  const e = Number(exponent);
+  if (e >= 3 || e < -2) return `${mantissa.replace(/\.?0+$/, '')}e${e}`;
+  return String(Number(x.toPrecision(4)));
 }
 
 /** True when `readQuantity` answered a problem rather than a number. */

@@ -12,6 +12,7 @@ import { solveDense } from './dense-solver.js';
 import { expandRotations, recover } from './recover.js';
 import { f64, i32, release, reserveLarge, withArena } from './arena.js';
 import { toSolution, writeSolutionJson, type Solved } from './output.js';
+import { assertFiniteResults } from './finite-guard.js';
 
 export { normaliseModel } from './normalise.js';
 export type { ResolvedModel } from './normalise.js';
@@ -62,6 +63,7 @@ export function withSolved<T>(model: ResolvedModel, options: SolveOptions, use: 
   return withArena(() => {
     reserveLarge(LARGE_BYTES_PER_STATION * stationEstimate(model));
     const solved = solveInArena(model, options);
+    assertFiniteResults(solved);
     const t0 = options.onPhase ? performance.now() : 0;
     const answer = use(solved);
     options.onPhase?.('output', performance.now() - t0);

@@ -8,7 +8,7 @@ import { Compile } from 'typebox/compile';
 import { Settings } from 'typebox/system';
 import { Model, MODEL_FORMAT, type GearEnd, type Model as ModelT } from '../../shared-types/model.js';
 import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
-import { isProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
+import { isProblem, rangeProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
 import { buildSectionLayers, type SectionLayer } from './sections.js';
 
 export interface ResolvedMaterial {
@@ -105,6 +105,13 @@ export interface ResolvedModel {
 
 /** Smallest positive normal double: below it numbers lose precision and products underflow. */
 const MIN_NORMAL = 2.2250738585072014e-308;
+
+/**
+ * Shortest segment, as a fraction of its shaft's length, whose ends stay two stations: stations.ts
+ * merges points closer than 1e-12 of the shaft's length (MERGE_TOLERANCE there), so a shorter
+ * segment would have no element and no results. Twice that, for the round-off of the summed ends.
+ */
+const MIN_SEGMENT_FRACTION = 2e-12;
 
 /** Most shape issues reported for one model: all of them for any real model, bounded against abuse. */
 export const MAX_REPORTED_ISSUES = 500;
@@ -264,7 +271,7 @@ class Resolver {
         } else if (module === null) {
           if (g.module === undefined) this.issue('SN_GEAR_SIZE', base + '/module', `"teeth" on gear ${key} needs the mesh "module"`);
         } else {
-          radius = ((e.teeth as number) * module) / 2;
+          radius = this.derived(((e.teeth as number) * module) / 2, 'length', `${base}/${key}/teeth`, 'the pitch radius teeth × module / 2 =');
         }
         return { ...p, radius };
       };
@@ -323,6 +330,14 @@ class Resolver {
     return r;
   }
 
+  /** A number worked out from others, held to the physical range of its kind like a typed one (NaN if not). */
+  private derived(si: number, kind: QuantityKind, ptr: string, what: string): number {
+    const problem = rangeProblem(si, kind, undefined, what);
+    if (problem === null) return si;
+    this.issue(problem.code, ptr, problem.message);
+    return Number.NaN;
+  }
+
   private positive(value: unknown, kind: QuantityKind, ptr: string): number {
     const v = this.q(value, kind, ptr);
     if (v <= 0) this.issue('SN_NOT_POSITIVE', ptr, `must be greater than zero (got ${String(value)})`);
@@ -347,7 +362,10 @@ class Resolver {
     } else if (mat.E !== undefined && mat.nu !== undefined) {
       const E = this.positive(mat.E, 'stress', base + '/E');
       if (!(mat.nu > -1 && mat.nu < 0.5)) this.issue('SN_OUT_OF_RANGE', base + '/nu', "Poisson's ratio must lie in (-1, 0.5)");
-      G = E / (2 * (1 + mat.nu));
+      else if (E > 0) {
+        // G = E / (2(1 + nu)) grows without bound as nu nears −1: name nu then, else E.
+        G = this.derived(E / (2 * (1 + mat.nu)), 'stress', base + (mat.nu < -0.5 ? '/nu' : '/E'), 'the shear modulus G = E / (2(1 + nu)) =');
+      }
     } else {
       this.issue('SN_MATERIAL', mat.E === undefined ? base + '/E' : base + '/nu', 'give the shear modulus G, or both E and nu');
     }
@@ -394,7 +412,18 @@ class Resolver {
       }
       return { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor };
     });
-    return { id: s.id, name: s.name, length: z + carry, segments };
+    const length = z + carry;
+    for (let j = 0; j < segments.length && Number.isFinite(length); j++) {
+      const h = segments[j].z1 - segments[j].z0;
+      if (h > 0 && h <= MIN_SEGMENT_FRACTION * length) {
+        this.issue(
+          'SN_OUT_OF_RANGE',
+          `${base}/segments/${j}/length`,
+          `a segment of ${h} m on a shaft ${length} m long is shorter than ${MIN_SEGMENT_FRACTION} of the shaft's length: its ends cannot be told apart (check the units, or model the shaft in parts)`,
+        );
+      }
+    }
+    return { id: s.id, name: s.name, length, segments };
   }
 
   private readonly sectionCache = new Map<string, SectionLayer[]>();
@@ -425,7 +454,10 @@ class Resolver {
         sec.layers.forEach((layer, k) => {
           const lp = `${sp}/layers/${k}`;
           const rOuter = this.positive(layer.d, 'length', lp + '/d') / 2;
-          if (!(rOuter > r)) this.issue('SN_SECTION_GEOMETRY', lp + '/d', 'each layer must be larger than the bore or the layer inside it');
+          // A size already refused (NaN) is not compared again: one issue for one mistake.
+          if (Number.isFinite(rOuter) && Number.isFinite(r) && !(rOuter > r)) {
+            this.issue('SN_SECTION_GEOMETRY', lp + '/d', 'each layer must be larger than the bore or the layer inside it');
+          }
           rings.push({ rInner: r, rOuter, material: lookup(layer.material, lp + '/material') });
           r = rOuter;
         });
@@ -439,7 +471,9 @@ class Resolver {
         if (sec.di === undefined) this.issue('SN_SCHEMA', sp + '/di', 'a hollow section needs an inner diameter di');
         else {
           rInner = di(sp + '/di') / 2;
-          if (!(rInner < rOuter)) this.issue('SN_SECTION_GEOMETRY', sp + '/di', 'the bore di must be smaller than d');
+          if (Number.isFinite(rInner) && Number.isFinite(rOuter) && !(rInner < rOuter)) {
+            this.issue('SN_SECTION_GEOMETRY', sp + '/di', 'the bore di must be smaller than d');
+          }
         }
       } else if (sec.di !== undefined) {
         this.issue('SN_SCHEMA', sp + '/di', 'a solid section has no bore (use shape "hollow")');
@@ -498,6 +532,6 @@ class Resolver {
       return 0;
     }
     // P = T·ω, so T = P/ω: the sign of the power gives the sense of the torque about +z.
-    return power / speed;
+    return Number.isFinite(power) ? this.derived(power / speed, 'torque', base + '/power', 'the torque power / speed =') : 0;
   }
 }

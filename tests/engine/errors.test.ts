@@ -143,6 +143,58 @@ describe('sizes that must be positive (SN_NOT_POSITIVE)', () => {
   });
 });
 
+describe('values outside the physical range of their kind (SN_OUT_OF_RANGE; ranges in README, common practice, no source)', () => {
+  it.each<[string, (m: Json) => void, string]>([
+    ['a diameter of 1e-300 m', (m) => (m.sections[0].d = 1e-300), '/sections/0/d'],
+    ['a bore of 50 nm (below 1e-7 m)', (m) => (m.sections[1].di = '5e-5 mm'), '/sections/1/di'],
+    ['a layer of 200 km', (m) => (m.sections[2].layers[1].d = 2e5), '/sections/2/layers/1/d'],
+    ['a point at 1e-300 m', (m) => (m.torques[0].at = 1e-300), '/torques/0/at'],
+    ['a shear modulus of 500 Pa', (m) => (m.materials[0].G = '0.5 kPa'), '/materials/0/G'],
+    ['an allowable stress of 1e14 Pa', (m) => (m.materials[0].allowableShear = '1e5 GPa'), '/materials/0/allowableShear'],
+    ['a density of 1e6 kg/m3', (m) => (m.materials[0].density = 1e6), '/materials/0/density'],
+    ['a torque of 1e13 N·m', (m) => (m.torques[0].torque = '1e10 kN*m'), '/torques/0/torque'],
+    ['a power of 1e11 W', (m) => (m.torques[1].power = '-1e8 kW'), '/torques/1/power'],
+    ['a speed of 1e7 rad/s', (m) => (m.torques[1].speed = 1e7), '/torques/1/speed'],
+    ['a distributed torque of 1e-13 N·m/m', (m) => (m.distributedTorques[0].start = 1e-13), '/distributedTorques/0/start'],
+    ['a spring stiffness of 1e16 N·m/rad', (m) => (m.supports[2].stiffness = '1e13 kN*m/rad'), '/supports/2/stiffness'],
+    ['a mesh stiffness of 1e-7 N/m', (m) => (m.gearMeshes[0].stiffness = 1e-7), '/gearMeshes/0/stiffness'],
+    ['a mesh offset of 1e6 m', (m) => (m.gearMeshes[0].offset = 1e6), '/gearMeshes/0/offset'],
+    ['a coupling misfit of 1e5 rad', (m) => (m.couplings[0].misfit = 1e5), '/couplings/0/misfit'],
+    ['a support rotation of 1e-13 rad', (m) => (m.supports[1].rotation = 1e-13), '/supports/1/rotation'],
+    ['a twist-rate limit of 1e7 rad/m', (m) => (m.limits = { twistRate: 1e7 }), '/limits/twistRate'],
+    ['a disc inertia of 1e11 kg·m²', (m) => (m.discs[0].inertia = 1e11), '/discs/0/inertia'],
+  ])('%s', (_what, change, pointer) => {
+    const e = expectIssue(demo(change), 'SN_OUT_OF_RANGE', pointer);
+    expect(e.status).toBe(400);
+    expect(e.issues[0].message).toMatch(/is outside the physical range for .+: its size must lie from \S+ to \S+ \S+$/);
+  });
+
+  it('a segment shorter than 2e-12 of its shaft (stations closer than 1e-12 of the length merge) is refused at its length', () => {
+    // 1e-7 m beside 1e5 m: 1e-7 ≤ 2e-12 × (1e5 + 1e-7) ≈ 2e-7, each length inside its own range.
+    const e = expectIssue(
+      demo((m) => (m.shafts[2].segments = [{ length: 1e-7, section: 'd40', material: 'steel' }, { length: 1e5, section: 'd40', material: 'steel' }])),
+      'SN_OUT_OF_RANGE',
+      '/shafts/2/segments/0/length',
+    );
+    expect(e.issues[0].message).toMatch(/its ends cannot be told apart/);
+    // 1 µm beside 1 m is far above the limit (1e-6 > 2e-12): it solves.
+    expect(() => solveModel(demo((m) => (m.shafts[2].segments = [{ length: 1e-6, section: 'd40', material: 'steel' }, { length: 1, section: 'd40', material: 'steel' }])))).not.toThrow();
+  });
+
+  it('zero is in range for a signed quantity (a torque, a misfit, a rotation, an offset)', () => {
+    expect(() =>
+      solveModel(
+        demo((m) => {
+          m.torques[0].torque = 0;
+          m.couplings[0].misfit = 0;
+          m.supports[1].rotation = '0 deg';
+          m.gearMeshes[0].offset = 0;
+        }),
+      ),
+    ).not.toThrow();
+  });
+});
+
 describe('ids and references', () => {
   it('a duplicate shaft id is named at the second one', () => {
     expectIssue(demo((m) => m.shafts.splice(1, 0, { ...m.shafts[0] })), 'SN_DUPLICATE_ID', '/shafts/1/id');

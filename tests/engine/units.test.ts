@@ -18,9 +18,12 @@ import {
   canonicalUnit,
   fromSI,
   isProblem,
+  QUANTITY_RANGE,
+  rangeProblem,
   readQuantity,
   SI_UNIT,
   toSI,
+  UNIT_SPELLINGS,
   UNITS,
   unitsOfKind,
   type QuantityKind,
@@ -31,6 +34,16 @@ const KINDS = Object.keys(SI_UNIT) as QuantityKind[];
 const ULPS = 4 * Number.EPSILON;
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(a), Math.abs(b));
+
+/**
+ * A power of ten that puts a value of this unit in the middle of its kind's physical range
+ * (1 Pa, say, is below any modulus or allowable stress, so "1 Pa" is refused as out of range).
+ */
+function midScale(symbol: string): number {
+  const u = UNITS.get(symbol)!;
+  const { min, max } = QUANTITY_RANGE[u.kind];
+  return 10 ** Math.round(Math.log10(Math.sqrt(min * max) / u.toSI));
+}
 
 function factor(symbol: string): number {
   const u = UNITS.get(symbol);
@@ -98,11 +111,12 @@ describe('the unit catalogue', () => {
     for (const [symbol, kind] of required) expect(UNITS.get(symbol)?.kind, symbol).toBe(kind);
   });
 
-  it('reads "1 <unit>" as the unit factor for its own kind, and refuses it for every other kind with SN_UNIT_KIND', () => {
+  it('reads "1eN <unit>" (mid-range) as 1eN × the unit factor for its own kind, and refuses it for every other kind with SN_UNIT_KIND', () => {
     for (const [symbol, unit] of UNITS) {
+      const scale = midScale(symbol);
       for (const kind of KINDS) {
-        const r = readQuantity(`1 ${symbol}`, kind);
-        if (kind === unit.kind) expect(r, symbol).toBe(unit.toSI);
+        const r = readQuantity(`${scale} ${symbol}`, kind);
+        if (kind === unit.kind) expect(r, symbol).toBe(scale * unit.toSI);
         else expect(isProblem(r) && r.code, `${symbol} as ${kind}`).toBe('SN_UNIT_KIND');
       }
     }
@@ -227,6 +241,113 @@ describe('readQuantity', () => {
     expect(readQuantity('40 mm', 'length')).toBe(40 * 1e-3);
     expect(readQuantity('79.3 GPa', 'stress')).toBe(79.3 * 1e9);
     expect(readQuantity('-15 kW', 'power')).toBe(-15 * 1e3);
-    for (const [symbol, unit] of UNITS) expect(readQuantity(`-2.5 ${symbol}`, unit.kind), symbol).toBe(-2.5 * unit.toSI);
+    for (const [symbol, unit] of UNITS) {
+      const value = -2.5 * midScale(symbol);
+      expect(readQuantity(`${value} ${symbol}`, unit.kind), symbol).toBe(value * unit.toSI);
+    }
+  });
+});
+
+describe('physical ranges (QUANTITY_RANGE: common practice, no source; see README)', () => {
+  it('every kind has a range with 0 < min < max, frozen', () => {
+    expect(Object.keys(QUANTITY_RANGE).sort()).toEqual([...KINDS].sort());
+    expect(Object.isFrozen(QUANTITY_RANGE)).toBe(true);
+    for (const kind of KINDS) {
+      const { min, max } = QUANTITY_RANGE[kind];
+      expect(min > 0 && min < max && Number.isFinite(max), kind).toBe(true);
+      expect(Object.isFrozen(QUANTITY_RANGE[kind])).toBe(true);
+    }
+  });
+
+  it('the bounds themselves, as plain SI numbers and with the SI unit, are accepted; so is 0', () => {
+    for (const kind of KINDS) {
+      const { min, max } = QUANTITY_RANGE[kind];
+      for (const v of [min, max, -min, -max, 0]) {
+        expect(readQuantity(v, kind), `${kind} ${v}`).toBe(v);
+        expect(readQuantity(`${v} ${SI_UNIT[kind]}`, kind), `${kind} "${v}"`).toBe(v);
+      }
+    }
+  });
+
+  it('a bound typed in another unit is accepted although conversion may land an ulp outside it', () => {
+    // 1e-4 mm × 1e-3 m/mm = 1.0000000000000001e-7 m in doubles, one ulp above the bound 1e-7 m: inside anyway.
+    expect(isProblem(readQuantity('1e-4 mm', 'length'))).toBe(false);
+    // 1e8 mm = 1e5 m, the upper bound.
+    expect(readQuantity('1e8 mm', 'length')).toBe(1e5);
+    // 1e-3 N*mm/rad = 1e-6 N·m/rad, well inside; 1e-6 N*mm/rad = 1e-9 N·m/rad, the lower bound.
+    expect(isProblem(readQuantity('1e-6 N*mm/rad', 'rotationalStiffness'))).toBe(false);
+  });
+
+  it('one part in a thousand beyond either bound is refused with SN_OUT_OF_RANGE, naming the range in SI units', () => {
+    for (const kind of KINDS) {
+      const { min, max } = QUANTITY_RANGE[kind];
+      for (const v of [min * 0.999, max * 1.001, -min * 0.999, -max * 1.001]) {
+        for (const typed of [v, `${v} ${SI_UNIT[kind]}`]) {
+          const r = readQuantity(typed, kind);
+          expect(isProblem(r) && r.code, `${kind} ${JSON.stringify(typed)}`).toBe('SN_OUT_OF_RANGE');
+          if (isProblem(r)) {
+            expect(r.message).toContain(`${SI_UNIT[kind]}`);
+            expect(r.message).toMatch(/must lie from \S+ to \S+ /);
+          }
+        }
+      }
+    }
+  });
+
+  it('the values of the issue that came back as null are refused by range, with the range in the message', () => {
+    const cases: Array<[unknown, QuantityKind, string]> = [
+      [-1.7976931348623157e308, 'torquePerLength', 'from 1e-12 to 1e12 N*m/m'],
+      ['1e-300 Pa', 'stress', 'from 1e3 to 1e13 Pa'],
+      [1e308, 'stress', 'from 1e3 to 1e13 Pa'],
+      [1e12, 'length', 'from 1e-7 to 1e5 m'],
+      [5e-324, 'length', 'from 1e-7 to 1e5 m'],
+      ['1e15 mm', 'length', '"1e15 mm" (1e12 m)'],
+    ];
+    for (const [typed, kind, text] of cases) {
+      const r = readQuantity(typed, kind);
+      expect(isProblem(r) && r.code, String(typed)).toBe('SN_OUT_OF_RANGE');
+      if (isProblem(r)) expect(r.message).toContain(text);
+    }
+  });
+
+  it('a value that overflows in conversion stays SN_NOT_FINITE (checked before the range)', () => {
+    const r = readQuantity('1e300 Msi', 'stress');
+    expect(isProblem(r) && r.code).toBe('SN_NOT_FINITE');
+  });
+
+  it('rangeProblem holds derived numbers to the same ranges, saying what they are', () => {
+    expect(rangeProblem(5e9, 'length', undefined, 'the pitch radius =')?.message).toMatch(/^the pitch radius = 5e9 m is outside/);
+    expect(rangeProblem(0.02, 'length')).toBeNull();
+    expect(rangeProblem(0, 'torque')).toBeNull();
+  });
+});
+
+describe('spelling without module state', () => {
+  it('every entry of the frozen spelling catalogue reads as the rule spells it (the rule is reached with spaces around)', () => {
+    expect(Object.isFrozen(UNIT_SPELLINGS)).toBe(true);
+    const keys = Object.keys(UNIT_SPELLINGS);
+    expect(keys.length).toBeGreaterThan(UNITS.size);
+    for (const k of keys) {
+      expect(UNITS.has(UNIT_SPELLINGS[k]!), k).toBe(true);
+      expect(canonicalUnit(` ${k} `), JSON.stringify(k)).toBe(UNIT_SPELLINGS[k]);
+      expect(canonicalUnit(k)).toBe(UNIT_SPELLINGS[k]);
+    }
+    // Every catalogue symbol is its own spelling.
+    for (const symbol of UNITS.keys()) expect(UNIT_SPELLINGS[symbol]).toBe(symbol);
+  });
+
+  it('names that are properties of plain objects are not units', () => {
+    for (const name of ['__proto__', 'constructor', 'toString', 'hasOwnProperty']) {
+      expect(UNITS.get(canonicalUnit(name)), name).toBeUndefined();
+      const r = readQuantity(`1 ${name}`, 'length');
+      expect(isProblem(r) && r.code, name).toBe('SN_UNIT_UNKNOWN');
+    }
+  });
+
+  it('quantity.ts keeps no mutable module state: no top-level let or var, no map or set written after load', () => {
+    const source = readFileSync(new URL('../../shared-types/quantity.ts', import.meta.url), 'utf8');
+    expect(source).not.toMatch(/^(let|var) /m);
+    expect(source).not.toMatch(/^export (let|var) /m);
+    expect(source).not.toMatch(/\.(set|clear|delete)\(/);
   });
 });

@@ -1,11 +1,14 @@
 /**
  * Robustness: thousands of malformed and mutated models, seeded. None may get
- * a 5xx; every 4xx must carry a registry code and name a field by pointer.
+ * a 5xx; every 4xx must carry a registry code and name a field by pointer;
+ * every 200 answer holds numbers where the contract wants numbers (no NaN or
+ * Infinity written as null).
  */
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ERROR_CODES } from '../../shared-types/errors.js';
 import { cantilever, demo, makeApp, type ErrorBodyT, type TestApp } from './helpers.js';
+import { extremeCase, misplacedNulls } from '../engine/finite-helpers.js';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -102,6 +105,7 @@ describe('robustness', () => {
         const r = await t.app.inject({ method: 'POST', url: '/api/solve', payload: JSON.stringify(model), headers: { 'content-type': 'application/json' } });
         stats.set(r.statusCode, (stats.get(r.statusCode) ?? 0) + 1);
         checkAnswer(r.statusCode, r.body, model);
+        if (r.statusCode === 200) expect(misplacedNulls(JSON.parse(r.body)), r.body.slice(0, 300)).toEqual([]);
       }),
       { seed: 20240611, numRuns: 3000 },
     );
@@ -145,5 +149,46 @@ describe('robustness', () => {
       ),
       { seed: 4242, numRuns: 1500 },
     );
+  });
+});
+
+describe('finite answers over HTTP', () => {
+  const solve = (model: unknown) =>
+    t.app.inject({ method: 'POST', url: '/api/solve', payload: JSON.stringify(model), headers: { 'content-type': 'application/json' } });
+  const edited = (change: (m: Record<string, any>) => void) => {
+    const m = demo('mixer-drive') as Record<string, any>; // eslint-disable-line @typescript-eslint/no-explicit-any
+    change(m);
+    return m;
+  };
+
+  // The four values that were once answered with null numbers; each is now a 400 naming its field.
+  it.each<[string, (m: Record<string, any>) => void, string]>([ // eslint-disable-line @typescript-eslint/no-explicit-any
+    ['a distributed torque end of -1.7976931348623157e308', (m) => (m.distributedTorques[0].end = -1.7976931348623157e308), '/distributedTorques/0/end'],
+    ['G = "1e-300 Pa"', (m) => (m.materials[0].G = '1e-300 Pa'), '/materials/0/G'],
+    ['G = 1e308', (m) => (m.materials[0].G = 1e308), '/materials/0/G'],
+    ['a segment length of 1e12', (m) => (m.shafts[0].segments[0].length = 1e12), '/shafts/0/segments/0/length'],
+  ])('%s: 400 SN_OUT_OF_RANGE at its pointer', async (_what, change, pointer) => {
+    const r = await solve(edited(change));
+    expect(r.statusCode, r.body).toBe(400);
+    const e = JSON.parse(r.body) as ErrorBodyT;
+    expect(e.error.code).toBe('SN_OUT_OF_RANGE');
+    expect(e.error.issues.map((i) => [i.code, i.pointer])).toEqual([['SN_OUT_OF_RANGE', pointer]]);
+  });
+
+  it('models with extreme quantities (seeded): no 5xx, no null where a number belongs, every 4xx names a field', async () => {
+    const stats = new Map<number, number>();
+    await fc.assert(
+      fc.asyncProperty(fc.integer({ min: 1, max: 2 ** 31 - 1 }), async (seed) => {
+        const model = extremeCase(seed);
+        const r = await solve(model);
+        stats.set(r.statusCode, (stats.get(r.statusCode) ?? 0) + 1);
+        checkAnswer(r.statusCode, r.body, model);
+        if (r.statusCode === 200) expect(misplacedNulls(JSON.parse(r.body)), `seed ${seed}`).toEqual([]);
+      }),
+      { seed: 8042026, numRuns: 500 },
+    );
+    // Both sides are reached: answers to check, and refusals by range.
+    expect(stats.get(200) ?? 0).toBeGreaterThan(100);
+    expect(stats.get(400) ?? 0).toBeGreaterThan(100);
   });
 });
