@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../../server/cli.js';
 import { solveModel } from '../../server/engine/index.js';
+import { STATION_CSV_HEADER, stationCsv } from '../../shared-types/present.js';
 
 const demoPath = new URL('../../server/demos/mixer-drive.json', import.meta.url).pathname;
 const demo = JSON.parse(readFileSync(demoPath, 'utf8'));
@@ -21,6 +22,26 @@ function writeModel(model: unknown): string {
   const file = join(dir, 'model.json');
   writeFileSync(file, typeof model === 'string' ? model : JSON.stringify(model));
   return file;
+}
+
+/** A shaft of n segments of two sizes, fixed at both ends, a point torque on every seventh station (invented). */
+function chainModel(n: number) {
+  return {
+    format: 'shaftnet/1',
+    name: 'Chain for the command line (invented)',
+    materials: [{ id: 's', G: 79.3e9 }],
+    sections: [
+      { id: 'a', shape: 'solid', d: 0.04 },
+      { id: 'b', shape: 'hollow', d: 0.05, di: 0.03 },
+    ],
+    shafts: [{ id: 'bar', segments: Array.from({ length: n }, (_, i) => ({ length: 0.01, section: i % 3 === 0 ? 'b' : 'a', material: 's' })) }],
+    supports: [
+      { id: 'A', shaft: 'bar', at: 0, kind: 'fixed' },
+      { id: 'B', shaft: 'bar', at: n * 0.01, kind: 'fixed' },
+    ],
+    torques: Array.from({ length: Math.floor(n / 7) }, (_, i) => ({ id: `t${i}`, shaft: 'bar', at: (7 * i + 3) * 0.01, torque: (i % 11) - 5 })),
+    distributedTorques: [{ id: 'w', shaft: 'bar', from: 0, to: n * 0.01, start: -20, end: 35 }],
+  };
 }
 
 describe('shaftnet solve', () => {
@@ -71,12 +92,26 @@ describe('shaftnet solve', () => {
     for (const text of [si.out, us.out]) expect(text).toContain('qualified engineer');
   });
 
-  it('--csv prints one row per station', async () => {
+  it('--csv prints the station table of the presentation module, one row per station', async () => {
     const r = await run(['solve', demoPath, '--csv']);
+    const solution = solveModel(demo);
+    expect(r.code).toBe(0);
+    expect(r.out).toBe(stationCsv(solution, 'si'));
     const rows = r.out.trim().split('\n');
-    const stations = solveModel(demo).shafts.reduce((n, s) => n + s.stations.length, 0);
-    expect(rows[0]).toBe('shaft,z_m,rotation_rad,torque_left_Nm,torque_right_Nm');
+    const stations = solution.shafts.reduce((n, s) => n + s.stations.length, 0);
+    expect(rows[0]).toBe(STATION_CSV_HEADER);
     expect(rows.length - 1).toBe(stations);
+    const us = await run(['solve', demoPath, '--csv', '--units', 'us']);
+    expect(us.out).toBe(stationCsv(solution, 'us'));
+  });
+
+  it('--csv from the columns of the solve matches the CSV of the solution object, on a large model too', async () => {
+    const pieces: string[] = [];
+    const model = chainModel(30_000);
+    const code = await runCli(['solve', writeModel(model), '--csv', '--units=us'], () => undefined, () => undefined, (t) => pieces.push(t));
+    expect(code).toBe(0);
+    expect(pieces.length).toBeGreaterThan(1);
+    expect(pieces.join('')).toBe(stationCsv(solveModel(model), 'us'));
   });
 
   it('an invalid model exits 2 and names the field', async () => {
@@ -84,7 +119,7 @@ describe('shaftnet solve', () => {
     bad.sections[0].d = '40 GPa';
     const r = await run(['solve', writeModel(bad)]);
     expect(r.code).toBe(2);
-    expect(r.err).toContain('SN_UNIT_KIND /sections/0/d');
+    expect(r.err).toContain(`SN_UNIT_KIND /sections/0/d (section ${JSON.stringify(demo.sections[0].id)}, d): `);
   });
 
   it('a mechanism exits 2 and names the shafts', async () => {

@@ -225,7 +225,7 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     await input.press('Tab');
     await waitFresh(page);
     expect(await input.inputValue()).toBe('254');
-    await page.locator('header select[aria-label="Units"]').selectOption('US');
+    await page.locator('header select[aria-label="Units"]').selectOption('us');
     expect(await input.inputValue()).toBe('10');
     await expect.poll(() => page.locator('sn-results table.reactions thead').innerText()).toContain('lbf·in');
     await shot(page, '03-us-units');
