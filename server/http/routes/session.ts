@@ -8,12 +8,13 @@ import Type from 'typebox';
 import { isSignedIn, sameSecret, SESSION_COOKIE, sessionValue } from '../auth.js';
 import { HttpError } from '../errors.js';
 import { errorResponses } from '../schemas.js';
+import { SessionInfo } from '../../../shared-types/library.js';
 
 export interface SessionOptions {
   readonly token: string | undefined;
 }
 
-const SessionState = Type.Object({ tokenRequired: Type.Boolean(), signedIn: Type.Boolean() });
+const SessionState = SessionInfo;
 
 const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opts) => {
   const { token } = opts;
