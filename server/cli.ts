@@ -9,7 +9,7 @@
  * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
  * message names the field or the shafts), 1 anything else.
  */
-import { readFileSync } from 'node:fs';
+import { readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 import { ModelError } from '../shared-types/errors.js';
@@ -113,11 +113,16 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
     // million-station answer is longer than one string can be.
     let collected = '';
     const pieces = write ?? ((piece: string) => void (collected += piece));
+    // Small pieces: a writer that packs them into bytes (see `byteWriter`) never holds a long string.
+    const pieceChars = write ? 1 << 16 : Infinity;
     if (args.output === 'json') {
       // The engine writes the JSON itself: the same text as JSON.stringify of the solution object.
-      solveModelJson(model, pieces, options);
+      solveModelJson(model, pieces, options, pieceChars);
       pieces('\n');
-    } else withSolved(normaliseModel(model), options, (solved) => writeStationCsv(solvedStationColumns(solved), args.units, pieces));
+    } else {
+      const resolved = normaliseModel(model);
+      withSolved(resolved, options, (solved) => writeStationCsv(solvedStationColumns(solved), args.units, pieces, write ? 0 : Infinity));
+    }
     if (!write) out(collected.endsWith('\n') ? collected.slice(0, -1) : collected);
     return 0;
   } catch (e) {
@@ -134,14 +139,45 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
   }
 }
 
-const isMain = process.argv[1] !== undefined && fileURLToPath(import.meta.url) === (await import('node:fs')).realpathSync(process.argv[1]);
+/**
+ * A writer that packs text into byte buffers of `size` and hands each full one
+ * to `emit` (`end` hands over the rest). Text written row by row goes into
+ * bytes at once, so no long string is built, joined and encoded again; each
+ * buffer is new, so `emit` may keep it.
+ */
+export function byteWriter(emit: (bytes: Buffer) => void, size = 1 << 20): { write(text: string): void; end(): void } {
+  let buf = Buffer.allocUnsafe(size);
+  let used = 0;
+  const flush = () => {
+    if (used > 0) emit(buf.subarray(0, used));
+    buf = Buffer.allocUnsafe(size);
+    used = 0;
+  };
+  return {
+    write(text: string) {
+      if (used + 3 * text.length > size) {
+        flush();
+        if (3 * text.length > size) {
+          emit(Buffer.from(text, 'utf8'));
+          return;
+        }
+      }
+      used += buf.write(text, used, 'utf8');
+    },
+    end: flush,
+  };
+}
+
+const isMain = process.argv[1] !== undefined && fileURLToPath(import.meta.url) === realpathSync(process.argv[1]);
 if (isMain) {
+  const stdout = byteWriter((bytes) => process.stdout.write(bytes));
   const code = await runCli(
     process.argv.slice(2),
     (s) => process.stdout.write(s.endsWith('\n') ? s : s + '\n'),
     (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n'),
-    (text) => process.stdout.write(text),
+    stdout.write,
   );
+  stdout.end();
   // `serve` keeps running; everything else ends with its status.
   if (process.argv[2] !== 'serve' || code !== 0) process.exitCode = code;
 }

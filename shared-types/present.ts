@@ -323,21 +323,29 @@ function csvField(s: string): string {
 
 /**
  * A number of the CSV: `CSV_DIGITS` significant figures, no trailing zeros, an
- * exponent only below 1e-6 or from 1e21 (as JavaScript writes numbers); empty
- * for NaN (no value there).
+ * exponent only below 1e-6 or from 1e10; empty for NaN (no value there). The
+ * text of `String(Number(x.toPrecision(CSV_DIGITS)))`, without its second and
+ * third conversion where the fixed notation only needs its zeros trimmed.
  */
-function csvNumber(x: number): string {
+export function csvNumber(x: number): string {
   if (x !== x) return '';
   if (x === 0) return '0';
-  return String(+x.toPrecision(CSV_DIGITS));
+  const s = x.toPrecision(CSV_DIGITS);
+  if (s.indexOf('e') >= 0) return String(+s);
+  if (s.indexOf('.') < 0) return s;
+  let k = s.length;
+  while (s.charCodeAt(k - 1) === 48) k--; // '0'
+  if (s.charCodeAt(k - 1) === 46) k--; // '.'
+  return k === s.length ? s : s.slice(0, k);
 }
 
 /**
  * Writes the station table as CSV to `sink`, in pieces of about `pieceChars`
- * characters (the last piece ends with a line end): one header row, then one
- * row per station, shaft by shaft, z ascending. Numbers in the system's display
- * units (`stationCsvHeader`); the shear column is the largest |τ| over all the
- * layers of the section, on whichever side of the station it is larger.
+ * characters (0: row by row; the last piece ends with a line end): one header
+ * row, then one row per station, shaft by shaft, z ascending. Numbers in the
+ * system's display units (`stationCsvHeader`); the shear column is the largest
+ * |τ| over all the layers of the section, on whichever side of the station it
+ * is larger.
  */
 export function writeStationCsv(cols: StationColumns, system: UnitSystem, sink: (text: string) => void, pieceChars = 1 << 20): void {
   const u = DISPLAY_UNITS[system];
@@ -351,18 +359,11 @@ export function writeStationCsv(cols: StationColumns, system: UnitSystem, sink: 
     const id = csvField(cols.shafts[s]) + ',';
     const end = start[s + 1];
     for (let d = start[s]; d < end; d++) {
-      out +=
-        id +
-        csvNumber(z[d] / zf) +
-        ',' +
-        csvNumber(rotation[d] / af) +
-        ',' +
-        csvNumber(torqueLeft[d] / tf) +
-        ',' +
-        csvNumber(torqueRight[d] / tf) +
-        ',' +
-        csvNumber(shear[d] / sf) +
-        '\n';
+      const tl = torqueLeft[d];
+      const tr = torqueRight[d];
+      const left = csvNumber(tl / tf);
+      const right = tr === tl ? left : csvNumber(tr / tf); // equal but at a point load: written once
+      out += id + csvNumber(z[d] / zf) + ',' + csvNumber(rotation[d] / af) + ',' + left + ',' + right + ',' + csvNumber(shear[d] / sf) + '\n';
       if (out.length >= pieceChars) {
         sink(out);
         out = '';

@@ -3,7 +3,7 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { runCli } from '../../server/cli.js';
+import { byteWriter, runCli } from '../../server/cli.js';
 import { solveModel } from '../../server/engine/index.js';
 import { STATION_CSV_HEADER, stationCsv } from '../../shared-types/present.js';
 
@@ -139,8 +139,30 @@ describe('shaftnet solve', () => {
   });
 });
 
+describe('writing to stdout', () => {
+  it('packs text into fresh buffers of the given size, the text unchanged', () => {
+    const chunks: Buffer[] = [];
+    const w = byteWriter((b) => chunks.push(b), 64);
+    const parts = ['shaft,z\n', 'ä,1\n'.repeat(7), 'x'.repeat(100), 'τ\n', ''];
+    for (const p of parts) w.write(p);
+    w.end();
+    // Joined only after every write: a buffer handed over and then written into again would show here.
+    expect(Buffer.concat(chunks).toString('utf8')).toBe(parts.join(''));
+    expect(chunks.length).toBeGreaterThan(2);
+    for (const c of chunks) expect(c.length).toBeGreaterThan(0);
+  });
+});
+
 describe('the installed command', () => {
   const bin = new URL('../../dist/server/cli.js', import.meta.url).pathname;
+  it('is one bundled file: it imports no module of its own but the server for serve', () => {
+    const text = readFileSync(bin, 'utf8');
+    expect(text.startsWith('#!/usr/bin/env node')).toBe(true);
+    const imports = [...text.matchAll(/(?:^|\n)import\s[^;]*?from\s*["']([^"']+)["']|import\(\s*["']([^"']+)["']\s*\)/g)].map((m) => m[1] ?? m[2]);
+    for (const spec of imports) expect(spec === './main.js' || spec.startsWith('node:'), spec).toBe(true);
+    expect(imports).toContain('./main.js');
+  });
+
   it('runs from dist with the exit codes of the contract', () => {
     expect(existsSync(bin), 'dist/server/cli.js: run npm run build').toBe(true);
     const ok = execFileSync(process.execPath, [bin, 'demo', '--json'], { encoding: 'utf8' });
