@@ -14,6 +14,7 @@ import { describe, expect, it } from 'vitest';
 import {
   CAUTIONS,
   CSV_DIGITS,
+  csvNumber,
   DISPLAY_UNITS,
   type FieldKind,
   LBF,
@@ -263,6 +264,21 @@ describe('the station CSV', () => {
     const expected = Math.max((G1 * r1 * T) / GJ, (G2 * r2 * T) / GJ);
     const cols = stationColumns(solveModel(model));
     expect(rel(cols.shear[0], expected)).toBeLessThan(1e-12);
+  });
+
+  it('writes each number as String(Number(x.toPrecision(CSV_DIGITS))) would, on seeded values of every size', () => {
+    let seed = 12345;
+    const next = () => ((seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32);
+    for (let i = 0; i < 20000; i++) {
+      const x = (next() - 0.5) * 10 ** Math.floor(next() * 40 - 20);
+      expect(csvNumber(x), String(x)).toBe(String(Number(x.toPrecision(CSV_DIGITS))));
+    }
+    for (const x of [1, -1, 100, 1234567890, 12345678901, 1e-6, 1.5e-7, 0.1 + 0.2, -0.000001, 1e21, 9999999999.5]) {
+      expect(csvNumber(x), String(x)).toBe(String(Number(x.toPrecision(CSV_DIGITS))));
+    }
+    expect(csvNumber(0)).toBe('0');
+    expect(csvNumber(-0)).toBe('0');
+    expect(csvNumber(Number.NaN)).toBe('');
   });
 
   it('comes out the same in one piece or in many', () => {
