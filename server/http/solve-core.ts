@@ -53,8 +53,7 @@ function jsonError(message: string): HttpError {
 export function checkModelShape(value: unknown, prefix = ''): void {
   const issues = modelSchemaIssues(value, prefix);
   if (issues.length === 0) return;
-  const code = issues.some((i) => i.code === 'SN_FORMAT') ? 'SN_FORMAT' : 'SN_SCHEMA';
-  throw new HttpError(code, `${issues[0].pointer || '(model)'}: ${issues[0].message}`, issues);
+  throw new HttpError(issues[0].code, `${issues[0].pointer || '(model)'}: ${issues[0].message}`, issues);
 }
 
 /** The model's size by the engine's upper bound; throws 413 SN_TOO_LARGE over a limit. */

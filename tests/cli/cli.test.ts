@@ -4,6 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { byteWriter, runCli } from '../../server/cli.js';
+import { formatReport } from '../../server/report.js';
 import { solveModel } from '../../server/engine/index.js';
 import { STATION_CSV_HEADER, stationCsv } from '../../shared-types/present.js';
 
@@ -90,6 +91,42 @@ describe('shaftnet solve', () => {
       expect(Math.abs(shown - reaction.torque / lbfIn)).toBeLessThanOrEqual(Math.abs(reaction.torque / lbfIn) * 5e-4 + 1e-9);
     }
     for (const text of [si.out, us.out]) expect(text).toContain('qualified engineer');
+  });
+
+  it('tables give each segment GJ, and J and k = GJ/L once the solution carries them', () => {
+    // Solid 40 mm shaft, G = 80 GPa, segments of 0.25 m: J = π d⁴ / 32, GJ, k = GJ / L (Saint-Venant torsion).
+    const model = {
+      format: 'shaftnet/1',
+      name: 'Cantilever (invented)',
+      materials: [{ id: 's', G: 80e9 }],
+      sections: [{ id: 'd40', shape: 'solid', d: 0.04 }],
+      shafts: [{ id: 'bar', segments: Array.from({ length: 4 }, () => ({ length: 0.25, section: 'd40', material: 's' })) }],
+      supports: [{ id: 'A', shaft: 'bar', at: 0, kind: 'fixed' }],
+      torques: [{ id: 'T', shaft: 'bar', at: 1, torque: 100 }],
+    };
+    const J = (Math.PI * 0.04 ** 4) / 32;
+    const GJ = 80e9 * J;
+    const s = solveModel(model);
+    const row = (text: string) => text.split('\n').find((l) => l.startsWith('bar[2] '))!.trim().split(/\s+/);
+    const before = formatReport(model, s, 'si');
+    expect(before).toContain('GJ [N*m2]');
+    expect(before).not.toContain('J [mm4]');
+    expect(Number(row(before.slice(before.indexOf('Segment stiffness')))[2])).toBe(Number(GJ.toPrecision(4)));
+    const later = structuredClone(s);
+    for (const seg of later.shafts[0].segments) Object.assign(seg, { torsionConstant: J, stiffness: GJ / 0.25 });
+    const si = formatReport(model, later, 'si');
+    const table = si.slice(si.indexOf('Segment stiffness'));
+    expect(table).toContain('J [mm4]');
+    expect(table).toContain('k [N*m/rad]');
+    expect(row(table).slice(2).map(Number)).toEqual([J * 1e12, GJ, GJ / 0.25].map((v) => Number(v.toPrecision(4))));
+    // US: 1 in = 0.0254 m and 1 lbf = 0.45359237 kg × 9.80665 m/s², exactly.
+    const us = formatReport(model, later, 'us');
+    const usTable = us.slice(us.indexOf('Segment stiffness'));
+    const lbf = 0.45359237 * 9.80665;
+    expect(usTable).toContain('J [in4]');
+    expect(row(usTable).slice(2).map(Number)).toEqual(
+      [J / 0.0254 ** 4, GJ / (lbf * 0.0254 ** 2), GJ / 0.25 / (lbf * 0.0254)].map((v) => Number(v.toPrecision(4))),
+    );
   });
 
   it('--csv prints the station table of the presentation module, one row per station', async () => {

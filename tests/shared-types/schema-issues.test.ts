@@ -105,10 +105,11 @@ describe.each(CASES)('%s', (_what, text, expected) => {
     for (const issue of expected) expect(lines.join('\n')).toContain(`: ${typeof issue.message === 'string' ? issue.message : ''}`);
   });
 
-  it('POST /api/solve answers the same issues', async () => {
+  it('POST /api/solve answers the same issues, under the code of the first', async () => {
     const r = await inject('POST', '/api/solve', text);
     expect(r.statusCode).toBe(400);
     expect(errorOf(r.body).error.issues).toEqual(engineIssues(text));
+    expect(errorOf(r.body).error.code).toBe(engineIssues(text)[0].code);
   });
 
   it('a save and an import answer the same issues, at the model in the body', async () => {
@@ -129,6 +130,7 @@ describe.each(CASES)('%s', (_what, text, expected) => {
     }
     expect(thrown).toBeInstanceOf(HttpError);
     expect((thrown as HttpError).issues).toEqual(prefixed(engineIssues(text), '/model'));
+    expect((thrown as HttpError).code).toBe(engineIssues(text)[0].code);
   });
 });
 
