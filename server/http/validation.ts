@@ -38,20 +38,10 @@ export class DeferredBody {
   constructor(readonly bytes: Buffer) {}
 }
 
-/** True for the model schema, with or without its $id (routes embed it without). */
+/** True for the model schema, with or without its $id (routes embed it without): it holds the model's own properties. */
 function isModelSchema(schema: unknown): boolean {
   if (schema === Model) return true;
-  if (schema === null || typeof schema !== 'object') return false;
-  const { $id: _id, ...rest } = schema as Record<string, unknown>;
-  void _id;
-  const { $id: _mid, ...model } = Model as unknown as Record<string, unknown>;
-  void _mid;
-  return (schema as { properties?: unknown }).properties === (Model as { properties?: unknown }).properties && sameKeys(rest, model);
-}
-
-function sameKeys(a: Record<string, unknown>, b: Record<string, unknown>): boolean {
-  const ka = Object.keys(a);
-  return ka.length === Object.keys(b).length && ka.every((k) => a[k] === b[k]);
+  return schema !== null && typeof schema === 'object' && (schema as { properties?: unknown }).properties === (Model as { properties?: unknown }).properties;
 }
 
 /** A body's check: an envelope validator, and the fields that hold a model. */
