@@ -9,22 +9,22 @@
  * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
  * message names the field or the shafts), 1 anything else.
  */
-import { readFileSync } from 'node:fs';
+import { readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 import { ModelError } from '../shared-types/errors.js';
-import type { Solution } from '../shared-types/solution.js';
-import { solveModel, solveModelJson } from './engine/index.js';
-import { formatReport, stationCsv, type UnitSystem } from './report.js';
+import { UNIT_SYSTEMS, isUnitSystem, writeStationCsv, type UnitSystem } from '../shared-types/present.js';
+import { normaliseModel, solveModel, solveModelJson, withSolved } from './engine/index.js';
+import { formatIssue, formatReport, solvedStationColumns } from './report.js';
 
 const USAGE = `usage:
   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense]
   shaftnet demo [--units si|us] [--json | --csv]
   shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
 
-  --units si|us   tables in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
+  --units si|us   tables and CSV in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
   --json          print the solution object (SI units, compact JSON) instead of tables
-  --csv           print the station table (SI units) as CSV
+  --csv           print the station table as CSV (units named in its header)
   --dense         solve with the dense reference solver (small models only)`;
 
 /** Where the shipped demo models live, from src or from dist. */
@@ -53,13 +53,9 @@ function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
   const out: SolveArgs = { file: null, units: 'si', output: 'tables', dense: false };
   for (let k = 0; k < args.length; k++) {
     const a = args[k];
-    if (a === '--units') {
-      const v = args[++k];
-      if (v !== 'si' && v !== 'us') throw new UsageError(`--units takes si or us, not ${v ?? 'nothing'}`);
-      out.units = v;
-    } else if (a.startsWith('--units=')) {
-      const v = a.slice(8);
-      if (v !== 'si' && v !== 'us') throw new UsageError(`--units takes si or us, not ${v}`);
+    if (a === '--units' || a.startsWith('--units=')) {
+      const v = a === '--units' ? args[++k] : a.slice(8);
+      if (!isUnitSystem(v)) throw new UsageError(`--units takes ${UNIT_SYSTEMS.join(' or ')}, not ${v ?? 'nothing'}`);
       out.units = v;
     } else if (a === '--json') out.output = 'json';
     else if (a === '--csv') out.output = 'csv';
@@ -74,14 +70,15 @@ function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
 
 class UsageError extends Error {}
 
-/** Runs the command line; answers the exit status. Output goes through the two writers. */
 /**
- * Runs the command line. `out` and `err` take whole lines; `write`, when
- * given, takes raw text for the JSON of --json, which is written in pieces
- * (a million-station answer is longer than one string can be).
+ * Runs the command line; answers the exit status. `out` and `err` take whole
+ * lines; `write`, when given, takes the raw text of --json and --csv, which
+ * are written in pieces (a million-station answer is longer than one string
+ * can be); without it that text goes to `out` in one piece.
  */
 export async function runCli(argv: string[], out: (s: string) => void, err: (s: string) => void, write?: (text: string) => void): Promise<number> {
   const [command, ...rest] = argv;
+  let model: unknown;
   try {
     if (command === 'serve') {
       const { serveFromArgs } = await import('./main.js');
@@ -101,7 +98,6 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       err(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? String(e)}`);
       return 1;
     }
-    let model: unknown;
     try {
       model = JSON.parse(text);
     } catch (e) {
@@ -109,21 +105,25 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       return 2;
     }
     const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const) };
-    if (args.output === 'json') {
-      // The engine writes the JSON itself: the same text as JSON.stringify of the solution object.
-      if (write) {
-        solveModelJson(model, write, options);
-        write('\n');
-      } else {
-        let text = '';
-        solveModelJson(model, (piece) => (text += piece), options, Infinity);
-        out(text);
-      }
+    if (args.output === 'tables') {
+      out(formatReport(model as { name?: string }, solveModel(model, options), args.units));
       return 0;
     }
-    const solution: Solution = solveModel(model, options);
-    if (args.output === 'csv') out(stationCsv(solution));
-    else out(formatReport(model as { name?: string }, solution, args.units));
+    // JSON and CSV are written from the solve's columns, in pieces: no object per station, and a
+    // million-station answer is longer than one string can be.
+    let collected = '';
+    const pieces = write ?? ((piece: string) => void (collected += piece));
+    // Small pieces: a writer that packs them into bytes (see `byteWriter`) never holds a long string.
+    const pieceChars = write ? 1 << 16 : Infinity;
+    if (args.output === 'json') {
+      // The engine writes the JSON itself: the same text as JSON.stringify of the solution object.
+      solveModelJson(model, pieces, options, pieceChars);
+      pieces('\n');
+    } else {
+      const resolved = normaliseModel(model);
+      withSolved(resolved, options, (solved) => writeStationCsv(solvedStationColumns(solved), args.units, pieces, write ? 0 : Infinity));
+    }
+    if (!write) out(collected.endsWith('\n') ? collected.slice(0, -1) : collected);
     return 0;
   } catch (e) {
     if (e instanceof UsageError) {
@@ -131,10 +131,7 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       return 1;
     }
     if (e instanceof ModelError) {
-      for (const issue of e.issues) {
-        const extra = issue.shafts ? ` [shafts: ${issue.shafts.join(', ')}]` : '';
-        err(`${issue.code} ${issue.pointer || '(model)'}: ${issue.message}${extra}`);
-      }
+      for (const issue of e.issues) err(formatIssue(issue, model));
       return 2;
     }
     err(`error: ${(e as Error).message}`);
@@ -142,14 +139,45 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
   }
 }
 
-const isMain = process.argv[1] !== undefined && fileURLToPath(import.meta.url) === (await import('node:fs')).realpathSync(process.argv[1]);
+/**
+ * A writer that packs text into byte buffers of `size` and hands each full one
+ * to `emit` (`end` hands over the rest). Text written row by row goes into
+ * bytes at once, so no long string is built, joined and encoded again; each
+ * buffer is new, so `emit` may keep it.
+ */
+export function byteWriter(emit: (bytes: Buffer) => void, size = 1 << 20): { write(text: string): void; end(): void } {
+  let buf = Buffer.allocUnsafe(size);
+  let used = 0;
+  const flush = () => {
+    if (used > 0) emit(buf.subarray(0, used));
+    buf = Buffer.allocUnsafe(size);
+    used = 0;
+  };
+  return {
+    write(text: string) {
+      if (used + 3 * text.length > size) {
+        flush();
+        if (3 * text.length > size) {
+          emit(Buffer.from(text, 'utf8'));
+          return;
+        }
+      }
+      used += buf.write(text, used, 'utf8');
+    },
+    end: flush,
+  };
+}
+
+const isMain = process.argv[1] !== undefined && fileURLToPath(import.meta.url) === realpathSync(process.argv[1]);
 if (isMain) {
+  const stdout = byteWriter((bytes) => process.stdout.write(bytes));
   const code = await runCli(
     process.argv.slice(2),
     (s) => process.stdout.write(s.endsWith('\n') ? s : s + '\n'),
     (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n'),
-    (text) => process.stdout.write(text),
+    stdout.write,
   );
+  stdout.end();
   // `serve` keeps running; everything else ends with its status.
   if (process.argv[2] !== 'serve' || code !== 0) process.exitCode = code;
 }

@@ -1,40 +1,26 @@
 /**
- * Plain-text report and CSV station table of a solution, for the command line.
- * Pure: strings in, strings out.
+ * What the command line prints: the text tables of a solution, an issue as a
+ * line, and the station columns of a finished solve for the CSV. Units, number
+ * formatting, the CSV itself and the cautions are the presentation module's
+ * (shared-types/present.ts), shared with the browser client.
+ * Pure: values in, strings out.
  */
-import type { Solution } from '../shared-types/solution.js';
-import { fromSI } from '../shared-types/quantity.js';
+import type { ModelIssue } from '../shared-types/errors.js';
+import type { SegmentResult, Solution } from '../shared-types/solution.js';
+import {
+  CAUTIONS,
+  DISPLAY_UNITS,
+  type FieldKind,
+  type StationColumns,
+  type UnitSystem,
+  formatNumber,
+  readablePointer,
+  toDisplay,
+} from '../shared-types/present.js';
+import type { Solved } from './engine/index.js';
 
-export type UnitSystem = 'si' | 'us';
-
-interface Display {
-  readonly length: string;
-  readonly torque: string;
-  readonly stress: string;
-  readonly force: string;
-  readonly twistRate: string;
-}
-
-const DISPLAY: Record<UnitSystem, Display> = {
-  si: { length: 'mm', torque: 'N*m', stress: 'MPa', force: 'N', twistRate: 'deg/m' },
-  us: { length: 'in', torque: 'lbf*in', stress: 'ksi', force: 'lbf', twistRate: 'deg/ft' },
-};
-
-const LBF = 0.45359237 * 9.80665; // N, exact by definition
-
-/** The cautions every report carries. */
-export const CAUTIONS = [
-  'Linear-elastic Saint-Venant torsion of circular sections: no yielding, warping or buckling.',
-  'No stress concentration (keyways, shoulders, press fits) or fatigue unless you modelled it.',
-  'Results must be checked by a qualified engineer against the codes and standards that apply locally.',
-];
-
-function num(v: number, digits = 4): string {
-  if (v === 0) return '0';
-  const a = Math.abs(v);
-  if (a >= 1e6 || a < 1e-3) return v.toExponential(digits - 1);
-  return v.toPrecision(digits).replace(/(\.\d*?)0+$/, '$1').replace(/\.$/, '');
-}
+/** Segment fields that newer engines add (read with `?.` so the table works before they land). */
+type SegmentExtras = SegmentResult & { readonly torsionConstant?: number; readonly stiffness?: number };
 
 function table(head: string[], rows: string[][]): string {
   const widths = head.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
@@ -42,20 +28,20 @@ function table(head: string[], rows: string[][]): string {
   return [line(head), widths.map((w) => '-'.repeat(w)).join('  '), ...rows.map(line)].join('\n');
 }
 
-/** Readable tables: reactions, connections, per-segment peaks, checks, warnings, cautions. */
+/** Readable tables: reactions, connections, per-segment peaks and stiffness, checks, warnings, cautions. */
 export function formatReport(model: { name?: string }, s: Solution, units: UnitSystem): string {
-  const u = DISPLAY[units];
-  const L = (m: number) => num(fromSI(m, u.length));
-  const T = (nm: number) => num(fromSI(nm, u.torque));
-  const S = (pa: number) => num(fromSI(pa, u.stress));
-  const F = (n: number) => num(units === 'us' ? n / LBF : n);
-  const deg = (rad: number) => num((rad * 180) / Math.PI);
+  const u = DISPLAY_UNITS[units];
+  const show = (si: number, kind: FieldKind, sig = 4) => formatNumber(toDisplay(si, kind, units), sig);
+  const L = (m: number) => show(m, 'length');
+  const T = (nm: number) => show(nm, 'torque');
+  const S = (pa: number) => show(pa, 'stress');
+  const deg = (rad: number) => show(rad, 'angle');
   const out: string[] = [];
   out.push(`${s.name || model.name || 'model'}  (${s.stats.stations} stations, ${s.stats.unknowns} unknowns)`, '');
   out.push('Reactions (torque the support puts on the shaft)');
   out.push(
     table(
-      ['support', 'shaft', 'kind', `torque [${u.torque}]`, 'rotation [deg]'],
+      ['support', 'shaft', 'kind', `torque [${u.torque}]`, `rotation [${u.angle}]`],
       s.reactions.map((r) => [r.support, r.shaft, r.kind, T(r.torque), deg(r.rotation)]),
     ),
     '',
@@ -65,7 +51,7 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
     out.push(
       table(
         ['mesh', `force [${u.force}]`, `torque on a [${u.torque}]`, `torque on b [${u.torque}]`],
-        s.gearMeshes.map((g) => [g.gearMesh, F(g.force), T(g.torqueA), T(g.torqueB)]),
+        s.gearMeshes.map((g) => [g.gearMesh, show(g.force, 'force'), T(g.torqueA), T(g.torqueB)]),
       ),
       '',
     );
@@ -74,7 +60,7 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
     out.push('Couplings');
     out.push(
       table(
-        ['coupling', `torque on a [${u.torque}]`, `torque on b [${u.torque}]`, 'twist [deg]'],
+        ['coupling', `torque on a [${u.torque}]`, `torque on b [${u.torque}]`, `twist [${u.angle}]`],
         s.couplings.map((c) => [c.coupling, T(c.torqueA), T(c.torqueB), deg(c.twist)]),
       ),
       '',
@@ -93,8 +79,8 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
           l.material,
           S(l.maxShear),
           l.allowableShear === null ? '-' : S(l.allowableShear),
-          l.utilisation === null ? '-' : num(l.utilisation, 3),
-          k === 0 ? num(fromSI(seg.maxTwistRate, u.twistRate)) : '',
+          l.utilisation === null ? '-' : formatNumber(l.utilisation, 3),
+          k === 0 ? show(seg.maxTwistRate, 'twistRate') : '',
           k === 0 ? deg(seg.twist) : '',
         ]);
       });
@@ -112,42 +98,119 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
         `allowable [${u.stress}]`,
         'util.',
         `twist rate [${u.twistRate}]`,
-        'twist [deg]',
+        `twist [${u.angle}]`,
       ],
       rows,
     ),
     '',
   );
+  out.push(stiffnessTable(s, units), '');
   out.push('Total twist per shaft (max rotation - min rotation)');
-  out.push(table(['shaft', 'twist [deg]'], s.shafts.map((sh) => [sh.id, deg(sh.totalTwist)])), '');
+  out.push(table(['shaft', `twist [${u.angle}]`], s.shafts.map((sh) => [sh.id, deg(sh.totalTwist)])), '');
   if (s.checks.length > 0) {
     out.push('Checks, worst first');
     out.push(
       table(
-        ['check', 'where', 'utilisation', 'result'],
-        s.checks.map((c) => [
-          c.kind,
-          `${c.shaft}${c.segment === undefined ? '' : `[${c.segment}]`}${c.material ? ` ${c.material}` : ''}`,
-          num(c.utilisation, 3),
-          c.pass ? 'ok' : 'EXCEEDS',
-        ]),
+        ['check', 'where', 'value', 'limit', 'utilisation', 'result'],
+        s.checks.map((c) => {
+          const kind: FieldKind = c.kind === 'shear' ? 'stress' : c.kind === 'twistRate' ? 'twistRate' : 'angle';
+          return [
+            c.kind,
+            `${c.shaft}${c.segment === undefined ? '' : `[${c.segment}]`}${c.material ? ` ${c.material}` : ''}`,
+            `${show(c.value, kind)} ${u[kind]}`,
+            `${show(c.limit, kind)} ${u[kind]}`,
+            formatNumber(c.utilisation, 3),
+            c.pass ? 'ok' : 'EXCEEDS',
+          ];
+        }),
       ),
       '',
     );
   }
-  out.push(`Equilibrium: largest |sum of torques| on a shaft = ${num(s.equilibrium.maxResidual, 2)} N*m`);
+  out.push(`Equilibrium: largest |sum of torques| on a shaft = ${formatNumber(s.equilibrium.maxResidual, 2)} N*m`);
   for (const w of s.warnings) out.push(`warning ${w.code}: ${w.message}`);
   out.push('', ...CAUTIONS.map((c) => `Caution: ${c}`));
   return out.join('\n');
 }
 
-/** Station table as CSV, SI units. */
-export function stationCsv(s: Solution): string {
-  const lines = ['shaft,z_m,rotation_rad,torque_left_Nm,torque_right_Nm'];
-  for (const sh of s.shafts) {
-    for (const st of sh.stations) {
-      lines.push([sh.id, st.z, st.rotation, st.torqueLeft ?? '', st.torqueRight ?? ''].join(','));
+/**
+ * Per segment: torsion constant J (when the solution carries it), torsional
+ * rigidity Σ G·J and stiffness G·J/L (when carried).
+ */
+function stiffnessTable(s: Solution, units: UnitSystem): string {
+  const u = DISPLAY_UNITS[units];
+  const segments = s.shafts.flatMap((sh) => sh.segments.map((seg) => ({ shaft: sh.id, seg: seg as SegmentExtras })));
+  const hasJ = segments.some(({ seg }) => seg.torsionConstant !== undefined);
+  const hasK = segments.some(({ seg }) => seg.stiffness !== undefined);
+  const value = (si: number | undefined, kind: FieldKind) => (si === undefined ? '-' : formatNumber(toDisplay(si, kind, units), 4));
+  const head = ['segment', `section`];
+  if (hasJ) head.push(`J [${u.torsionConstant}]`);
+  head.push(`GJ [${u.torsionalRigidity}]`);
+  if (hasK) head.push(`k [${u.torsionalStiffness}]`);
+  const rows = segments.map(({ shaft, seg }) => {
+    const row = [`${shaft}[${seg.index}]`, seg.section];
+    if (hasJ) row.push(value(seg.torsionConstant, 'torsionConstant'));
+    row.push(value(seg.torsionalRigidity, 'torsionalRigidity'));
+    if (hasK) row.push(value(seg.stiffness, 'torsionalStiffness'));
+    return row;
+  });
+  return `Segment stiffness${hasJ ? ' (J: torsion constant of the section' + (hasK ? '; k = GJ/L' : '') + ')' : hasK ? ' (k = GJ/L)' : ''}\n${table(head, rows)}`;
+}
+
+/**
+ * One issue as the command line prints it: code, pointer, the readable path
+ * when the model is at hand, the message, and the shafts or connections named.
+ */
+export function formatIssue(issue: ModelIssue, model?: unknown): string {
+  const where = issue.pointer === '' ? '(model)' : `${issue.pointer} (${readablePointer(model, issue.pointer)})`;
+  const shafts = issue.shafts ? ` [shafts: ${issue.shafts.join(', ')}]` : '';
+  const connections = issue.connections ? ` [connections: ${issue.connections.join(', ')}]` : '';
+  return `${issue.code} ${where}: ${issue.message}${shafts}${connections}`;
+}
+
+/**
+ * The station columns of a finished solve, read from the engine's columns
+ * without an object per station. Valid only inside `withSolved`'s callback,
+ * like the columns themselves. The shear at a station is |T| times the
+ * section's shear factor (largest G·r_outer / ΣGJ over its layers) of the
+ * element on each side, the larger of the two.
+ */
+export function solvedStationColumns(sv: Solved): StationColumns {
+  const { model, layout, rec } = sv;
+  const { z, shaftStart, elemSegment } = layout;
+  const { phi, TL, TR } = rec;
+  const n = layout.dofCount;
+  const torqueLeft = new Float64Array(n);
+  const torqueRight = new Float64Array(n);
+  const shear = new Float64Array(n);
+  for (let s = 0; s < model.shafts.length; s++) {
+    const segments = model.shafts[s].segments;
+    const first = shaftStart[s];
+    const last = shaftStart[s + 1] - 1;
+    let leftShear = 0;
+    for (let d = first; d <= last; d++) {
+      let tl = Number.NaN;
+      let tr = Number.NaN;
+      let rightShear = 0;
+      if (d > first) tl = TR[d - 1 - s];
+      if (d < last) {
+        const e = d - s; // elements are numbered like stations, one fewer per shaft
+        tr = TL[e];
+        rightShear = Math.abs(tr) * segments[elemSegment[e]].shearFactor;
+      }
+      torqueLeft[d] = tl;
+      torqueRight[d] = tr;
+      shear[d] = Math.max(leftShear, rightShear);
+      leftShear = d < last ? Math.abs(TR[d - s]) * segments[elemSegment[d - s]].shearFactor : 0;
     }
   }
-  return lines.join('\n');
+  return {
+    shafts: model.shafts.map((sh) => sh.id),
+    start: shaftStart,
+    z,
+    rotation: phi,
+    torqueLeft,
+    torqueRight,
+    shear,
+  };
 }

@@ -36,9 +36,9 @@ export interface UnitDef {
 }
 
 // Exact definitions: 1 in = 0.0254 m, 1 lbf = 0.45359237 kg × 9.80665 m/s².
-const IN = 0.0254; // m
+export const IN = 0.0254; // m
 const FT = 0.3048; // m
-const LBF = 0.45359237 * 9.80665; // N
+export const LBF = 0.45359237 * 9.80665; // N
 const LB = 0.45359237; // kg
 const PSI = LBF / (IN * IN); // Pa
 const DEG = Math.PI / 180; // rad

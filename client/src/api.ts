@@ -1,18 +1,31 @@
 /**
- * The HTTP API, typed with the shared types. Every 4xx/5xx becomes an
- * `ApiError` carrying the server's code, message, issues (with JSON pointers)
- * and, for a 409, the current revision.
+ * The HTTP API, typed with the shared types (the library's answers from
+ * shared-types/library.ts). Every 4xx/5xx becomes an `ApiError` carrying the
+ * server's code, message, issues (with JSON pointers) and, for a 409, the
+ * current revision.
+ *
+ * Every unsafe request (POST, PUT, PATCH, DELETE) is sent as JSON with
+ * `Content-Type: application/json`, with `{}` where it has nothing to say: the
+ * server refuses a state change in any other form (a cross-site form cannot
+ * send one).
  */
 import type { Model } from '../../shared-types/model.js';
 import type { Solution } from '../../shared-types/solution.js';
 import type { ErrorBody, ModelIssue } from '../../shared-types/errors.js';
+import type {
+  ArchiveState,
+  DemoInfo,
+  DemoList,
+  ModelList,
+  ModelSummary,
+  RevisionInfo,
+  RevisionList,
+  Saved,
+  SessionInfo,
+  StoredModel,
+} from '../../shared-types/library.js';
 
-export interface ModelSummary { id: string; name: string; author: string; updated: string; revision: number; archived: boolean }
-export interface StoredModel { id: string; revision: number; model: Model; author: string; message: string; created: string; archived: boolean }
-export interface RevisionInfo { revision: number; author: string; message: string; created: string }
-export interface DemoInfo { id: string; name: string; notes: string }
-export interface SessionInfo { tokenRequired: boolean; signedIn: boolean }
-export interface Saved { id: string; revision: number }
+export type { ArchiveState, DemoInfo, ModelSummary, RevisionInfo, Saved, SessionInfo, StoredModel };
 
 /** An error answer of the API, or a network failure (status 0). */
 export class ApiError extends Error {
@@ -36,16 +49,24 @@ export function isAbort(e: unknown): boolean {
   return e instanceof DOMException && e.name === 'AbortError';
 }
 
-async function call<T>(method: string, path: string, body?: unknown, signal?: AbortSignal): Promise<T> {
+type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+
+/** The fetch options of a request: JSON in and out; an unsafe method always carries a JSON body. */
+export function requestInit(method: Method, body?: unknown, signal?: AbortSignal): RequestInit {
+  if (method === 'GET') return { method, headers: { accept: 'application/json' }, credentials: 'same-origin', signal };
+  return {
+    method,
+    headers: { 'content-type': 'application/json', accept: 'application/json' },
+    body: JSON.stringify(body === undefined ? {} : body),
+    credentials: 'same-origin',
+    signal,
+  };
+}
+
+async function call<T>(method: Method, path: string, body?: unknown, signal?: AbortSignal): Promise<T> {
   let res: Response;
   try {
-    res = await fetch(path, {
-      method,
-      headers: body === undefined ? { accept: 'application/json' } : { 'content-type': 'application/json', accept: 'application/json' },
-      body: body === undefined ? undefined : JSON.stringify(body),
-      credentials: 'same-origin',
-      signal,
-    });
+    res = await fetch(path, requestInit(method, body, signal));
   } catch (e) {
     if (isAbort(e)) throw e;
     throw new ApiError(0, 'SN_NETWORK', 'The server cannot be reached.');
@@ -74,20 +95,21 @@ export const api = {
   health: () => call<unknown>('GET', '/api/health'),
   solve: (model: Model, signal?: AbortSignal) => call<Solution>('POST', '/api/solve', model, signal),
   listModels: (q = '', archived = false) =>
-    call<{ models: ModelSummary[] }>('GET', `/api/models?q=${enc(q)}&archived=${archived ? 'true' : 'false'}`),
+    call<ModelList>('GET', `/api/models?q=${enc(q)}&archived=${archived ? 'true' : 'false'}`),
   getModel: (id: string) => call<StoredModel>('GET', `/api/models/${enc(id)}`),
   getRevision: (id: string, rev: number) => call<StoredModel>('GET', `/api/models/${enc(id)}/revisions/${rev}`),
-  revisions: (id: string) => call<{ revisions: RevisionInfo[] }>('GET', `/api/models/${enc(id)}/revisions`),
+  revisions: (id: string) => call<RevisionList>('GET', `/api/models/${enc(id)}/revisions`),
   create: (model: Model, author: string, message: string) => call<Saved>('POST', '/api/models', { model, author, message }),
   update: (id: string, model: Model, baseRevision: number, author: string, message: string) =>
     call<Saved>('PUT', `/api/models/${enc(id)}`, { model, baseRevision, author, message }),
-  archive: (id: string) => call<unknown>('POST', `/api/models/${enc(id)}/archive`),
-  restore: (id: string) => call<unknown>('POST', `/api/models/${enc(id)}/restore`),
+  archive: (id: string) => call<ArchiveState>('POST', `/api/models/${enc(id)}/archive`),
+  restore: (id: string) => call<ArchiveState>('POST', `/api/models/${enc(id)}/restore`),
   exportUrl: (id: string) => `/api/models/${enc(id)}/export`,
   importModel: (model: unknown, author: string, message: string) =>
     call<Saved>('POST', `/api/models/import?author=${enc(author)}&message=${enc(message)}`, model),
-  demos: () => call<{ demos: DemoInfo[] }>('GET', '/api/demos'),
+  demos: () => call<DemoList>('GET', '/api/demos'),
   demo: (id: string) => call<Model>('GET', `/api/demos/${enc(id)}`),
   session: () => call<SessionInfo>('GET', '/api/session'),
-  signIn: (token: string) => call<unknown>('POST', '/api/session', { token }),
+  signIn: (token: string) => call<SessionInfo>('POST', '/api/session', { token }),
+  signOut: () => call<SessionInfo>('DELETE', '/api/session'),
 };

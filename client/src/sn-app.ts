@@ -14,8 +14,8 @@ import {
   rowFor,
   sameJson,
 } from './store.js';
-import { download, fileName, stationsCsv } from './export.js';
-import { type UnitSystem, prettyUnit, displayUnit } from './units.js';
+import { download, fileName, stationCsv } from './export.js';
+import { type UnitSystem, UNIT_SYSTEMS, UNIT_SYSTEM_LABELS, prettyUnit, displayUnit } from './units.js';
 import type { EditDetail, RowDetail, SelectDetail } from './sn-table.js';
 import type { ResultState } from './sn-results.js';
 import type { OpenDetail } from './sn-library.js';
@@ -171,7 +171,7 @@ export class SnApp extends LitElement {
   constructor() {
     super();
     this.model = null;
-    this.system = localStorage.getItem('shaftnet.units') === 'US' ? 'US' : 'SI';
+    this.system = localStorage.getItem('shaftnet.units')?.toLowerCase() === 'us' ? 'us' : 'si';
     this.solution = null;
     this.resultState = 'none';
     this.resultMessage = '';
@@ -266,8 +266,7 @@ export class SnApp extends LitElement {
       <button @click=${this.undo} ?disabled=${!this.canUndo} title="Undo (Ctrl+Z)">Undo</button>
       <button @click=${this.redo} ?disabled=${!this.canRedo} title="Redo (Ctrl+Shift+Z or Ctrl+Y)">Redo</button>
       <select aria-label="Units" @change=${this.onUnits}>
-        <option value="SI" ?selected=${this.system === 'SI'}>SI: mm, N·m, MPa</option>
-        <option value="US" ?selected=${this.system === 'US'}>US: in, lbf·in, ksi</option>
+        ${UNIT_SYSTEMS.map((u) => html`<option value=${u} ?selected=${this.system === u}>${UNIT_SYSTEM_LABELS[u]}</option>`)}
       </select>
       <span class="sep"></span>
       <button @click=${this.openLibrary} data-action="library">Library</button>
@@ -289,7 +288,7 @@ export class SnApp extends LitElement {
     return html`<div class="print-only report-head card">
       <h1>Shaftnet report — ${m.name}</h1>
       <div>${d.id ? `Library model ${d.id}, revision ${d.viewing ?? d.revision}` : 'Model not saved in the library'}${this.isDirty() ? ' (with unsaved changes)' : ''}.
-        Printed ${new Date().toLocaleString()}. Units: ${this.system === 'SI' ? 'SI' : 'US customary'}.
+        Printed ${new Date().toLocaleString()}. Units: ${this.system === 'si' ? 'SI' : 'US customary'}.
         Results ${this.resultState === 'fresh' ? 'match this model' : 'are OUT OF DATE for this model'}.</div>
       ${m.notes ? html`<p>${m.notes}</p>` : nothing}
       <table>
@@ -588,7 +587,7 @@ export class SnApp extends LitElement {
   };
 
   private onUnits = (e: Event): void => {
-    this.system = (e.target as HTMLSelectElement).value === 'US' ? 'US' : 'SI';
+    this.system = (e.target as HTMLSelectElement).value === 'us' ? 'us' : 'si';
     localStorage.setItem('shaftnet.units', this.system);
   };
 
@@ -778,7 +777,7 @@ export class SnApp extends LitElement {
   };
 
   private exportCsv = (): void => {
-    if (this.solution && this.model) download(stationsCsv(this.solution, this.system), fileName(this.model.name + '-stations', 'csv'), 'text/csv');
+    if (this.solution && this.model) download(stationCsv(this.solution, this.system), fileName(this.model.name + '-stations', 'csv'), 'text/csv');
   };
 
   private say(text: string): void {

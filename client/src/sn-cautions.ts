@@ -1,6 +1,7 @@
 import { LitElement, css, html } from 'lit';
+import { CAUTIONS } from '../../shared-types/present.js';
 
-/** What the results are and are not: shown under the results and in the printed report. */
+/** What the results are and are not (the one text of shared-types/present.ts): shown under the results and in the printed report. */
 export class SnCautions extends LitElement {
   static override styles = css`
     :host { display: block; }
@@ -14,9 +15,7 @@ export class SnCautions extends LitElement {
     return html`<aside class="cautions" aria-label="Cautions">
       <strong>Cautions.</strong>
       <ul>
-        <li>Linear-elastic Saint-Venant torsion of circular shafts: plane sections stay plane, no warping, no yielding, no buckling.</li>
-        <li>No stress concentration (shoulders, keyways, splines, holes) and no fatigue unless you modelled them, e.g. through a reduced allowable stress.</li>
-        <li>Results must be checked by a qualified engineer against the codes and standards that apply locally before any design decision.</li>
+        ${CAUTIONS.map((c) => html`<li>${c}</li>`)}
       </ul>
     </aside>`;
   }

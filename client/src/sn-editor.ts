@@ -51,7 +51,7 @@ export class SnEditor extends LitElement {
   constructor() {
     super();
     this.model = null;
-    this.system = 'SI';
+    this.system = 'si';
     this.errors = {};
     this.selected = '';
     this.flagged = [];

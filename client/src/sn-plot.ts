@@ -61,7 +61,7 @@ export class SnPlot extends LitElement {
     this.z = [];
     this.values = [];
     this.kind = 'torque';
-    this.system = 'SI';
+    this.system = 'si';
     this.label = '';
     this.color = '#2b6f8e';
     this.markIndex = -1;

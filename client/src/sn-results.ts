@@ -86,7 +86,7 @@ export class SnResults extends LitElement {
     super();
     this.solution = null;
     this.model = null;
-    this.system = 'SI';
+    this.system = 'si';
     this.state = 'none';
     this.message = '';
     this.selected = '';

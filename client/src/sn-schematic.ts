@@ -56,7 +56,7 @@ export class SnSchematic extends LitElement {
   constructor() {
     super();
     this.model = null;
-    this.system = 'SI';
+    this.system = 'si';
     this.selected = '';
     this.flaggedShafts = [];
   }

@@ -113,7 +113,7 @@ export class SnTable extends LitElement {
     this.rows = [];
     this.columns = [];
     this.pointer = '';
-    this.system = 'SI';
+    this.system = 'si';
     this.errors = {};
     this.selected = '';
     this.single = false;

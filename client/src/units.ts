@@ -1,127 +1,38 @@
 /**
- * Display unit systems of the client, built on the model format's unit
- * catalogue (shared-types/quantity.ts).
+ * The client's units: what an input's text means and what it shows. Display
+ * unit systems, conversions and number formatting are the presentation
+ * module's (shared-types/present.ts, shared with the command line), re-exported
+ * here; this file adds reading and writing the editor's inputs.
  *
- * Every input and output names a field kind; the chosen system maps it to one
- * display unit. An input typed as a plain number is read in that unit; an input
- * typed with its own unit ("2 in") is kept as typed, whatever the system.
+ * An input typed as a plain number is read in the system's display unit; an
+ * input typed with its own unit ("2 in") is kept as typed, whatever the system.
  */
-import {
-  type QuantityKind,
-  canonicalUnit,
-  fromSI,
-  isProblem,
-  readQuantity,
-  UNITS,
-} from '../../shared-types/quantity.js';
+import { type QuantityKind, isProblem, readQuantity } from '../../shared-types/quantity.js';
+import { type FieldKind, type UnitSystem, displayUnit, formatNumber, toDisplay } from '../../shared-types/present.js';
 
-/** The two systems a user may choose. */
-export type UnitSystem = 'SI' | 'US';
+export {
+  type FieldKind,
+  type UnitSystem,
+  DISPLAY_UNITS,
+  UNIT_SYSTEMS,
+  UNIT_SYSTEM_LABELS,
+  displayUnit,
+  formatNumber,
+  formatQuantity,
+  formatValue,
+  fromDisplay,
+  isUnitSystem,
+  prettyUnit,
+  toDisplay,
+} from '../../shared-types/present.js';
 
-/**
- * What a field holds. The quantity kinds of the format, plus `modulus` (a stress
- * shown in larger units) and `force` (an output only: the format has no force input).
- */
-export type FieldKind = QuantityKind | 'modulus' | 'force';
-
-/** Display unit of each field kind, per system (canonical symbols of the catalogue). */
-export const DISPLAY_UNITS: Readonly<Record<UnitSystem, Readonly<Record<FieldKind, string>>>> = {
-  SI: {
-    length: 'mm',
-    torque: 'N*m',
-    stress: 'MPa',
-    modulus: 'GPa',
-    angle: 'deg',
-    rotationalStiffness: 'kN*m/rad',
-    linearStiffness: 'N/mm',
-    torquePerLength: 'N*m/m',
-    twistRate: 'deg/m',
-    density: 'kg/m3',
-    massInertia: 'kg*m2',
-    power: 'kW',
-    angularSpeed: 'rpm',
-    force: 'N',
-  },
-  US: {
-    length: 'in',
-    torque: 'lbf*in',
-    stress: 'ksi',
-    modulus: 'Msi',
-    angle: 'deg',
-    rotationalStiffness: 'kip*in/rad',
-    linearStiffness: 'lbf/in',
-    torquePerLength: 'lbf*in/in',
-    twistRate: 'deg/ft',
-    density: 'lb/in3',
-    massInertia: 'lb*in2',
-    power: 'hp',
-    angularSpeed: 'rpm',
-    force: 'lbf',
-  },
-};
-
-// Force is not a quantity of the model format, so its units live here.
-// 1 lbf = 0.45359237 kg × 9.80665 m/s² (exact, by definition of the pound-force).
-const FORCE_UNITS: Readonly<Record<string, number>> = { N: 1, lbf: 0.45359237 * 9.80665 };
-
-/** The quantity kind of the format that a field kind is read as. */
+/** The quantity kind of the format that an input of a field kind is read as (results-only kinds have none). */
 export function quantityKindOf(kind: FieldKind): QuantityKind {
   if (kind === 'modulus') return 'stress';
-  if (kind === 'force') throw new Error('force is an output-only kind');
-  return kind;
-}
-
-/** Display unit symbol (canonical, e.g. "N*m") of a field kind in a system. */
-export function displayUnit(kind: FieldKind, system: UnitSystem): string {
-  return DISPLAY_UNITS[system][kind];
-}
-
-/** A unit symbol as a reader sees it: "N*m" → "N·m", "kg/m3" → "kg/m³". */
-export function prettyUnit(symbol: string): string {
-  return symbol.replace(/\*/g, '·').replace(/2$/, '²').replace(/3$/, '³');
-}
-
-/** Converts an SI value to the display unit of a field kind. */
-export function toDisplay(si: number, kind: FieldKind, system: UnitSystem): number {
-  const unit = displayUnit(kind, system);
-  if (kind === 'force') return si / FORCE_UNITS[unit];
-  return fromSI(si, unit);
-}
-
-/** Converts a value in the display unit of a field kind back to SI. */
-export function fromDisplay(value: number, kind: FieldKind, system: UnitSystem): number {
-  const unit = displayUnit(kind, system);
-  if (kind === 'force') return value * FORCE_UNITS[unit];
-  const def = UNITS.get(canonicalUnit(unit));
-  if (!def) throw new Error(`unknown unit ${unit}`);
-  return value * def.toSI;
-}
-
-/**
- * A number for reading: `sig` significant figures, no trailing zeros, plain
- * notation between 1e-4 and 1e7, exponent outside. Always a "-" for negatives.
- */
-export function formatNumber(x: number, sig = 5): string {
-  if (!Number.isFinite(x)) return String(x);
-  if (x === 0 || Object.is(x, -0)) return '0';
-  const abs = Math.abs(x);
-  if (abs < 1e-4 || abs >= 1e7) {
-    const [m, e] = x.toExponential(sig - 1).split('e');
-    return `${String(Number(m))}e${Number(e)}`;
+  if (kind === 'force' || kind === 'torsionConstant' || kind === 'torsionalRigidity' || kind === 'torsionalStiffness') {
+    throw new Error(`${kind} is a result, not an input`);
   }
-  return String(Number(x.toPrecision(sig)));
-}
-
-/** An SI value shown in the system's unit, with the unit: "140.2 N·m". */
-export function formatQuantity(si: number | null | undefined, kind: FieldKind, system: UnitSystem, sig = 5): string {
-  if (si === null || si === undefined || !Number.isFinite(si)) return '—';
-  return `${formatNumber(toDisplay(si, kind, system), sig)} ${prettyUnit(displayUnit(kind, system))}`;
-}
-
-/** An SI value as a bare number in the system's unit (for tables whose header carries the unit). */
-export function formatValue(si: number | null | undefined, kind: FieldKind, system: UnitSystem, sig = 5): string {
-  if (si === null || si === undefined || !Number.isFinite(si)) return '—';
-  return formatNumber(toDisplay(si, kind, system), sig);
+  return kind;
 }
 
 /** Reads a stored quantity (number in SI or "<n> <unit>") into SI, or null when it cannot be read. */

@@ -4,9 +4,8 @@
  * problem found is collected with the JSON pointer of its field and thrown at
  * once as one ModelError, so the user fixes them in one pass.
  */
-import { Compile } from 'typebox/compile';
-import { Settings } from 'typebox/system';
-import { Model, MODEL_FORMAT, type GearEnd, type Model as ModelT } from '../../shared-types/model.js';
+import type { GearEnd, Model as ModelT } from '../../shared-types/model.js';
+import { MODEL_VALIDATOR, modelSchemaIssues } from '../../shared-types/schema-issues.js';
 import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
 import { isProblem, rangeProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
 import { buildSectionLayers, type SectionLayer } from './sections.js';
@@ -113,95 +112,18 @@ const MIN_NORMAL = 2.2250738585072014e-308;
  */
 const MIN_SEGMENT_FRACTION = 2e-12;
 
-/** Most shape issues reported for one model: all of them for any real model, bounded against abuse. */
-export const MAX_REPORTED_ISSUES = 500;
-Settings.Set({ maxErrors: MAX_REPORTED_ISSUES });
-const validator = Compile(Model);
+/** The model schema, compiled once for the program (shared-types/schema-issues.ts). */
+const validator = MODEL_VALIDATOR;
 
 /** Validates and resolves a model; throws ModelError listing every problem. */
 export function normaliseModel(raw: unknown): ResolvedModel {
-  if (raw === null || typeof raw !== 'object' || Array.isArray(raw)) {
-    throw new ModelError([{ code: 'SN_SCHEMA', pointer: '', message: 'a model must be a JSON object' }]);
-  }
-  const format = (raw as { format?: unknown }).format;
-  if (format !== MODEL_FORMAT) {
-    throw new ModelError([
-      {
-        code: 'SN_FORMAT',
-        pointer: '/format',
-        message: `must be "${MODEL_FORMAT}"${format === undefined ? '' : `, not ${JSON.stringify(format)}`}`,
-      },
-    ]);
-  }
   if (!validator.Check(raw)) throw new ModelError(schemaIssues(raw));
   return new Resolver(raw).resolve();
 }
 
-interface SchemaError {
-  keyword: string;
-  instancePath: string;
-  params: Record<string, unknown>;
-  message: string;
-}
-
-/** Turns the validator's errors into one issue per field, with readable messages. */
+/** The schema's issues with a model, worded as on every other path (the one translator). */
 export function schemaIssues(raw: unknown): ModelIssue[] {
-  const byPointer = new Map<string, { messages: string[]; allowed: string[]; types: string[] }>();
-  const add = (ptr: string) => {
-    let entry = byPointer.get(ptr);
-    if (!entry) byPointer.set(ptr, (entry = { messages: [], allowed: [], types: [] }));
-    return entry;
-  };
-  for (const e of validator.Errors(raw) as unknown as SchemaError[]) {
-    switch (e.keyword) {
-      case 'required':
-        for (const p of e.params.requiredProperties as string[]) add(e.instancePath + pointer(p)).messages.push('is required');
-        break;
-      case 'additionalProperties':
-        for (const p of e.params.additionalProperties as string[]) {
-          add(e.instancePath + pointer(p)).messages.push(`"${p}" is not a field here (misspelt?)`);
-        }
-        break;
-      case 'boolean':
-      case 'anyOf':
-        break; // restated by the 'additionalProperties' and per-branch errors
-      case 'const':
-        add(e.instancePath).allowed.push(JSON.stringify(e.params.allowedValue));
-        break;
-      case 'type': {
-        // JSON text like 1e999 parses to Infinity, which no schema type admits: say what it is.
-        const v = valueAt(raw, e.instancePath);
-        if (typeof v === 'number' && !Number.isFinite(v)) add(e.instancePath).messages.push('must be a finite number');
-        else add(e.instancePath).types.push(String(e.params.type));
-        break;
-      }
-      default:
-        add(e.instancePath).messages.push(e.message);
-    }
-  }
-  const issues: ModelIssue[] = [];
-  for (const [ptr, { messages, allowed, types }] of byPointer) {
-    let message: string;
-    if (messages.length > 0) message = messages[0];
-    else if (allowed.length > 0) message = `must be one of ${allowed.join(', ')}`;
-    else if (types.includes('number') && types.includes('string')) {
-      message = 'must be a number in SI units or a string "<number> <unit>"';
-    } else message = `must be ${types.map((t) => (t === 'integer' ? 'a whole number' : `a ${t}`)).join(' or ')}`;
-    const code = message === 'must be a finite number' ? 'SN_NOT_FINITE' : 'SN_SCHEMA';
-    issues.push({ code, pointer: ptr, message });
-  }
-  if (issues.length === 0) issues.push({ code: 'SN_SCHEMA', pointer: '', message: 'does not match the model format' });
-  return issues;
-}
-
-/** The value at a JSON pointer, or undefined. */
-function valueAt(root: unknown, ptr: string): unknown {
-  let v: unknown = root;
-  for (const raw of ptr.split('/').slice(1)) {
-    if (v === null || typeof v !== 'object') return undefined;
-    v = (v as Record<string, unknown>)[raw.replace(/~1/g, '/').replace(/~0/g, '~')];
-  }
-  return v;
+  return modelSchemaIssues(raw);
 }
 
 /** Resolves a schema-valid model, collecting issues as it goes. */

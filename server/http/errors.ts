@@ -90,7 +90,7 @@ export function toErrorReply(err: unknown): ErrorReply & { internal: boolean } {
     const context = fe.validationContext ?? 'body';
     const issues = validationIssues(fe.validation, context === 'body' ? '' : '', context);
     const first = issues[0];
-    const code = first?.code === 'SN_FORMAT' ? 'SN_FORMAT' : 'SN_SCHEMA';
+    const code = first?.code ?? 'SN_SCHEMA'; // the first issue's, as the engine's ModelError has it
     const message = !first ? `invalid ${PARTS[context] ?? context}` : context === 'body' ? `${first.pointer || '(body)'}: ${first.message}` : first.message;
     return { ...errorReply(code, message, issues), internal: false };
   }

@@ -1,20 +1,18 @@
 /**
- * TypeBox schemas of the API's own bodies (the model and the solution come
- * from shared-types/). They validate requests and feed the OpenAPI document.
+ * TypeBox schemas of the API's own request bodies and parameters, and its
+ * error answer. The model and the solution come from shared-types/, and so do
+ * the library's answers (shared-types/library.ts). They validate requests and
+ * feed the OpenAPI document.
  */
 import Type, { type Static } from 'typebox';
-import { Model } from '../../shared-types/model.js';
+import { EmbeddedModel } from '../../shared-types/library.js';
 
-/** The model schema without its $id, for embedding in other bodies. */
-const { $id: _modelId, ...modelFields } = Model as typeof Model & { $id?: string };
-void _modelId;
-export const EmbeddedModel = modelFields as unknown as typeof Model;
+export { EmbeddedModel } from '../../shared-types/library.js';
 
 export const ModelId = Type.String({ pattern: '^[A-Za-z0-9_-]{1,64}$', description: 'Model id, as answered by a create.' });
 export const RevisionNumber = Type.Integer({ minimum: 1, maximum: 1_000_000_000, description: 'Revision number, from 1.' });
 export const Author = Type.String({ minLength: 1, maxLength: 100, description: 'Who saves: a name or initials.' });
 export const Message = Type.String({ maxLength: 2000, description: 'What changed; may be empty.' });
-export const Timestamp = Type.String({ description: 'ISO 8601 time (UTC).' });
 
 export const Issue = Type.Object({
   code: Type.String(),
@@ -52,17 +50,6 @@ export const UpdateBody = Type.Object(
 );
 export type UpdateBody = Static<typeof UpdateBody>;
 
-export const SaveReply = Type.Object({ id: Type.String(), revision: Type.Integer() });
-
-export const ModelSummary = Type.Object({
-  id: Type.String(),
-  name: Type.String(),
-  author: Type.String(),
-  updated: Timestamp,
-  revision: Type.Integer(),
-  archived: Type.Boolean(),
-});
-
 export const ListQuery = Type.Object(
   {
     q: Type.Optional(Type.String({ maxLength: 200, description: 'Part of the name, any case.' })),
@@ -71,24 +58,5 @@ export const ListQuery = Type.Object(
   { additionalProperties: false },
 );
 
-export const ModelReply = Type.Object({
-  id: Type.String(),
-  revision: Type.Integer(),
-  model: EmbeddedModel,
-  author: Type.String(),
-  message: Type.String(),
-  created: Timestamp,
-  archived: Type.Boolean(),
-});
-
-export const RevisionInfo = Type.Object({
-  revision: Type.Integer(),
-  author: Type.String(),
-  message: Type.String(),
-  created: Timestamp,
-});
-
 export const IdParams = Type.Object({ id: ModelId });
 export const RevisionParams = Type.Object({ id: ModelId, rev: RevisionNumber });
-
-export const ArchiveReply = Type.Object({ id: Type.String(), archived: Type.Boolean() });

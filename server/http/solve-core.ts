@@ -3,12 +3,10 @@
  * request thread and the solver workers: read JSON, check the model's shape,
  * check its size against the limits, solve or validate.
  */
-import { Compile } from 'typebox/compile';
-import { Model } from '../../shared-types/model.js';
 import type { ModelIssue } from '../../shared-types/errors.js';
+import { modelSchemaIssues } from '../../shared-types/schema-issues.js';
 import { modelSize } from '../engine/index.js';
 import { HttpError } from './errors.js';
-import { validationIssues, type ValidationErrorLike } from './validation.js';
 
 /** Model size limits. */
 export interface SizeLimits {
@@ -17,8 +15,6 @@ export interface SizeLimits {
   /** shafts */
   readonly maxShafts: number;
 }
-
-const modelCheck = Compile(Model);
 
 /** Parses a JSON body; a syntax error is a 400 SN_JSON, a "__proto__" key too. */
 export function parseJsonText(text: string): unknown {
@@ -58,10 +54,9 @@ function jsonError(message: string, pointer = ''): HttpError {
 
 /** Checks the shape of a model (what Fastify checks for a parsed body); throws a 400 naming the fields. */
 export function checkModelShape(value: unknown, prefix = ''): void {
-  if (modelCheck.Check(value)) return;
-  const issues = validationIssues(modelCheck.Errors(value) as unknown as ValidationErrorLike[], prefix);
-  const code = issues.some((i) => i.code === 'SN_FORMAT') ? 'SN_FORMAT' : 'SN_SCHEMA';
-  throw new HttpError(code, `${issues[0].pointer || '(model)'}: ${issues[0].message}`, issues);
+  const issues = modelSchemaIssues(value, prefix);
+  if (issues.length === 0) return;
+  throw new HttpError(issues[0].code, `${issues[0].pointer || '(model)'}: ${issues[0].message}`, issues);
 }
 
 /** The model's size by the engine's upper bound; throws 413 SN_TOO_LARGE over a limit. */

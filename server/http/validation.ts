@@ -1,26 +1,36 @@
 /**
- * Request validation with TypeBox's compiler, and the translation of its
- * errors into issues that name a field by JSON pointer.
+ * Request validation with TypeBox's compiler. Its errors are worded by the one
+ * schema translator (shared-types/schema-issues.ts), the same as the engine's
+ * and the command line's.
  *
  * Why not Fastify's default Ajv setup: it removes unknown properties
  * (removeAdditional) and coerces types, so a misspelt field would vanish
  * silently. Bodies are checked exactly as sent; only query and path parameters
  * (always strings on the wire) are converted to their declared types.
+ *
+ * A model in a body (the whole body, or a field of it such as `model`) is
+ * checked by the program's one compiled model validator, and only the rest of
+ * the body by a validator compiled for the route: a model's issues are then
+ * the engine's, in the same order, with the model's place as a prefix.
  */
 import type { FastifySchemaCompiler } from 'fastify';
-import type { TSchema } from 'typebox';
+import Type, { type TSchema } from 'typebox';
 import { Compile } from 'typebox/compile';
 import { Value } from 'typebox/value';
-import { MODEL_FORMAT } from '../../shared-types/model.js';
-import { pointer as joinPointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
+import { Model } from '../../shared-types/model.js';
+import type { ModelIssue } from '../../shared-types/errors.js';
+import {
+  MODEL_VALIDATOR,
+  schemaIssues,
+  validatorErrors,
+  valueAt,
+  type SchemaContext,
+  type SchemaError,
+} from '../../shared-types/schema-issues.js';
+import { pointerToken } from '../../shared-types/errors.js';
 
 /** The shape of one validator error, TypeBox's or Ajv's. */
-export interface ValidationErrorLike {
-  keyword: string;
-  instancePath: string;
-  params?: Record<string, unknown>;
-  message?: string;
-}
+export type ValidationErrorLike = SchemaError;
 
 /** Marks a body that the route handles itself (a large solve parsed in a worker). */
 export class DeferredBody {
@@ -28,77 +38,67 @@ export class DeferredBody {
   constructor(readonly bytes: Buffer) {}
 }
 
+/** True for the model schema, with or without its $id (routes embed it without): it holds the model's own properties. */
+function isModelSchema(schema: unknown): boolean {
+  if (schema === Model) return true;
+  return schema !== null && typeof schema === 'object' && (schema as { properties?: unknown }).properties === (Model as { properties?: unknown }).properties;
+}
+
+/** A body's check: an envelope validator, and the fields that hold a model. */
+interface BodyCheck {
+  readonly envelope: ReturnType<typeof Compile> | null;
+  readonly modelFields: readonly string[];
+}
+
+/** Splits a body schema into the models it holds and the rest. */
+function bodyCheck(schema: TSchema): BodyCheck {
+  if (isModelSchema(schema)) return { envelope: null, modelFields: [''] };
+  const props = (schema as { properties?: Record<string, TSchema> }).properties;
+  if (!props) return { envelope: Compile(schema), modelFields: [] };
+  const modelFields = Object.keys(props).filter((k) => isModelSchema(props[k]));
+  if (modelFields.length === 0) return { envelope: Compile(schema), modelFields };
+  const envelopeProps: Record<string, TSchema> = { ...props };
+  for (const k of modelFields) envelopeProps[k] = Type.Unknown();
+  // The model fields stay required where they were: the envelope keeps `required` and the other keywords.
+  return { envelope: Compile({ ...schema, properties: envelopeProps } as TSchema), modelFields };
+}
+
+/** Attaches the value at each type error's pointer, for the translator (an Infinity is said to be one). */
+function withValues(errors: SchemaError[], root: unknown): SchemaError[] {
+  return errors.map((e) => (e.keyword === 'type' || e.keyword === 'const' ? { ...e, value: valueAt(root, e.instancePath) } : e));
+}
+
 /** Fastify validator compiler: exact for bodies, converting for query, params and headers. */
 export const validatorCompiler = (({ schema, httpPart }) => {
-  const check = Compile(schema);
-  const convert = httpPart !== 'body';
+  if (httpPart !== 'body') {
+    const check = Compile(schema);
+    return (value: unknown) => {
+      const v = Value.Convert(schema, value);
+      if (check.Check(v)) return { value: v };
+      return { error: withValues(validatorErrors(check, v), v) as unknown as Error[] };
+    };
+  }
+  const { envelope, modelFields } = bodyCheck(schema);
   return (value: unknown) => {
     if (value instanceof DeferredBody) return { value };
-    const v = convert ? Value.Convert(schema, value) : value;
-    if (check.Check(v)) return { value: v };
-    return { error: check.Errors(v) as unknown as Error[] };
+    const errors: SchemaError[] = [];
+    if (envelope && !envelope.Check(value)) errors.push(...validatorErrors(envelope, value));
+    for (const field of modelFields) {
+      const at = field === '' ? '' : '/' + pointerToken(field);
+      const model = field === '' ? value : valueAt(value, at);
+      if (model === undefined && field !== '') continue; // missing: the envelope says it is required
+      if (MODEL_VALIDATOR.Check(model)) continue;
+      for (const e of validatorErrors(MODEL_VALIDATOR, model)) errors.push({ ...e, instancePath: at + e.instancePath });
+    }
+    if (errors.length === 0) return { value };
+    return { error: withValues(errors, value) as unknown as Error[] };
   };
 }) as FastifySchemaCompiler<TSchema>;
 
-/** Converts validator errors into one issue per field (pointer), with readable messages. */
+/**
+ * Validator errors (as the compiler above answers them) into issues, one per
+ * field; `context` names the part of the request. The one translator's words.
+ */
 export function validationIssues(errors: readonly ValidationErrorLike[], prefix = '', context = 'body'): ModelIssue[] {
-  const byPointer = new Map<string, { messages: string[]; allowed: string[]; types: string[]; code: ErrorCode }>();
-  const add = (ptr: string) => {
-    let entry = byPointer.get(ptr);
-    if (!entry) byPointer.set(ptr, (entry = { messages: [], allowed: [], types: [], code: 'SN_SCHEMA' }));
-    return entry;
-  };
-  for (const e of errors) {
-    const at = prefix + (e.instancePath ?? '');
-    const params = e.params ?? {};
-    switch (e.keyword) {
-      case 'required': {
-        const missing = (params.requiredProperties as string[] | undefined) ?? [params.missingProperty as string];
-        for (const p of missing) if (p !== undefined) add(at + joinPointer(p)).messages.push('is required');
-        break;
-      }
-      case 'additionalProperties': {
-        const extra = (params.additionalProperties as string[] | undefined) ?? [params.additionalProperty as string];
-        for (const p of extra) {
-          if (p !== undefined) add(at + joinPointer(p)).messages.push(`"${p}" is not a field here (misspelt?)`);
-        }
-        break;
-      }
-      case 'boolean':
-      case 'anyOf':
-        break; // restated by 'additionalProperties' and by each branch's error
-      case 'const': {
-        const entry = add(at);
-        entry.allowed.push(JSON.stringify(params.allowedValue));
-        if (context === 'body' && at.endsWith('/format') && params.allowedValue === MODEL_FORMAT) entry.code = 'SN_FORMAT';
-        break;
-      }
-      case 'type':
-        add(at).types.push(String(params.type));
-        break;
-      default:
-        add(at).messages.push(e.message ?? `fails "${e.keyword}"`);
-    }
-  }
-  const issues: ModelIssue[] = [];
-  for (const [ptr, { messages, allowed, types, code }] of byPointer) {
-    let message: string;
-    if (messages.length > 0) message = messages[0];
-    else if (allowed.length > 0) message = `must be ${allowed.length === 1 ? '' : 'one of '}${[...new Set(allowed)].join(', ')}`;
-    else if (types.includes('number') && types.includes('string')) {
-      message = 'must be a number in SI units or a string "<number> <unit>"';
-    } else if (types.length > 0) {
-      message = `must be ${[...new Set(types)].map((t) => (t === 'integer' ? 'a whole number' : t === 'array' || t === 'object' ? `an ${t}` : `a ${t}`)).join(' or ')}`;
-    } else message = 'is not valid here';
-    if (context !== 'body') {
-      const name = ptr.slice(prefix.length + 1) || '(all)';
-      message = `${context === 'querystring' ? 'query' : context === 'params' ? 'path' : context} parameter "${name}" ${message}`;
-    }
-    issues.push({ code, pointer: ptr, message });
-  }
-  // A model of another format version: the rest of its errors would only be noise.
-  const format = issues.find((i) => i.code === 'SN_FORMAT');
-  if (format) return [format];
-  if (issues.length === 0) issues.push({ code: 'SN_SCHEMA', pointer: prefix, message: 'does not match the expected format' });
-  return issues.slice(0, 200);
+  return schemaIssues(errors, { prefix, context: context as SchemaContext });
 }

@@ -6,41 +6,27 @@
  * default listing. The interface is synchronous because its one implementation
  * (better-sqlite3) is, and a save is acknowledged only after it is durable.
  */
+import type {
+  ModelSummary as WireModelSummary,
+  RevisionInfo as WireRevisionInfo,
+  Saved,
+  StoredModel,
+} from '../../shared-types/library.js';
 
-/** One line of the library listing. */
-export interface ModelSummary {
-  readonly id: string;
-  /** The model's `name` in its latest revision. */
-  readonly name: string;
-  /** Author of the latest revision. */
-  readonly author: string;
-  /** ISO 8601 time of the latest revision. */
-  readonly updated: string;
-  readonly revision: number;
-  readonly archived: boolean;
-}
+/** One line of the library listing (the wire type of shared-types/library.ts). */
+export type ModelSummary = Readonly<WireModelSummary>;
 
-/** One revision without its model. */
-export interface RevisionInfo {
-  readonly revision: number;
-  readonly author: string;
-  readonly message: string;
-  /** ISO 8601 time the revision was saved. */
-  readonly created: string;
-}
+/** One revision without its model (shared-types/library.ts). */
+export type RevisionInfo = Readonly<WireRevisionInfo>;
 
-/** One revision with its model, as stored (units as the user typed them). */
-export interface StoredRevision extends RevisionInfo {
-  readonly id: string;
-  readonly model: unknown;
-  readonly archived: boolean;
-}
+/**
+ * One revision with its model, as stored (units as the user typed them): the
+ * wire's StoredModel, with the model as an unchecked JSON value.
+ */
+export type StoredRevision = Readonly<Omit<StoredModel, 'model'> & { model: unknown }>;
 
-/** What a save answers. */
-export interface SaveResult {
-  readonly id: string;
-  readonly revision: number;
-}
+/** What a save answers (shared-types/library.ts). */
+export type SaveResult = Readonly<Saved>;
 
 /** What a save needs. */
 export interface SaveInput {

@@ -3,8 +3,10 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { runCli } from '../../server/cli.js';
+import { byteWriter, runCli } from '../../server/cli.js';
+import { formatReport } from '../../server/report.js';
 import { solveModel } from '../../server/engine/index.js';
+import { STATION_CSV_HEADER, stationCsv } from '../../shared-types/present.js';
 
 const demoPath = new URL('../../server/demos/mixer-drive.json', import.meta.url).pathname;
 const demo = JSON.parse(readFileSync(demoPath, 'utf8'));
@@ -21,6 +23,26 @@ function writeModel(model: unknown): string {
   const file = join(dir, 'model.json');
   writeFileSync(file, typeof model === 'string' ? model : JSON.stringify(model));
   return file;
+}
+
+/** A shaft of n segments of two sizes, fixed at both ends, a point torque on every seventh station (invented). */
+function chainModel(n: number) {
+  return {
+    format: 'shaftnet/1',
+    name: 'Chain for the command line (invented)',
+    materials: [{ id: 's', G: 79.3e9 }],
+    sections: [
+      { id: 'a', shape: 'solid', d: 0.04 },
+      { id: 'b', shape: 'hollow', d: 0.05, di: 0.03 },
+    ],
+    shafts: [{ id: 'bar', segments: Array.from({ length: n }, (_, i) => ({ length: 0.01, section: i % 3 === 0 ? 'b' : 'a', material: 's' })) }],
+    supports: [
+      { id: 'A', shaft: 'bar', at: 0, kind: 'fixed' },
+      { id: 'B', shaft: 'bar', at: n * 0.01, kind: 'fixed' },
+    ],
+    torques: Array.from({ length: Math.floor(n / 7) }, (_, i) => ({ id: `t${i}`, shaft: 'bar', at: (7 * i + 3) * 0.01, torque: (i % 11) - 5 })),
+    distributedTorques: [{ id: 'w', shaft: 'bar', from: 0, to: n * 0.01, start: -20, end: 35 }],
+  };
 }
 
 describe('shaftnet solve', () => {
@@ -71,12 +93,62 @@ describe('shaftnet solve', () => {
     for (const text of [si.out, us.out]) expect(text).toContain('qualified engineer');
   });
 
-  it('--csv prints one row per station', async () => {
+  it('tables give each segment GJ, and J and k = GJ/L once the solution carries them', () => {
+    // Solid 40 mm shaft, G = 80 GPa, segments of 0.25 m: J = π d⁴ / 32, GJ, k = GJ / L (Saint-Venant torsion).
+    const model = {
+      format: 'shaftnet/1',
+      name: 'Cantilever (invented)',
+      materials: [{ id: 's', G: 80e9 }],
+      sections: [{ id: 'd40', shape: 'solid', d: 0.04 }],
+      shafts: [{ id: 'bar', segments: Array.from({ length: 4 }, () => ({ length: 0.25, section: 'd40', material: 's' })) }],
+      supports: [{ id: 'A', shaft: 'bar', at: 0, kind: 'fixed' }],
+      torques: [{ id: 'T', shaft: 'bar', at: 1, torque: 100 }],
+    };
+    const J = (Math.PI * 0.04 ** 4) / 32;
+    const GJ = 80e9 * J;
+    const s = solveModel(model);
+    const row = (text: string) => text.split('\n').find((l) => l.startsWith('bar[2] '))!.trim().split(/\s+/);
+    const before = formatReport(model, s, 'si');
+    expect(before).toContain('GJ [N*m2]');
+    expect(before).not.toContain('J [mm4]');
+    expect(Number(row(before.slice(before.indexOf('Segment stiffness')))[2])).toBe(Number(GJ.toPrecision(4)));
+    const later = structuredClone(s);
+    for (const seg of later.shafts[0].segments) Object.assign(seg, { torsionConstant: J, stiffness: GJ / 0.25 });
+    const si = formatReport(model, later, 'si');
+    const table = si.slice(si.indexOf('Segment stiffness'));
+    expect(table).toContain('J [mm4]');
+    expect(table).toContain('k [N*m/rad]');
+    expect(row(table).slice(2).map(Number)).toEqual([J * 1e12, GJ, GJ / 0.25].map((v) => Number(v.toPrecision(4))));
+    // US: 1 in = 0.0254 m and 1 lbf = 0.45359237 kg × 9.80665 m/s², exactly.
+    const us = formatReport(model, later, 'us');
+    const usTable = us.slice(us.indexOf('Segment stiffness'));
+    const lbf = 0.45359237 * 9.80665;
+    expect(usTable).toContain('J [in4]');
+    expect(row(usTable).slice(2).map(Number)).toEqual(
+      [J / 0.0254 ** 4, GJ / (lbf * 0.0254 ** 2), GJ / 0.25 / (lbf * 0.0254)].map((v) => Number(v.toPrecision(4))),
+    );
+  });
+
+  it('--csv prints the station table of the presentation module, one row per station', async () => {
     const r = await run(['solve', demoPath, '--csv']);
+    const solution = solveModel(demo);
+    expect(r.code).toBe(0);
+    expect(r.out).toBe(stationCsv(solution, 'si'));
     const rows = r.out.trim().split('\n');
-    const stations = solveModel(demo).shafts.reduce((n, s) => n + s.stations.length, 0);
-    expect(rows[0]).toBe('shaft,z_m,rotation_rad,torque_left_Nm,torque_right_Nm');
+    const stations = solution.shafts.reduce((n, s) => n + s.stations.length, 0);
+    expect(rows[0]).toBe(STATION_CSV_HEADER);
     expect(rows.length - 1).toBe(stations);
+    const us = await run(['solve', demoPath, '--csv', '--units', 'us']);
+    expect(us.out).toBe(stationCsv(solution, 'us'));
+  });
+
+  it('--csv from the columns of the solve matches the CSV of the solution object, on a large model too', async () => {
+    const pieces: string[] = [];
+    const model = chainModel(30_000);
+    const code = await runCli(['solve', writeModel(model), '--csv', '--units=us'], () => undefined, () => undefined, (t) => pieces.push(t));
+    expect(code).toBe(0);
+    expect(pieces.length).toBeGreaterThan(1);
+    expect(pieces.join('')).toBe(stationCsv(solveModel(model), 'us'));
   });
 
   it('an invalid model exits 2 and names the field', async () => {
@@ -84,7 +156,7 @@ describe('shaftnet solve', () => {
     bad.sections[0].d = '40 GPa';
     const r = await run(['solve', writeModel(bad)]);
     expect(r.code).toBe(2);
-    expect(r.err).toContain('SN_UNIT_KIND /sections/0/d');
+    expect(r.err).toContain(`SN_UNIT_KIND /sections/0/d (section ${JSON.stringify(demo.sections[0].id)}, d): `);
   });
 
   it('a mechanism exits 2 and names the shafts', async () => {
@@ -104,8 +176,30 @@ describe('shaftnet solve', () => {
   });
 });
 
+describe('writing to stdout', () => {
+  it('packs text into fresh buffers of the given size, the text unchanged', () => {
+    const chunks: Buffer[] = [];
+    const w = byteWriter((b) => chunks.push(b), 64);
+    const parts = ['shaft,z\n', 'ä,1\n'.repeat(7), 'x'.repeat(100), 'τ\n', ''];
+    for (const p of parts) w.write(p);
+    w.end();
+    // Joined only after every write: a buffer handed over and then written into again would show here.
+    expect(Buffer.concat(chunks).toString('utf8')).toBe(parts.join(''));
+    expect(chunks.length).toBeGreaterThan(2);
+    for (const c of chunks) expect(c.length).toBeGreaterThan(0);
+  });
+});
+
 describe('the installed command', () => {
   const bin = new URL('../../dist/server/cli.js', import.meta.url).pathname;
+  it('is one bundled file: it imports no module of its own but the server for serve', () => {
+    const text = readFileSync(bin, 'utf8');
+    expect(text.startsWith('#!/usr/bin/env node')).toBe(true);
+    const imports = [...text.matchAll(/(?:^|\n)import\s[^;]*?from\s*["']([^"']+)["']|import\(\s*["']([^"']+)["']\s*\)/g)].map((m) => m[1] ?? m[2]);
+    for (const spec of imports) expect(spec === './main.js' || spec.startsWith('node:'), spec).toBe(true);
+    expect(imports).toContain('./main.js');
+  });
+
   it('runs from dist with the exit codes of the contract', () => {
     expect(existsSync(bin), 'dist/server/cli.js: run npm run build').toBe(true);
     const ok = execFileSync(process.execPath, [bin, 'demo', '--json'], { encoding: 'utf8' });

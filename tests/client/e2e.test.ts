@@ -15,6 +15,7 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import type { Solution } from '../../shared-types/solution.js';
+import { STATION_CSV_HEADER } from '../../shared-types/present.js';
 
 const CHROMIUM = '/usr/bin/chromium';
 const ROOT = fileURLToPath(new URL('../../', import.meta.url));
@@ -183,7 +184,7 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     expect(exported.format).toBe('shaftnet/1');
     const [csv] = await Promise.all([page.waitForEvent('download'), page.locator('header button[data-action="csv"]').click()]);
     const lines = fs.readFileSync((await csv.path()) as string, 'utf8').trim().split('\n');
-    expect(lines[0]).toBe('shaft,z [mm],rotation [deg],torque left [N·m],torque right [N·m]');
+    expect(lines[0]).toBe(STATION_CSV_HEADER);
     const model = (await api<unknown>('GET', '/api/demos/mixer-drive')).body;
     const answer = (await api<Solution>('POST', '/api/solve', model)).body;
     expect(lines.length - 1).toBe(answer.shafts.reduce((n, s) => n + s.stations.length, 0));
@@ -225,7 +226,7 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     await input.press('Tab');
     await waitFresh(page);
     expect(await input.inputValue()).toBe('254');
-    await page.locator('header select[aria-label="Units"]').selectOption('US');
+    await page.locator('header select[aria-label="Units"]').selectOption('us');
     expect(await input.inputValue()).toBe('10');
     await expect.poll(() => page.locator('sn-results table.reactions thead').innerText()).toContain('lbf·in');
     await shot(page, '03-us-units');

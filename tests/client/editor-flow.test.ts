@@ -7,7 +7,6 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import type { Model } from '../../shared-types/model.js';
-import type { Solution } from '../../shared-types/solution.js';
 import {
   History,
   applyEdit,
@@ -24,7 +23,7 @@ import {
   setIn,
   toPointer,
 } from '../../client/src/store.js';
-import { fileName, stationsCsv } from '../../client/src/export.js';
+import { fileName } from '../../client/src/export.js';
 import { parseInput } from '../../client/src/units.js';
 
 const demo = JSON.parse(readFileSync(new URL('../../server/demos/mixer-drive.json', import.meta.url), 'utf8')) as Model;
@@ -74,7 +73,7 @@ describe('edits', () => {
   });
 
   it('store what a user typed through the unit reader', () => {
-    const next = applyEdit(model, '/shafts/2/segments/0/length', parseInput('8', 'length', 'US').value);
+    const next = applyEdit(model, '/shafts/2/segments/0/length', parseInput('8', 'length', 'us').value);
     expect(next.shafts[2].segments[0].length).toBe('8 in');
   });
 
@@ -206,23 +205,6 @@ describe('issues from the API', () => {
 });
 
 describe('exports', () => {
-  it('write the station table as CSV in the chosen units', () => {
-    const sol = {
-      shafts: [
-        { id: 'input', stations: [
-          { z: 0, rotation: 0, torqueLeft: null, torqueRight: -140.2 },
-          { z: 0.1, rotation: Math.PI / 180, torqueLeft: -140.2, torqueRight: 209.8 },
-        ] },
-      ],
-    } as unknown as Solution;
-    const si = stationsCsv(sol, 'SI').trim().split('\n');
-    expect(si[0]).toBe('shaft,z [mm],rotation [deg],torque left [N·m],torque right [N·m]');
-    expect(si[1]).toBe('input,0,0,,-140.2');
-    expect(si[2]).toBe('input,100,1,-140.2,209.8');
-    const us = stationsCsv(sol, 'US').trim().split('\n');
-    expect(us[2].split(',')[1]).toBe('3.9370079'); // 100 mm / 25.4 mm/in, 8 significant figures
-  });
-
   it('derive a file name from the model name', () => {
     expect(fileName('Demo (invented): mixer drive', 'json')).toBe('demo-invented-mixer-drive.json');
     expect(fileName('***', 'csv')).toBe('model.csv');

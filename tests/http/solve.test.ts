@@ -98,7 +98,7 @@ describe('POST /api/solve', () => {
   it('400 SN_FORMAT for another format version, 400 from the engine for a wrong unit', async () => {
     const f = await post(t, { ...cantilever(1), format: 'shaftnet/2' });
     expect(f.statusCode).toBe(400);
-    expect(errorOf(f.body).error.issues).toEqual([{ code: 'SN_FORMAT', pointer: '/format', message: 'must be "shaftnet/1"' }]);
+    expect(errorOf(f.body).error.issues).toEqual([{ code: 'SN_FORMAT', pointer: '/format', message: 'must be "shaftnet/1", not "shaftnet/2"' }]);
     const m = cantilever(1) as Record<string, any>;
     m.sections[0].d = '40 N*m';
     const u = await post(t, m);

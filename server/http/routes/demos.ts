@@ -2,6 +2,7 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import Type from 'typebox';
 import type { Model } from '../../../shared-types/model.js';
+import { DemoList } from '../../../shared-types/library.js';
 import type { Demo } from '../demos.js';
 import { HttpError } from '../errors.js';
 import { EmbeddedModel, errorResponses } from '../schemas.js';
@@ -21,7 +22,7 @@ const demosRoutes: FastifyPluginAsyncTypebox<DemosOptions> = async (app, opts) =
         tags: ['demos'],
         summary: 'List the demo models',
         response: {
-          200: Type.Object({ demos: Type.Array(Type.Object({ id: Type.String(), name: Type.String(), notes: Type.String() })) }),
+          200: DemoList,
           ...errorResponses(401),
         },
       },

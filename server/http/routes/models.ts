@@ -12,26 +12,13 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import Type from 'typebox';
 import { ModelError } from '../../../shared-types/errors.js';
 import { Model, type Model as ModelT } from '../../../shared-types/model.js';
+import { ArchiveState, ModelList, RevisionList, Saved, StoredModel } from '../../../shared-types/library.js';
+import { slug } from '../../../shared-types/present.js';
 import { normaliseModel } from '../../engine/normalise.js';
 import type { ModelStore, StoredRevision } from '../../store/store.js';
 import { ModelNotFoundError, StaleRevisionError } from '../../store/store.js';
 import { HttpError, prefixIssues } from '../errors.js';
-import {
-  ArchiveReply,
-  Author,
-  CreateBody,
-  errorResponses,
-  IdParams,
-  ListQuery,
-  Message,
-  ModelReply,
-  ModelSummary,
-  RevisionInfo,
-  RevisionNumber,
-  RevisionParams,
-  SaveReply,
-  UpdateBody,
-} from '../schemas.js';
+import { Author, CreateBody, errorResponses, IdParams, ListQuery, Message, RevisionNumber, RevisionParams, UpdateBody } from '../schemas.js';
 import { checkSize, type SizeLimits } from '../solve-core.js';
 import type { SolverPool } from '../solver-pool.js';
 
@@ -48,17 +35,9 @@ function notFound(id: string, revision?: number): HttpError {
   return new HttpError('SN_NOT_FOUND', message, [{ code: 'SN_NOT_FOUND', pointer: revision === undefined ? '/id' : '/rev', message }]);
 }
 
-/** A file name for an export: the model's name made safe, and the revision. */
+/** A file name for an export: the model's name made safe (the presentation module's slug), and the revision. */
 export function exportFileName(name: string, revision: number): string {
-  const slug = name
-    .normalize('NFKD')
-    .replace(/[^\x20-\x7e]/g, '')
-    .toLowerCase()
-    .replace(/[^a-z0-9]+/g, '-')
-    .replace(/^-+|-+$/g, '')
-    .slice(0, 60)
-    .replace(/-+$/, '');
-  return `${slug || 'model'}-r${revision}.shaftnet.json`;
+  return `${slug(name)}-r${revision}.shaftnet.json`;
 }
 
 const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts) => {
@@ -90,7 +69,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         tags: ['library'],
         summary: 'Create a model (revision 1)',
         body: CreateBody,
-        response: { 201: SaveReply, ...errorResponses(400, 401, 413) },
+        response: { 201: Saved, ...errorResponses(400, 401, 413) },
       },
     },
     async (req, reply) => {
@@ -108,7 +87,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         tags: ['library'],
         summary: 'List models, most recently updated first',
         querystring: ListQuery,
-        response: { 200: Type.Object({ models: Type.Array(ModelSummary) }), ...errorResponses(400, 401) },
+        response: { 200: ModelList, ...errorResponses(400, 401) },
       },
     },
     async (req) => ({ models: store.list({ q: req.query.q, archived: req.query.archived ?? false }) }),
@@ -121,7 +100,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         tags: ['library'],
         summary: 'Read the latest revision of a model',
         params: IdParams,
-        response: { 200: ModelReply, ...errorResponses(400, 401, 404) },
+        response: { 200: StoredModel, ...errorResponses(400, 401, 404) },
       },
     },
     async (req) => {
@@ -140,7 +119,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         description: 'A stale baseRevision answers 409 SN_STALE_REVISION with currentRevision beside error: nothing is overwritten.',
         params: IdParams,
         body: UpdateBody,
-        response: { 200: SaveReply, ...errorResponses(400, 401, 404, 409, 413) },
+        response: { 200: Saved, ...errorResponses(400, 401, 404, 409, 413) },
       },
     },
     async (req) => {
@@ -173,7 +152,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         tags: ['library'],
         summary: 'The revisions of a model, newest first',
         params: IdParams,
-        response: { 200: Type.Object({ revisions: Type.Array(RevisionInfo) }), ...errorResponses(400, 401, 404) },
+        response: { 200: RevisionList, ...errorResponses(400, 401, 404) },
       },
     },
     async (req) => {
@@ -190,7 +169,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         tags: ['library'],
         summary: 'Read one revision of a model',
         params: RevisionParams,
-        response: { 200: ModelReply, ...errorResponses(400, 401, 404) },
+        response: { 200: StoredModel, ...errorResponses(400, 401, 404) },
       },
     },
     async (req) => {
@@ -213,7 +192,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
           tags: ['library'],
           summary: archived ? 'Archive a model (hide it from the default list; nothing is deleted)' : 'Restore an archived model',
           params: IdParams,
-          response: { 200: ArchiveReply, ...errorResponses(400, 401, 404) },
+          response: { 200: ArchiveState, ...errorResponses(400, 401, 404) },
         },
       },
       async (req) => {
@@ -257,7 +236,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         description: 'The body is the model file itself; pointers in a 400 are into it.',
         querystring: Type.Object({ author: Author, message: Type.Optional(Message) }, { additionalProperties: false }),
         body: Model,
-        response: { 201: SaveReply, ...errorResponses(400, 401, 413) },
+        response: { 201: Saved, ...errorResponses(400, 401, 413) },
       },
     },
     async (req, reply) => {

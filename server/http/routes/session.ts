@@ -11,6 +11,7 @@ import Type from 'typebox';
 import { SESSION_COOKIE, type TeamAuth } from '../auth.js';
 import { errorResponses } from '../schemas.js';
 import { SESSION_DEFAULTS } from '../sessions.js';
+import { SessionInfo } from '../../../shared-types/library.js';
 
 export interface SessionOptions {
   /** Token mode; undefined = open server. */
@@ -19,7 +20,7 @@ export interface SessionOptions {
   readonly maxAgeMs?: number;
 }
 
-const SessionState = Type.Object({ tokenRequired: Type.Boolean(), signedIn: Type.Boolean() });
+const SessionState = SessionInfo;
 
 const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opts) => {
   const { auth } = opts;
