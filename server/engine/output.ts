@@ -6,7 +6,7 @@
  * model would need, and in pieces, since a million-station answer is longer
  * than the longest string a JavaScript engine can hold.
  *
- * Both must run inside the solve's `withArena`: the columns are work arrays.
+ * Both must run inside the solve's session (`withSolved`): the columns are work arrays.
  */
 import { SOLUTION_FORMAT, type CheckResult, type Solution, type Warning } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
@@ -25,7 +25,7 @@ export interface Solved {
 
 const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist'] as const;
 
-/** The solution object (plain objects and arrays, nothing from the arena). */
+/** The solution object (plain objects and arrays, nothing from the workspace). */
 export function toSolution(sv: Solved): Solution {
   const { model, layout, rec } = sv;
   const { z, shaftStart } = layout;
