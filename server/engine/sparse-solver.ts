@@ -117,7 +117,9 @@ export function ldlSymbolic(a: CscMatrix, ws: Workspace): LdlSymbolic {
  * `sym` was made for. With `into`, the factor of an earlier call on the same
  * symbolic phase is overwritten (no new storage). Throws SingularMatrixError
  * when a pivot is not above PIVOT_TOLERANCE of its diagonal entry (or, with
- * `indefinite`, when its size is not).
+ * `indefinite`, when its size is not): there is no pivoting, so an indefinite
+ * matrix with a vanishing leading minor is refused even when it is regular
+ * (a caller scanning a parameter moves it a little).
  */
 export function ldlNumeric(
   sym: LdlSymbolic,
