@@ -38,7 +38,7 @@ export interface PipelineOptions {
  * stations, scratch given back being reused): reserved in one piece at the
  * start of a large solve.
  */
-const LARGE_BYTES_PER_STATION = 400;
+export const LARGE_BYTES_PER_STATION = 400;
 /** Bytes of small work arrays per station: sizes the first chunk of a fresh workspace. */
 const SMALL_BYTES_PER_STATION = 320;
 

@@ -13,7 +13,8 @@
  * Tolerances are round-off allowances for a chain of 60,000 elements, common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
-import { solveModel, solveModelJson, Workspace } from '../../server/engine/index.js';
+import { normaliseModel, solveModel, solveModelJson, withSolved, Workspace } from '../../server/engine/index.js';
+import { LARGE_BYTES_PER_STATION, stationEstimate } from '../../server/engine/pipeline.js';
 
 const N = 60_000; // segments
 const H = 2 ** -14; // m per segment: segment ends are exact in binary
@@ -100,5 +101,24 @@ describe('large models (work arrays from the slab, released and reused)', () => 
     expect(kept).toBe(fresh);
     expect(again).toBe(fresh);
     expect(JSON.stringify(solveModel(barModel()))).toBe(fresh);
+  });
+
+  it('the slab reserved up front holds the whole solve: scratch and dead results are given back and reused', () => {
+    const workspace = new Workspace();
+    const resolved = normaliseModel(barModel());
+    const reserved = LARGE_BYTES_PER_STATION * stationEstimate(resolved);
+    let used = 0;
+    let stations = 0;
+    withSolved(resolved, { workspace }, (solved) => {
+      used = workspace.largeBytesUsed();
+      stations = solved.stats.stations;
+    });
+    expect(used).toBeGreaterThan(0);
+    // Measured on this model: 152 bytes per station of large arrays, 344 when nothing is given back
+    // (node 20); the bound sits between (common practice, no source).
+    expect(used).toBeLessThanOrEqual(200 * stations);
+    // Not outgrown: the slab kept is the one reserved (rounded up to its alignment), never a doubled one.
+    expect(used).toBeLessThanOrEqual(reserved);
+    expect(workspace.keptBytes()).toBeLessThan(reserved + 64);
   });
 });
