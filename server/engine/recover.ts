@@ -23,8 +23,7 @@ import type { Workspace } from './workspace.js';
 /**
  * Everything recovered, in columns (typed arrays from the workspace) rather
  * than in millions of small objects, gathered by the pipeline from the stages
- * below: `output.ts` writes it out as the solution
- * object or straight to JSON text. Segments and layers are numbered across
+ * below; `output.ts` walks it into the solution object or its JSON text. Segments and layers are numbered across
  * all shafts: shaft s has segments segBase[s] … segBase[s + 1] − 1, and global
  * segment g has layers layerBase[g] … layerBase[g + 1] − 1.
  */
