@@ -39,8 +39,12 @@ export const SegmentResult = Type.Object({
   section: Type.String(),
   from: Num,
   to: Num,
+  /** Torsion constant J of the section, m⁴: the polar second moment of area, summed over the rings of a layered section. */
+  torsionConstant: Num,
   /** Σ G·J over the layers, N·m². */
   torsionalRigidity: Num,
+  /** G·J / (to − from) of the whole segment, N·m/rad. */
+  stiffness: Num,
   maxAbsTorque: Num,
   /** z where |T| peaks in the segment (the governing point). */
   governingZ: Num,

@@ -1,5 +1,7 @@
 /**
- * Assembly of the reduced stiffness system.
+ * Assembly of the reduced stiffness system, in two stages: the model's
+ * parts as springs, constraint edges and loads (`elasticParts`), then, once
+ * the constraints are eliminated (constraints.ts), K·x = f (`reducedSystem`).
  *
  * Every elastic part is a two-point spring in rotation space with energy
  * ½·k·(p·φ_i + q·φ_j − c)²: a shaft element (p = −1, q = 1, k = GJ/h), a
@@ -9,9 +11,10 @@
  */
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
-import { reduceConstraints, type Reduction, type RigidEdge } from './constraints.js';
+import { ModelError } from '../../shared-types/errors.js';
+import type { Reduction, RigidEdge } from './constraints.js';
 import type { SymmetricEntries } from './sparse-solver.js';
-import { f64, i32, i32Copy, release, u8 } from './arena.js';
+import type { Workspace } from './workspace.js';
 
 /**
  * All elastic parts as springs; the first `elemCount` are the shaft elements,
@@ -19,7 +22,7 @@ import { f64, i32, i32Copy, release, u8 } from './arena.js';
  * joins dof elemLeft[e] (p = −1) and the next dof (q = 1) with no initial
  * strain, so only the other springs keep their ends and coefficients, in
  * `i`, `j`, `p`, `q`, `c` at m − elemCount (a million elements save 32 MB).
- * Read any spring with `readSpring`.
+ * Read any spring through a `SpringCursor`.
  */
 export interface SpringSet {
   readonly count: number;
@@ -36,39 +39,54 @@ export interface SpringSet {
   readonly ref: Int32Array;
 }
 
-/** The ends (j = −1: none) and coefficients of the spring last read by `readSpring`. */
-export const spring = { i: 0, j: 0, p: 0, q: 0, c: 0 };
+/**
+ * Reads the ends (j = −1: none) and coefficients of one spring at a time.
+ * Each loop over the springs makes its own cursor: nothing is shared.
+ */
+export class SpringCursor {
+  i = 0;
+  j = 0;
+  p = 0;
+  q = 0;
+  c = 0;
+  constructor(private readonly s: SpringSet) {}
 
-/** Puts the ends and coefficients of spring m into `spring`. */
-export function readSpring(s: SpringSet, m: number): void {
-  const x = m - s.elemCount;
-  if (x < 0) {
-    spring.i = s.elemLeft[m];
-    spring.j = spring.i + 1;
-    spring.p = -1;
-    spring.q = 1;
-    spring.c = 0;
-  } else {
-    spring.i = s.i[x];
-    spring.j = s.j[x];
-    spring.p = s.p[x];
-    spring.q = s.q[x];
-    spring.c = s.c[x];
+  /** Moves to spring m. */
+  read(m: number): void {
+    const s = this.s;
+    const x = m - s.elemCount;
+    if (x < 0) {
+      this.i = s.elemLeft[m];
+      this.j = this.i + 1;
+      this.p = -1;
+      this.q = 1;
+      this.c = 0;
+    } else {
+      this.i = s.i[x];
+      this.j = s.j[x];
+      this.p = s.p[x];
+      this.q = s.q[x];
+      this.c = s.c[x];
+    }
   }
 }
 
-export interface Assembly {
+/** The elastic parts (springs), the rigid parts (constraint edges) and the applied load of a model. */
+export interface ElasticParts {
   readonly springs: SpringSet;
   readonly edges: readonly RigidEdge[];
-  readonly reduction: Reduction;
   /** Applied torque at each dof: point torques plus consistent distributed loads, N·m. */
   readonly load: Float64Array;
-  readonly system: SymmetricEntries;
+}
+
+/** K·x = f in the unknowns of a reduction. */
+export interface ReducedSystem {
+  readonly matrix: SymmetricEntries;
   readonly rhs: Float64Array;
 }
 
-/** Builds springs, constraints and the reduced system K·x = f. */
-export function assemble(model: ResolvedModel, layout: StationLayout): Assembly {
+/** Springs of the elastic parts, constraint edges of the rigid ones, and the load at every dof. */
+export function elasticParts(model: ResolvedModel, layout: StationLayout, ws: Workspace): ElasticParts {
   const { z, elemLeft, elemSegment, elemT1, elemT2, shaftOf } = layout;
   const elemCount = elemLeft.length;
   const extra: Array<{ kind: 'support' | 'mesh' | 'coupling'; ref: number; k: number; i: number; j: number; p: number; q: number; c: number }> = [];
@@ -98,17 +116,17 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
   const springs = {
     count,
     elemCount,
-    k: f64(count),
+    k: ws.f64(count),
     elemLeft,
-    i: i32(extra.length),
-    j: i32(extra.length),
-    p: f64(extra.length),
-    q: f64(extra.length),
-    c: f64(extra.length),
+    i: ws.i32(extra.length),
+    j: ws.i32(extra.length),
+    p: ws.f64(extra.length),
+    q: ws.f64(extra.length),
+    c: ws.f64(extra.length),
     kind: extra.map((e) => e.kind),
     ref: new Int32Array(extra.map((e) => e.ref)),
   };
-  const load = f64(layout.dofCount);
+  const load = ws.f64(layout.dofCount);
   for (let e = 0; e < elemCount; e++) {
     const left = elemLeft[e];
     const h = z[left + 1] - z[left];
@@ -131,11 +149,7 @@ export function assemble(model: ResolvedModel, layout: StationLayout): Assembly 
     springs.c[n] = s.c;
   });
   for (const t of model.torques) load[layout.stationAt(t.shaft, t.z)] += t.torque;
-
-  const shaftName = (dof: number) => model.shafts[shaftOf[dof]].id;
-  const reduction = reduceConstraints(layout.dofCount, edges, shaftName);
-  const { system, rhs } = reducedSystem(springs, load, reduction);
-  return { springs, edges, reduction, load, system, rhs };
+  return { springs, edges, load };
 }
 
 /**
@@ -151,19 +165,20 @@ export function consistentRight(h: number, t1: number, t2: number): number {
   return (h * (t1 + 2 * t2)) / 6;
 }
 
-/** K·x = f in the unknowns of the reduction. */
-function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction): { system: SymmetricEntries; rhs: Float64Array } {
+/** K·x = f in the unknowns of the reduction: each spring's k·(p·φ_i + q·φ_j − c)² with φ = α·x + β. */
+export function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction, ws: Workspace): ReducedSystem {
   const n = red.varCount;
   const { varOf, alpha, beta } = red;
-  const diag = f64(n);
-  const rhs = f64(n);
-  const rows = i32(s.count);
-  const cols = i32(s.count);
-  const vals = f64(s.count);
+  const diag = ws.f64(n);
+  const rhs = ws.f64(n);
+  const rows = ws.i32(s.count);
+  const cols = ws.i32(s.count);
+  const vals = ws.f64(s.count);
   let nnz = 0;
+  const spring = new SpringCursor(s);
   for (let m = 0; m < s.count; m++) {
     const k = s.k[m];
-    readSpring(s, m);
+    spring.read(m);
     const { i, j, p, q } = spring;
     const u = varOf[i];
     const v = j >= 0 ? varOf[j] : -1;
@@ -195,7 +210,7 @@ function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction): { syst
     const u = varOf[d];
     if (u >= 0 && load[d] !== 0) rhs[u] += alpha[d] * load[d];
   }
-  return { system: { n, diag, rows, cols, vals, count: nnz }, rhs };
+  return { matrix: { n, diag, rows, cols, vals, count: nnz }, rhs };
 }
 
 /**
@@ -210,13 +225,13 @@ function reducedSystem(s: SpringSet, load: Float64Array, red: Reduction): { syst
  * and a spring inside one group whose ratio disagrees locks it. Near-linear
  * time, 17 bytes per unknown.
  */
-export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
+export function findMechanisms(s: SpringSet, red: Reduction, ws: Workspace): number[][] {
   const n = red.varCount;
   const { varOf, alpha } = red;
-  const parent = i32(n);
-  const rel = f64(n);
-  const size = i32(n);
-  const held = u8(n); // of a root: its group is anchored or locked
+  const parent = ws.i32(n);
+  const rel = ws.f64(n);
+  const size = ws.i32(n);
+  const held = ws.u8(n); // of a root: its group is anchored or locked
   for (let u = 0; u < n; u++) {
     parent[u] = u;
     rel[u] = 1;
@@ -245,8 +260,9 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     }
     return root;
   };
+  const spring = new SpringCursor(s);
   for (let m = 0; m < s.count; m++) {
-    readSpring(s, m);
+    spring.read(m);
     const u = varOf[spring.i];
     const v = spring.j >= 0 ? varOf[spring.j] : -1;
     const cu = u >= 0 ? spring.p * alpha[spring.i] : 0;
@@ -287,6 +303,27 @@ export function findMechanisms(s: SpringSet, red: Reduction): number[][] {
     if (group) group.push(u);
     else groupOf.set(root, [u]);
   }
-  release(parent, rel, size, held);
   return [...groupOf.values()];
+}
+
+/** Throws SN_MECHANISM naming the shafts of every group free to turn. */
+export function assertNoMechanism(model: ResolvedModel, layout: StationLayout, springs: SpringSet, red: Reduction, ws: Workspace): void {
+  const groups = findMechanisms(springs, red, ws);
+  if (groups.length === 0) return;
+  // Unknown → one of its dofs → shaft.
+  const dofOfVar = ws.i32(red.varCount).fill(-1);
+  red.varOf.forEach((u, d) => {
+    if (u >= 0 && dofOfVar[u] < 0) dofOfVar[u] = d;
+  });
+  const issues = groups.map((g) => {
+    const shafts = [...new Set(g.map((u) => model.shafts[layout.shaftOf[dofOfVar[u]]].id))];
+    const list = shafts.map((s) => `"${s}"`).join(', ');
+    return {
+      code: 'SN_MECHANISM' as const,
+      pointer: '/supports',
+      message: `${shafts.length === 1 ? 'shaft' : 'shafts'} ${list} can spin freely: add a fixed or spring support, or connect ${shafts.length === 1 ? 'it' : 'them'} to a supported shaft`,
+      shafts,
+    };
+  });
+  throw new ModelError(issues);
 }

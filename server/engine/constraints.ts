@@ -12,7 +12,7 @@
  * it must hold identically, or the offsets and misfits cannot be assembled.
  */
 import { ModelError, type ModelIssue } from '../../shared-types/errors.js';
-import { f64, i32, i32Copy } from './arena.js';
+import type { Workspace } from './workspace.js';
 
 /** One exact constraint p·φ_i + q·φ_j = c. */
 export interface RigidEdge {
@@ -48,31 +48,31 @@ const RATIO_TOLERANCE = 1e-10;
 const CLOSURE_TOLERANCE = 1e-9;
 
 /** Eliminates the rigid edges; throws SN_LOOP_MISMATCH when they cannot all hold. */
-export function reduceConstraints(dofCount: number, edges: readonly RigidEdge[], shaftNameOf: (dof: number) => string): Reduction {
-  const varOf = i32(dofCount).fill(-2); // −2: not yet reached
-  const alpha = f64(dofCount);
-  const beta = f64(dofCount);
+export function reduceConstraints(dofCount: number, edges: readonly RigidEdge[], shaftNameOf: (dof: number) => string, ws: Workspace): Reduction {
+  const varOf = ws.i32(dofCount).fill(-2); // −2: not yet reached
+  const alpha = ws.f64(dofCount);
+  const beta = ws.f64(dofCount);
   const lockedLoops: string[][] = [];
   const redundantTies: string[][] = [];
   const issues: ModelIssue[] = [];
 
   // Adjacency of the rigid edges, compressed.
-  const degree = i32(dofCount + 1);
+  const degree = ws.i32(dofCount + 1);
   for (const e of edges) {
     degree[e.i + 1]++;
     if (e.j >= 0 && e.j !== e.i) degree[e.j + 1]++;
   }
   for (let k = 0; k < dofCount; k++) degree[k + 1] += degree[k];
   const adjStart = degree;
-  const adj = i32(adjStart[dofCount]);
-  const fill = i32Copy(adjStart, dofCount);
+  const adj = ws.i32(adjStart[dofCount]);
+  const fill = ws.i32Copy(adjStart, dofCount);
   edges.forEach((e, n) => {
     adj[fill[e.i]++] = n;
     if (e.j >= 0 && e.j !== e.i) adj[fill[e.j]++] = n;
   });
 
-  const parentEdge = i32(dofCount).fill(-1);
-  const depth = i32(dofCount);
+  const parentEdge = ws.i32(dofCount).fill(-1);
+  const depth = ws.i32(dofCount);
   let varCount = 0;
 
   /** Edge ids on the tree path between two dofs of one group (both may be −1: none). */
@@ -92,7 +92,7 @@ export function reduceConstraints(dofCount: number, edges: readonly RigidEdge[],
     return path;
   };
 
-  const queue = i32(dofCount);
+  const queue = ws.i32(dofCount);
   for (let start = 0; start < dofCount; start++) {
     if (varOf[start] !== -2) continue;
     if (adjStart[start] === adjStart[start + 1]) {

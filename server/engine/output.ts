@@ -1,14 +1,32 @@
 /**
- * Writing a solve out: as the solution object of the contract, or straight
- * to its JSON text. Both read the same recovered columns; the JSON text is
- * byte for byte `JSON.stringify(toSolution(solved))` (a test holds them to
- * it), but is written without making the millions of small objects a large
- * model would need, and in pieces, since a million-station answer is longer
- * than the longest string a JavaScript engine can hold.
+ * Writing a solve out: one walk over the recovered columns (`walkSolution`)
+ * that names every field once, in the order written, and two writers it
+ * feeds: one builds the solution object of the contract (`toSolution`), the
+ * other its JSON text (`writeSolutionJson`), byte for byte
+ * `JSON.stringify(toSolution(solved))` (a test holds them to it). The text is
+ * written without making the millions of small objects a large model would
+ * need, and in pieces, since a million-station answer is longer than the
+ * longest string a JavaScript engine can hold.
  *
- * Both must run inside the solve's `withArena`: the columns are work arrays.
+ * Both must run inside the solve's session (`withSolved`): the columns are
+ * work arrays. A new field of the solution: its schema in
+ * shared-types/solution.ts, its name in the record below, its value in the
+ * walk, at the same place.
  */
-import { SOLUTION_FORMAT, type CheckResult, type Solution, type Warning } from '../../shared-types/solution.js';
+import {
+  SOLUTION_FORMAT,
+  type CheckResult,
+  type CouplingResult,
+  type Diagram,
+  type GearMeshResult,
+  type LayerResult,
+  type ReactionResult,
+  type SegmentResult,
+  type ShaftResult,
+  type Solution,
+  type Station,
+  type Warning,
+} from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Recovered } from './recover.js';
@@ -23,115 +41,263 @@ export interface Solved {
   readonly stats: Solution['stats'];
 }
 
-const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist'] as const;
-
-/** The solution object (plain objects and arrays, nothing from the arena). */
-export function toSolution(sv: Solved): Solution {
-  const { model, layout, rec } = sv;
-  const { z, shaftStart } = layout;
-  const { phi, TL, TR, segBase, segMaxAbs, segAt, segTwist, layerBase, layerMaxShear, diagStart, diagCount } = rec;
-  const shafts = model.shafts.map((shaft, s) => {
-    const first = shaftStart[s];
-    const last = shaftStart[s + 1] - 1;
-    const stations = [];
-    for (let d = first; d <= last; d++) {
-      stations.push({ z: z[d], rotation: phi[d], torqueLeft: d === first ? null : TR[d - 1 - s], torqueRight: d === last ? null : TL[d - s] });
-    }
-    const segments = shaft.segments.map((sg, k) => {
-      const g = segBase[s] + k;
-      const maxAbs = segMaxAbs[g];
-      return {
-        index: k,
-        section: sg.sectionId,
-        from: sg.z0,
-        to: sg.z1,
-        torsionalRigidity: sg.rigidity,
-        maxAbsTorque: maxAbs,
-        governingZ: segAt[g],
-        maxTwistRate: maxAbs / sg.rigidity,
-        twist: segTwist[g],
-        layers: sg.layers.map((l, j) => {
-          const maxShear = layerMaxShear[layerBase[g] + j];
-          return {
-            material: l.materialId,
-            outerRadius: l.rOuter,
-            maxShear,
-            allowableShear: l.allowableShear,
-            utilisation: l.allowableShear === null ? null : maxShear / l.allowableShear,
-            shearYield: l.shearYield,
-          };
-        }),
-      };
-    });
-    const from = diagStart[s];
-    const to = from + diagCount[s];
-    return {
-      id: shaft.id,
-      ...(shaft.name === undefined ? {} : { name: shaft.name }),
-      length: shaft.length,
-      stations,
-      segments,
-      totalTwist: rec.totalTwist[s],
-      diagram: {
-        z: Array.from(rec.dZ.subarray(from, to)),
-        torque: Array.from(rec.dT.subarray(from, to)),
-        rotation: Array.from(rec.dPhi.subarray(from, to)),
-        shear: Array.from(rec.dTau.subarray(from, to)),
-      },
-    };
-  });
-  const c = rec.checks;
-  const checks = Array.from(c.listed, (m): CheckResult => {
-    const shaft = model.shafts[c.shaft[m]].id;
-    const base = { value: c.value[m], limit: c.limit[m], utilisation: c.utilisation[m], pass: c.value[m] <= c.limit[m] };
-    if (c.kind[m] === 0) {
-      const material = model.shafts[c.shaft[m]].segments[c.segment[m]].layers[c.layer[m]].materialId;
-      return { kind: 'shear', shaft, ...base, segment: c.segment[m], layer: c.layer[m], material };
-    }
-    if (c.kind[m] === 1) return { kind: 'twistRate', shaft, ...base, segment: c.segment[m] };
-    return { kind: 'totalTwist', shaft, ...base };
-  });
-  return {
-    format: SOLUTION_FORMAT,
-    name: model.name,
-    shafts,
-    reactions: rec.reactions,
-    gearMeshes: rec.gearMeshes,
-    couplings: rec.couplings,
-    equilibrium: { maxResidual: sv.maxResidual, shafts: model.shafts.map((shaft, s) => ({ shaft: shaft.id, residual: rec.residual[s] })) },
-    checks,
-    warnings: [...sv.warnings],
-    stats: { ...sv.stats },
-  };
+/** The field names of one kind of object, in the order they are written. The first is never left out. */
+interface Rec {
+  readonly keys: readonly string[];
+  /** The JSON text before each field's value: `"key":`, after a comma from the second on. */
+  readonly json: readonly string[];
+  /**
+   * The object of the values, in order: field n is `num[n]` where bit n of
+   * `isNum` is set, else `val[n]`; the fields whose bit is set in `left` are
+   * left out.
+   */
+  readonly build: (num: Float64Array, val: readonly unknown[], isNum: number, left: number) => Record<string, unknown>;
 }
+
+/** Most fields of one kind of object (the bits of a mask). */
+const MAX_FIELDS = 30;
 
 /**
- * The text of numbers written lately, in a small direct-mapped table keyed by
- * the bits of the double: most numbers of an answer appear more than once (a
- * station's z, rotation and torques again in the diagram, a segment's peak
- * torque again in its layers and its checks), and turning a double into its
- * shortest text costs more than looking it up. Cleared for every answer.
+ * The record of `keys`. Its builder is generated from the names, once, so
+ * that an object gets its fields in one go, in the order of the list, and
+ * numbers come from a Float64Array without being boxed on the way (as a fast
+ * serialiser is generated from a schema). The names are this file's literals,
+ * never data.
  */
-const NUM_SLOTS = 4096; // a power of two
-const numKey = new Float64Array(NUM_SLOTS).fill(Number.NaN);
-const numText: string[] = new Array<string>(NUM_SLOTS).fill('');
-const numBits = new Float64Array(1);
-const numWords = new Int32Array(numBits.buffer);
-
-/** A JSON number as JSON.stringify writes it (null for NaN and ±Infinity). */
-function num(x: number): string {
-  numBits[0] = x;
-  const slot = (numWords[0] ^ numWords[1] ^ (numWords[1] >>> 12)) & (NUM_SLOTS - 1);
-  if (numKey[slot] === x) return numText[slot]; // NaN never equals: it is never found
-  const text = Number.isFinite(x) ? String(x) : 'null';
-  numKey[slot] = x;
-  numText[slot] = text;
-  return text;
+function rec<T>(...keys: Array<keyof T & string>): Rec {
+  if (keys.length > MAX_FIELDS) throw new RangeError(`a record of more than ${MAX_FIELDS} fields`);
+  const names = keys.map((k) => JSON.stringify(k));
+  const value = (n: number) => `(isNum & ${1 << n} ? num[${n}] : val[${n}])`;
+  const code = [
+    `if (left === 0) return {${names.map((k, n) => `${k}: ${value(n)}`).join(', ')}};`,
+    `const o = {${names[0]}: ${value(0)}};`,
+    ...names.slice(1).map((k, m) => `if (!(left & ${1 << (m + 1)})) o[${k}] = ${value(m + 1)};`),
+    'return o;',
+  ].join('\n');
+  const build = new Function('num', 'val', 'isNum', 'left', code) as Rec['build'];
+  return { keys, json: names.map((k, n) => `${n === 0 ? '' : ','}${k}:`), build };
 }
 
-/** A nullable JSON number. */
-function opt(x: number | null): string {
-  return x === null ? 'null' : num(x);
+// The key order of the solution: written here once, for both writers.
+const SOLUTION = rec<Solution>('format', 'name', 'shafts', 'reactions', 'gearMeshes', 'couplings', 'equilibrium', 'checks', 'warnings', 'stats');
+const SHAFT = rec<ShaftResult>('id', 'name', 'length', 'stations', 'segments', 'totalTwist', 'diagram');
+const STATION = rec<Station>('z', 'rotation', 'torqueLeft', 'torqueRight');
+const SEGMENT = rec<SegmentResult>(
+  'index',
+  'section',
+  'from',
+  'to',
+  'torsionConstant',
+  'torsionalRigidity',
+  'stiffness',
+  'maxAbsTorque',
+  'governingZ',
+  'maxTwistRate',
+  'twist',
+  'layers',
+);
+const LAYER = rec<LayerResult>('material', 'outerRadius', 'maxShear', 'allowableShear', 'utilisation', 'shearYield');
+const DIAGRAM = rec<Diagram>('z', 'torque', 'rotation', 'shear');
+const REACTION = rec<ReactionResult>('support', 'shaft', 'kind', 'torque', 'rotation');
+const GEAR_MESH = rec<GearMeshResult>('gearMesh', 'force', 'torqueA', 'torqueB', 'radiusA', 'radiusB', 'gap');
+const COUPLING = rec<CouplingResult>('coupling', 'torqueA', 'torqueB', 'twist');
+const EQUILIBRIUM = rec<Solution['equilibrium']>('maxResidual', 'shafts');
+const RESIDUAL = rec<Solution['equilibrium']['shafts'][number]>('shaft', 'residual');
+const CHECK = rec<CheckResult>('kind', 'shaft', 'value', 'limit', 'utilisation', 'pass', 'segment', 'layer', 'material');
+const WARNING = rec<Warning>('code', 'message', 'shafts', 'connections');
+const STATS = rec<Solution['stats']>('stations', 'unknowns', 'factorNonzeros', 'checksEvaluated');
+
+const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist'] as const;
+
+/**
+ * What the walk writes with. Each value is the next field of the innermost
+ * open object (named by its record) or the next item of the innermost open
+ * list; `absent` leaves an optional field out.
+ */
+interface Writer {
+  open(r: Rec): void;
+  list(): void;
+  close(): void;
+  num(x: number): void;
+  optNum(x: number | null): void;
+  str(s: string): void;
+  bool(b: boolean): void;
+  absent(): void;
+  /** A list of the numbers a[from … to − 1]. */
+  series(a: Float64Array, from: number, to: number): void;
+  /** A list of strings. */
+  strings(a: readonly string[]): void;
+}
+
+/** The one walk over a solve: every field of the solution, in order. */
+function walkSolution(sv: Solved, w: Writer): void {
+  const { model, layout, rec: r } = sv;
+  const { z, shaftStart } = layout;
+  const { phi, TL, TR, segBase, segMaxAbs, segAt, segTwist, layerBase, layerMaxShear, diagStart, diagCount } = r;
+  w.open(SOLUTION);
+  w.str(SOLUTION_FORMAT);
+  w.str(model.name);
+  w.list();
+  model.shafts.forEach((shaft, s) => {
+    w.open(SHAFT);
+    w.str(shaft.id);
+    if (shaft.name === undefined) w.absent();
+    else w.str(shaft.name);
+    w.num(shaft.length);
+    w.list();
+    const first = shaftStart[s];
+    const last = shaftStart[s + 1] - 1;
+    for (let d = first; d <= last; d++) {
+      w.open(STATION);
+      w.num(z[d]);
+      w.num(phi[d]);
+      w.optNum(d === first ? null : TR[d - 1 - s]);
+      w.optNum(d === last ? null : TL[d - s]);
+      w.close();
+    }
+    w.close();
+    w.list();
+    shaft.segments.forEach((sg, k) => {
+      const g = segBase[s] + k;
+      const maxAbs = segMaxAbs[g];
+      let J = 0;
+      for (const l of sg.layers) J += l.J;
+      w.open(SEGMENT);
+      w.num(k);
+      w.str(sg.sectionId);
+      w.num(sg.z0);
+      w.num(sg.z1);
+      w.num(J);
+      w.num(sg.rigidity);
+      w.num(sg.rigidity / (sg.z1 - sg.z0));
+      w.num(maxAbs);
+      w.num(segAt[g]);
+      w.num(maxAbs / sg.rigidity);
+      w.num(segTwist[g]);
+      w.list();
+      sg.layers.forEach((l, j) => {
+        const maxShear = layerMaxShear[layerBase[g] + j];
+        w.open(LAYER);
+        w.str(l.materialId);
+        w.num(l.rOuter);
+        w.num(maxShear);
+        w.optNum(l.allowableShear);
+        w.optNum(l.allowableShear === null ? null : maxShear / l.allowableShear);
+        w.optNum(l.shearYield);
+        w.close();
+      });
+      w.close();
+      w.close();
+    });
+    w.close();
+    w.num(r.totalTwist[s]);
+    const from = diagStart[s];
+    const to = from + diagCount[s];
+    w.open(DIAGRAM);
+    w.series(r.dZ, from, to);
+    w.series(r.dT, from, to);
+    w.series(r.dPhi, from, to);
+    w.series(r.dTau, from, to);
+    w.close();
+    w.close();
+  });
+  w.close();
+  w.list();
+  for (const x of r.reactions) {
+    w.open(REACTION);
+    w.str(x.support);
+    w.str(x.shaft);
+    w.str(x.kind);
+    w.num(x.torque);
+    w.num(x.rotation);
+    w.close();
+  }
+  w.close();
+  w.list();
+  for (const g of r.gearMeshes) {
+    w.open(GEAR_MESH);
+    w.str(g.gearMesh);
+    w.num(g.force);
+    w.num(g.torqueA);
+    w.num(g.torqueB);
+    w.num(g.radiusA);
+    w.num(g.radiusB);
+    w.num(g.gap);
+    w.close();
+  }
+  w.close();
+  w.list();
+  for (const c of r.couplings) {
+    w.open(COUPLING);
+    w.str(c.coupling);
+    w.num(c.torqueA);
+    w.num(c.torqueB);
+    w.num(c.twist);
+    w.close();
+  }
+  w.close();
+  w.open(EQUILIBRIUM);
+  w.num(sv.maxResidual);
+  w.list();
+  model.shafts.forEach((shaft, s) => {
+    w.open(RESIDUAL);
+    w.str(shaft.id);
+    w.num(r.residual[s]);
+    w.close();
+  });
+  w.close();
+  w.close();
+  w.list();
+  const c = r.checks;
+  for (let k = 0; k < c.listed.length; k++) {
+    const m = c.listed[k];
+    const shaft = model.shafts[c.shaft[m]];
+    const kind = c.kind[m];
+    w.open(CHECK);
+    w.str(CHECK_KINDS[kind]);
+    w.str(shaft.id);
+    w.num(c.value[m]);
+    w.num(c.limit[m]);
+    w.num(c.utilisation[m]);
+    w.bool(c.value[m] <= c.limit[m]);
+    if (kind === 2) w.absent();
+    else w.num(c.segment[m]);
+    if (kind === 0) {
+      w.num(c.layer[m]);
+      w.str(shaft.segments[c.segment[m]].layers[c.layer[m]].materialId);
+    } else {
+      w.absent();
+      w.absent();
+    }
+    w.close();
+  }
+  w.close();
+  w.list();
+  for (const x of sv.warnings) {
+    w.open(WARNING);
+    w.str(x.code);
+    w.str(x.message);
+    if (x.shafts === undefined) w.absent();
+    else w.strings(x.shafts);
+    if (x.connections === undefined) w.absent();
+    else w.strings(x.connections);
+    w.close();
+  }
+  w.close();
+  w.open(STATS);
+  w.num(sv.stats.stations);
+  w.num(sv.stats.unknowns);
+  w.num(sv.stats.factorNonzeros);
+  w.num(sv.stats.checksEvaluated);
+  w.close();
+  w.close();
+}
+
+/** The solution object (plain objects and arrays, nothing from the workspace). */
+export function toSolution(sv: Solved): Solution {
+  const w = new ObjectWriter();
+  walkSolution(sv, w);
+  return w.result as Solution;
 }
 
 /**
@@ -139,116 +305,224 @@ function opt(x: number | null): string {
  * `pieceChars` characters (the whole text in one piece when it is shorter).
  */
 export function writeSolutionJson(sv: Solved, sink: (text: string) => void, pieceChars = 1 << 20): void {
-  const { model, layout, rec } = sv;
-  const { z, shaftStart } = layout;
-  const { phi, TL, TR, segBase, segMaxAbs, segAt, segTwist, layerBase, layerMaxShear, diagStart, diagCount } = rec;
-  numKey.fill(Number.NaN);
-  let out = '';
-  const flush = () => {
-    if (out.length >= pieceChars) {
-      sink(out);
-      out = '';
-    }
-  };
-  // Ids repeat (a section or material on every segment): quote each once.
-  const quoted = new Map<string, string>();
-  const str = (v: string) => {
-    let q = quoted.get(v);
-    if (q === undefined) quoted.set(v, (q = JSON.stringify(v)));
-    return q;
-  };
-  const series = (a: Float64Array, from: number, to: number) => {
-    out += '[';
-    for (let k = from; k < to; k++) {
-      out += (k === from ? '' : ',') + num(a[k]);
-      if ((k & 4095) === 4095) flush();
-    }
-    out += ']';
-  };
+  const w = new JsonWriter(sink, pieceChars, sv.layout.dofCount);
+  walkSolution(sv, w);
+  w.end();
+}
 
-  out += `{"format":${str(SOLUTION_FORMAT)},"name":${JSON.stringify(model.name)},"shafts":[`;
-  model.shafts.forEach((shaft, s) => {
-    out += `${s === 0 ? '' : ','}{"id":${str(shaft.id)},`;
-    if (shaft.name !== undefined) out += `"name":${JSON.stringify(shaft.name)},`;
-    out += `"length":${num(shaft.length)},"stations":[`;
-    const first = shaftStart[s];
-    const last = shaftStart[s + 1] - 1;
-    for (let d = first; d <= last; d++) {
-      out +=
-        `${d === first ? '' : ','}{"z":${num(z[d])},"rotation":${num(phi[d])},` +
-        `"torqueLeft":${d === first ? 'null' : num(TR[d - 1 - s])},"torqueRight":${d === last ? 'null' : num(TL[d - s])}}`;
-      if ((d & 1023) === 1023) flush();
-    }
-    out += '],"segments":[';
-    shaft.segments.forEach((sg, k) => {
-      const g = segBase[s] + k;
-      const maxAbs = segMaxAbs[g];
-      out +=
-        `${k === 0 ? '' : ','}{"index":${k},"section":${str(sg.sectionId)},"from":${num(sg.z0)},"to":${num(sg.z1)},` +
-        `"torsionalRigidity":${num(sg.rigidity)},"maxAbsTorque":${num(maxAbs)},"governingZ":${num(segAt[g])},` +
-        `"maxTwistRate":${num(maxAbs / sg.rigidity)},"twist":${num(segTwist[g])},"layers":[`;
-      sg.layers.forEach((l, j) => {
-        const maxShear = layerMaxShear[layerBase[g] + j];
-        out +=
-          `${j === 0 ? '' : ','}{"material":${str(l.materialId)},"outerRadius":${num(l.rOuter)},"maxShear":${num(maxShear)},` +
-          `"allowableShear":${opt(l.allowableShear)},"utilisation":${l.allowableShear === null ? 'null' : num(maxShear / l.allowableShear)},` +
-          `"shearYield":${opt(l.shearYield)}}`;
-      });
-      out += ']}';
-      if ((k & 1023) === 1023) flush();
-    });
-    const from = diagStart[s];
-    const to = from + diagCount[s];
-    out += `],"totalTwist":${num(rec.totalTwist[s])},"diagram":{"z":`;
-    series(rec.dZ, from, to);
-    out += ',"torque":';
-    series(rec.dT, from, to);
-    out += ',"rotation":';
-    series(rec.dPhi, from, to);
-    out += ',"shear":';
-    series(rec.dTau, from, to);
-    out += '}}';
-    flush();
-  });
-  out += '],"reactions":[';
-  rec.reactions.forEach((r, k) => {
-    out +=
-      `${k === 0 ? '' : ','}{"support":${str(r.support)},"shaft":${str(r.shaft)},"kind":${str(r.kind)},` +
-      `"torque":${num(r.torque)},"rotation":${num(r.rotation)}}`;
-    if ((k & 1023) === 1023) flush();
-  });
-  out += '],"gearMeshes":[';
-  rec.gearMeshes.forEach((g, k) => {
-    out +=
-      `${k === 0 ? '' : ','}{"gearMesh":${str(g.gearMesh)},"force":${num(g.force)},"torqueA":${num(g.torqueA)},"torqueB":${num(g.torqueB)},` +
-      `"radiusA":${num(g.radiusA)},"radiusB":${num(g.radiusB)},"gap":${num(g.gap)}}`;
-    if ((k & 1023) === 1023) flush();
-  });
-  out += '],"couplings":[';
-  rec.couplings.forEach((c, k) => {
-    out += `${k === 0 ? '' : ','}{"coupling":${str(c.coupling)},"torqueA":${num(c.torqueA)},"torqueB":${num(c.torqueB)},"twist":${num(c.twist)}}`;
-    if ((k & 1023) === 1023) flush();
-  });
-  out += `],"equilibrium":{"maxResidual":${num(sv.maxResidual)},"shafts":[`;
-  model.shafts.forEach((shaft, s) => {
-    out += `${s === 0 ? '' : ','}{"shaft":${str(shaft.id)},"residual":${num(rec.residual[s])}}`;
-    if ((s & 1023) === 1023) flush();
-  });
-  out += ']},"checks":[';
-  const c = rec.checks;
-  for (let k = 0; k < c.listed.length; k++) {
-    const m = c.listed[k];
-    const s = c.shaft[m];
-    out +=
-      `${k === 0 ? '' : ','}{"kind":"${CHECK_KINDS[c.kind[m]]}","shaft":${str(model.shafts[s].id)},"value":${num(c.value[m])},` +
-      `"limit":${num(c.limit[m])},"utilisation":${num(c.utilisation[m])},"pass":${c.value[m] <= c.limit[m]}`;
-    if (c.kind[m] === 0) {
-      const material = model.shafts[s].segments[c.segment[m]].layers[c.layer[m]].materialId;
-      out += `,"segment":${c.segment[m]},"layer":${c.layer[m]},"material":${str(material)}`;
-    } else if (c.kind[m] === 1) out += `,"segment":${c.segment[m]}`;
-    out += '}';
-    if ((k & 1023) === 1023) flush();
+/** Builds plain objects and arrays. */
+class ObjectWriter implements Writer {
+  result: unknown = undefined;
+  // The innermost open object or list: its record (null: a list); of a list, the list; of an object,
+  // its values so far (numbers apart, so that they are never boxed), which fields are numbers, the
+  // next field, and which fields were left out. An object is built when it closes.
+  private rec: Rec | null = null;
+  private items: unknown[] = [];
+  private nums: Float64Array = new Float64Array(MAX_FIELDS);
+  private vals: unknown[] = [];
+  private isNum = 0;
+  private field = 0;
+  private left = 0;
+  private depth = -1;
+  /** The same of the enclosing ones, outermost first (buffers stay with their depth, for reuse). */
+  private readonly outer: Array<{ rec: Rec | null; items: unknown[]; nums: Float64Array; vals: unknown[]; isNum: number; field: number; left: number }> = [];
+
+  private put(v: unknown): void {
+    if (this.rec !== null) this.vals[this.field++] = v;
+    else if (this.depth >= 0) this.items.push(v);
+    else this.result = v;
   }
-  out += `],"warnings":${JSON.stringify(sv.warnings)},"stats":${JSON.stringify(sv.stats)}}`;
-  sink(out);
+
+  /** Saves the current frame and makes the next depth's buffers current. */
+  private enter(rec: Rec | null): void {
+    if (this.depth >= 0) {
+      const o = this.outer[this.depth];
+      o.rec = this.rec;
+      o.items = this.items;
+      o.isNum = this.isNum;
+      o.field = this.field;
+      o.left = this.left;
+    }
+    const d = ++this.depth;
+    if (this.outer.length === d) {
+      this.outer.push({ rec: null, items: [], nums: new Float64Array(MAX_FIELDS), vals: new Array<unknown>(MAX_FIELDS).fill(undefined), isNum: 0, field: 0, left: 0 });
+    }
+    const o = this.outer[d];
+    this.rec = rec;
+    this.nums = o.nums;
+    this.vals = o.vals;
+    this.isNum = 0;
+    this.field = 0;
+    this.left = 0;
+  }
+
+  open(r: Rec): void {
+    this.enter(r);
+  }
+  list(): void {
+    this.enter(null);
+    this.items = [];
+  }
+  close(): void {
+    let done: unknown;
+    if (this.rec === null) done = this.items;
+    else {
+      done = this.rec.build(this.nums, this.vals, this.isNum, this.left);
+      if (this.isNum !== (1 << this.field) - 1) this.vals.fill(undefined, 0, this.field);
+    }
+    const d = --this.depth;
+    if (d >= 0) {
+      const o = this.outer[d];
+      this.rec = o.rec;
+      this.items = o.items;
+      this.nums = o.nums;
+      this.vals = o.vals;
+      this.isNum = o.isNum;
+      this.field = o.field;
+      this.left = o.left;
+    } else this.rec = null;
+    this.put(done);
+  }
+  num(x: number): void {
+    if (this.rec === null) this.put(x);
+    else {
+      this.nums[this.field] = x;
+      this.isNum |= 1 << this.field++;
+    }
+  }
+  optNum(x: number | null): void {
+    if (x === null) this.put(null);
+    else this.num(x);
+  }
+  str(s: string): void {
+    this.put(s);
+  }
+  bool(b: boolean): void {
+    this.put(b);
+  }
+  absent(): void {
+    this.left |= 1 << this.field++;
+  }
+  series(a: Float64Array, from: number, to: number): void {
+    this.put(Array.from(a.subarray(from, to)));
+  }
+  strings(a: readonly string[]): void {
+    this.put([...a]);
+  }
+}
+
+/**
+ * Writes JSON text as JSON.stringify would, in pieces. The text of numbers
+ * written lately is kept, for this walk only, in a small direct-mapped table
+ * keyed by the bits of the double: most numbers of an answer appear more than
+ * once (a station's z, rotation and torques again in the diagram, a segment's
+ * peak torque again in its layers and its checks), and turning a double into
+ * its shortest text costs more than looking it up.
+ */
+class JsonWriter implements Writer {
+  private out = '';
+  private readonly recs: Array<Rec | null> = [];
+  /** Of each open object: its next field; of each open list: items written. */
+  private readonly count: number[] = [];
+  private depth = -1;
+  // The number-text table: a power of two of slots, more for larger answers (at most 4096).
+  private readonly slots: number;
+  private readonly numKey: Float64Array;
+  private readonly numText: string[];
+  private readonly numBits = new Float64Array(1);
+  private readonly numWords = new Int32Array(this.numBits.buffer);
+  /** Ids repeat (a section or material on every segment): each is quoted once. */
+  private readonly quoted = new Map<string, string>();
+
+  constructor(
+    private readonly sink: (text: string) => void,
+    private readonly pieceChars: number,
+    stations: number,
+  ) {
+    this.slots = Math.min(4096, 1 << Math.ceil(Math.log2(Math.max(64, 4 * stations))));
+    this.numKey = new Float64Array(this.slots).fill(Number.NaN);
+    this.numText = new Array<string>(this.slots).fill('');
+  }
+
+  /** The text before the next value: its key, or a comma between list items. */
+  private before(): string {
+    const d = this.depth;
+    const r = this.recs[d];
+    if (r === null) return this.count[d]++ === 0 ? '' : ',';
+    return r.json[this.count[d]++];
+  }
+
+  /** A JSON number as JSON.stringify writes it (null for NaN and ±Infinity). */
+  private text(x: number): string {
+    this.numBits[0] = x;
+    const w = this.numWords;
+    const slot = (w[0] ^ w[1] ^ (w[1] >>> 12)) & (this.slots - 1);
+    if (this.numKey[slot] === x) return this.numText[slot]; // NaN never equals: it is never found
+    const text = Number.isFinite(x) ? String(x) : 'null';
+    this.numKey[slot] = x;
+    this.numText[slot] = text;
+    return text;
+  }
+
+  private quote(s: string): string {
+    let q = this.quoted.get(s);
+    if (q === undefined) this.quoted.set(s, (q = JSON.stringify(s)));
+    return q;
+  }
+
+  private push(r: Rec | null, bracket: string): void {
+    this.out += (this.depth < 0 ? '' : this.before()) + bracket;
+    const d = ++this.depth;
+    this.recs[d] = r;
+    this.count[d] = 0;
+  }
+
+  open(r: Rec): void {
+    this.push(r, '{');
+  }
+  list(): void {
+    this.push(null, '[');
+  }
+  close(): void {
+    this.out += this.recs[this.depth--] === null ? ']' : '}';
+    if (this.out.length >= this.pieceChars) {
+      this.sink(this.out);
+      this.out = '';
+    }
+  }
+  num(x: number): void {
+    this.out += this.before() + this.text(x);
+  }
+  optNum(x: number | null): void {
+    this.out += this.before() + (x === null ? 'null' : this.text(x));
+  }
+  str(s: string): void {
+    this.out += this.before() + this.quote(s);
+  }
+  bool(b: boolean): void {
+    this.out += this.before() + (b ? 'true' : 'false');
+  }
+  absent(): void {
+    this.count[this.depth]++;
+  }
+  series(a: Float64Array, from: number, to: number): void {
+    this.out += this.before() + '[';
+    for (let k = from; k < to; k++) {
+      this.out += (k === from ? '' : ',') + this.text(a[k]);
+      if ((k & 4095) === 4095 && this.out.length >= this.pieceChars) {
+        this.sink(this.out);
+        this.out = '';
+      }
+    }
+    this.out += ']';
+  }
+  strings(a: readonly string[]): void {
+    this.out += this.before() + '[' + a.map((s) => this.quote(s)).join(',') + ']';
+  }
+
+  /** Hands over the rest of the text. */
+  end(): void {
+    this.sink(this.out);
+    this.out = '';
+  }
 }

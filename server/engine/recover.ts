@@ -6,18 +6,24 @@
  *   φ(s) = φ1 + (T1·s − t1·s²/2 − (t2 − t1)·s³/(6h)) / GJ,
  * with T1 = k·(φ2 − φ1) + f1 (k = GJ/h, f1 the consistent load share at the
  * left end), so T(z), φ(z) and τ(z) are exact between stations too.
+ *
+ * The stages, in the order the pipeline runs them: rotations of every dof
+ * (`expandRotations`), element end torques (`elementTorques`), what supports
+ * and connections carry (`jointTorques`), per-segment and per-shaft results
+ * with the diagrams (`recoverShafts`), and the checks (`buildChecks`).
  */
 import { Matrix, pseudoInverse } from 'ml-matrix';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
-import { consistentLeft, consistentRight, readSpring, spring, type Assembly } from './assemble.js';
+import { consistentLeft, consistentRight, SpringCursor, type ElasticParts, type SpringSet } from './assemble.js';
+import type { Reduction } from './constraints.js';
 import type { CouplingResult, GearMeshResult, ReactionResult, Warning } from '../../shared-types/solution.js';
-import { f64, f64Copy, i32, i32Copy, release, u8 } from './arena.js';
+import type { Workspace } from './workspace.js';
 
 /**
- * Everything recovered, in columns (typed arrays from the arena) rather than
- * in millions of small objects: `output.ts` writes it out as the solution
- * object or straight to JSON text. Segments and layers are numbered across
+ * Everything recovered, in columns (typed arrays from the workspace) rather
+ * than in millions of small objects, gathered by the pipeline from the stages
+ * below; `output.ts` walks it into the solution object or its JSON text. Segments and layers are numbered across
  * all shafts: shaft s has segments segBase[s] … segBase[s + 1] − 1, and global
  * segment g has layers layerBase[g] … layerBase[g + 1] − 1.
  */
@@ -49,7 +55,6 @@ export interface Recovered {
   readonly gearMeshes: GearMeshResult[];
   readonly couplings: CouplingResult[];
   readonly checks: CheckColumns;
-  readonly warnings: Warning[];
 }
 
 /** The checks evaluated, and the order of those listed (worst first). */
@@ -70,9 +75,9 @@ export interface CheckColumns {
 }
 
 /** Rotation of every dof from the reduced unknowns. */
-export function expandRotations(asm: Assembly, x: Float64Array): Float64Array {
-  const { varOf, alpha, beta } = asm.reduction;
-  const phi = f64(varOf.length);
+export function expandRotations(red: Reduction, x: Float64Array, ws: Workspace): Float64Array {
+  const { varOf, alpha, beta } = red;
+  const phi = ws.f64(varOf.length);
   for (let d = 0; d < phi.length; d++) {
     const u = varOf[d];
     phi[d] = u >= 0 ? alpha[d] * x[u] + beta[d] : beta[d];
@@ -80,15 +85,18 @@ export function expandRotations(asm: Assembly, x: Float64Array): Float64Array {
   return phi;
 }
 
-/** Everything from the rotations. `diagramPoints` interior samples per loaded element. */
-export function recover(model: ResolvedModel, layout: StationLayout, asm: Assembly, phi: Float64Array, diagramPoints: number): Recovered {
-  const { springs, edges, load } = asm;
-  const { z, elemLeft, shaftStart, elemT1, elemT2 } = layout;
-  const elemCount = springs.elemCount;
+/** T(z+) at the left end and T(z−) at the right end of every element, N·m. */
+export interface ElementTorques {
+  readonly TL: Float64Array;
+  readonly TR: Float64Array;
+}
 
-  // Element end torques.
-  const TL = f64(elemCount); // T(z1+)
-  const TR = f64(elemCount); // T(z2−)
+/** Element end torques: k·(φ2 − φ1) plus or minus the consistent load share. */
+export function elementTorques(layout: StationLayout, springs: SpringSet, phi: Float64Array, ws: Workspace): ElementTorques {
+  const { z, elemLeft, elemT1, elemT2 } = layout;
+  const elemCount = springs.elemCount;
+  const TL = ws.f64(elemCount); // T(z1+)
+  const TR = ws.f64(elemCount); // T(z2−)
   for (let e = 0; e < elemCount; e++) {
     const d = elemLeft[e];
     const kd = springs.k[e] * (phi[d + 1] - phi[d]);
@@ -99,11 +107,35 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     TL[e] = kd + (loaded ? consistentLeft(h, t1, t2) : 0);
     TR[e] = kd - (loaded ? consistentRight(h, t1, t2) : 0);
   }
+  return { TL, TR };
+}
+
+/** What supports and connections do: their results, each shaft's residual, and where T may jump. */
+export interface JointTorques {
+  readonly reactions: ReactionResult[];
+  readonly gearMeshes: GearMeshResult[];
+  readonly couplings: CouplingResult[];
+  /** Per shaft: |Σ torques|, N·m. */
+  readonly residual: Float64Array;
+  /** 1 at stations where T may jump: a point torque, a support or a connection acts there. */
+  readonly jumps: Uint8Array;
+}
+
+/**
+ * Torques of supports, meshes and couplings from the rotations: a spring's
+ * from its stretch, a rigid part's from the multiplier λ that balances every
+ * dof (K·φ − F = Σ λ·a), and the equilibrium residual of every shaft summed
+ * from them (not assumed).
+ */
+export function jointTorques(model: ResolvedModel, layout: StationLayout, parts: ElasticParts, phi: Float64Array, ws: Workspace): JointTorques {
+  const { springs, edges, load } = parts;
+  const elemCount = springs.elemCount;
 
   // Torque each elastic part puts on its dofs, and the constraint torque every dof needs: r = K·φ − F.
-  const need = f64(layout.dofCount);
+  const need = ws.f64(layout.dofCount);
+  const spring = new SpringCursor(springs);
   for (let m = 0; m < springs.count; m++) {
-    readSpring(springs, m);
+    spring.read(m);
     const { i, j, p, q } = spring;
     const g = p * phi[i] + (j >= 0 ? q * phi[j] : 0) - spring.c;
     const f = springs.k[m] * g;
@@ -111,29 +143,11 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
     if (j >= 0) need[j] += f * q;
   }
   for (let d = 0; d < need.length; d++) need[d] -= load[d];
-  const lambda = constraintTorques(edges, need);
-  release(need);
-
-  const warnings: Warning[] = [];
-  for (const loop of asm.reduction.lockedLoops) {
-    warnings.push({
-      code: 'SN_LOCKED_LOOP',
-      message: `rigid connections ${loop.join(', ')} form a loop whose ratios do not multiply to one: the stations they join cannot turn`,
-      connections: [...loop],
-    });
-  }
-  for (const tie of asm.reduction.redundantTies) {
-    warnings.push({
-      code: 'SN_RIGID_SPLIT',
-      message: `${tie.join(', ')} tie the same rotations rigidly more than once: how they share torque is not decided by a rigid model; the least-squares split is shown (make one compliant to decide it)`,
-      connections: [...tie],
-    });
-  }
+  const lambda = constraintTorques(edges, need, ws);
 
   // Reactions, mesh and coupling results, and the torque each puts on each dof.
-  const applied = f64(layout.dofCount); // torques from supports and connections, per dof
-  // Stations where T may jump: a point torque, a support or a connection acts there.
-  const jumps = u8(layout.dofCount);
+  const applied = ws.f64(layout.dofCount); // torques from supports and connections, per dof
+  const jumps = ws.u8(layout.dofCount);
   for (const t of model.torques) jumps[layout.stationAt(t.shaft, t.z)] = 1;
   const reactions: ReactionResult[] = model.supports.map((s) => ({
     support: s.id,
@@ -175,29 +189,44 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
   };
   edges.forEach((e, n) => put(e.kind, e.ref, e.i, e.j, lambda[n] * e.p, lambda[n] * e.q, -lambda[n]));
   for (let m = elemCount; m < springs.count; m++) {
-    readSpring(springs, m);
+    spring.read(m);
     const { i, j, p, q } = spring;
     const f = springs.k[m] * (p * phi[i] + (j >= 0 ? q * phi[j] : 0) - spring.c);
     put(springs.kind[m - elemCount], springs.ref[m - elemCount], i, j, -f * p, -f * q, f);
   }
 
   // Equilibrium of every shaft, summed from the recovered torques (not assumed).
-  const sums = f64(model.shafts.length);
+  const sums = ws.f64(model.shafts.length);
   for (let d = 0; d < applied.length; d++) sums[layout.shaftOf[d]] += applied[d];
-  release(applied);
   for (const t of model.torques) sums[t.shaft] += t.torque;
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
   for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
 
-  // The assembly is read no more: its space goes to the per-shaft results.
-  release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
-  const cols = recoverShafts(model, layout, phi, TL, TR, jumps, diagramPoints);
-  release(jumps);
-  const checks = buildChecks(model, cols);
+  for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
+  return { reactions, gearMeshes, couplings, residual: sums, jumps };
+}
+
+/** Warnings of a solved model: locked loops and rigid splits of the reduction, materials without an allowable. */
+export function recoveryWarnings(model: ResolvedModel, red: Reduction): Warning[] {
+  const warnings: Warning[] = [];
+  for (const loop of red.lockedLoops) {
+    warnings.push({
+      code: 'SN_LOCKED_LOOP',
+      message: `rigid connections ${loop.join(', ')} form a loop whose ratios do not multiply to one: the stations they join cannot turn`,
+      connections: [...loop],
+    });
+  }
+  for (const tie of red.redundantTies) {
+    warnings.push({
+      code: 'SN_RIGID_SPLIT',
+      message: `${tie.join(', ')} tie the same rotations rigidly more than once: how they share torque is not decided by a rigid model; the least-squares split is shown (make one compliant to decide it)`,
+      connections: [...tie],
+    });
+  }
   for (const mat of missingAllowables(model)) {
     warnings.push({ code: 'SN_NO_ALLOWABLE', message: `material "${mat}" has no allowableShear: its stresses are reported but not checked` });
   }
-  return { phi, TL, TR, ...cols, residual: sums, reactions, gearMeshes, couplings, checks, warnings };
+  return warnings;
 }
 
 /**
@@ -205,29 +234,29 @@ export function recover(model: ResolvedModel, layout: StationLayout, asm: Assemb
  * Peels dofs with a single undecided edge (trees: exact, linear time); loops
  * that remain are solved together by least squares (minimum norm).
  */
-function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float64Array {
-  const lambda = f64(edges.length);
+function constraintTorques(edges: ElasticParts['edges'], need: Float64Array, ws: Workspace): Float64Array {
+  const lambda = ws.f64(edges.length);
   if (edges.length === 0) return lambda;
   // Incidence of dofs and edges in compressed rows (a dof appears once per edge, even if the edge ties it to itself).
   const nDof = need.length;
-  const rest = i32(nDof); // undecided edges at each dof
+  const rest = ws.i32(nDof); // undecided edges at each dof
   const ends = (e: (typeof edges)[number]) => (e.j >= 0 && e.j !== e.i ? 2 : 1);
   for (const e of edges) {
     rest[e.i]++;
     if (ends(e) === 2) rest[e.j]++;
   }
-  const rowStart = i32(nDof + 1);
+  const rowStart = ws.i32(nDof + 1);
   for (let d = 0; d < nDof; d++) rowStart[d + 1] = rowStart[d] + rest[d];
-  const incident = i32(rowStart[nDof]);
-  const fill = i32Copy(rowStart, nDof);
+  const incident = ws.i32(rowStart[nDof]);
+  const fill = ws.i32Copy(rowStart, nDof);
   edges.forEach((e, n) => {
     incident[fill[e.i]++] = n;
     if (ends(e) === 2) incident[fill[e.j]++] = n;
   });
   const coef = (e: (typeof edges)[number], d: number) => (e.i === d ? e.p : 0) + (e.j === d ? e.q : 0);
-  const decided = u8(edges.length);
-  const residual = f64Copy(need, nDof);
-  const stack = i32(2 * rowStart[nDof]); // a dof is pushed at most once at the start and once per edge it loses
+  const decided = ws.u8(edges.length);
+  const residual = ws.f64Copy(need, nDof);
+  const stack = ws.i32(2 * rowStart[nDof]); // a dof is pushed at most once at the start and once per edge it loses
   let sp = 0;
   for (let d = 0; d < nDof; d++) if (rest[d] === 1) stack[sp++] = d;
   while (sp > 0) {
@@ -259,7 +288,6 @@ function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float6
       }
     }
   }
-  release(rest, rowStart, incident, fill, stack);
   const open = edges.map((_, n) => n).filter((n) => !decided[n]);
   if (open.length === 0) return lambda;
   const dofs = [...new Set(open.flatMap((n) => [edges[n].i, edges[n].j]).filter((d) => d >= 0))];
@@ -276,36 +304,37 @@ function constraintTorques(edges: Assembly['edges'], need: Float64Array): Float6
   return lambda;
 }
 
-type ShaftColumns = Pick<
+export type ShaftColumns = Pick<
   Recovered,
   'segBase' | 'segMaxAbs' | 'segAt' | 'segTwist' | 'layerBase' | 'layerMaxShear' | 'totalTwist' | 'diagStart' | 'diagCount' | 'dZ' | 'dT' | 'dPhi' | 'dTau'
 >;
 
 /** Per segment, per layer and per shaft extremes, and the diagrams, of every shaft. */
-function recoverShafts(
+export function recoverShafts(
   model: ResolvedModel,
   layout: StationLayout,
   phi: Float64Array,
-  TL: Float64Array,
-  TR: Float64Array,
+  ends: ElementTorques,
   jumps: Uint8Array,
   diagramPoints: number,
+  ws: Workspace,
 ): ShaftColumns {
+  const { TL, TR } = ends;
   const { z, shaftStart, elemSegment, elemT1, elemT2 } = layout;
   const nShafts = model.shafts.length;
   // Global numbering of segments and layers.
-  const segBase = i32(nShafts + 1);
+  const segBase = ws.i32(nShafts + 1);
   for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
   const nSegments = segBase[nShafts];
-  const layerBase = i32(nSegments + 1);
+  const layerBase = ws.i32(nSegments + 1);
   for (let s = 0, g = 0; s < nShafts; s++) {
     for (const sg of model.shafts[s].segments) layerBase[g + 1] = layerBase[g++] + sg.layers.length;
   }
   // Diagram: breakpoints (two at a jump) plus interior points of loaded elements,
   // at most DIAGRAM_INTERIOR_BUDGET of them per shaft: with that many elements the
   // breakpoints alone already trace the curve. Room for the most points a shaft can have.
-  const interior = i32(nShafts);
-  const diagStart = i32(nShafts + 1);
+  const interior = ws.i32(nShafts);
+  const diagStart = ws.i32(nShafts + 1);
   for (let s = 0; s < nShafts; s++) {
     const e0 = shaftStart[s] - s;
     const elemN = shaftStart[s + 1] - shaftStart[s] - 1;
@@ -320,17 +349,17 @@ function recoverShafts(
     diagStart[s + 1] = diagStart[s] + 1 + jumped + interior[s] * loaded + elemN;
   }
   const room = diagStart[nShafts];
-  const dZ = f64(room);
-  const dT = f64(room);
-  const dPhi = f64(room);
-  const dTau = f64(room);
-  const diagCount = i32(nShafts);
-  const segMax = f64(nSegments);
-  const segAt = f64(nSegments);
-  const segPhiFrom = f64(nSegments).fill(Number.NaN);
-  const segPhiTo = f64(nSegments);
-  const totalTwist = f64(nShafts);
-  const roots = f64(2);
+  const dZ = ws.f64(room);
+  const dT = ws.f64(room);
+  const dPhi = ws.f64(room);
+  const dTau = ws.f64(room);
+  const diagCount = ws.i32(nShafts);
+  const segMax = ws.f64(nSegments);
+  const segAt = ws.f64(nSegments);
+  const segPhiFrom = ws.f64(nSegments).fill(Number.NaN);
+  const segPhiTo = ws.f64(nSegments);
+  const totalTwist = ws.f64(nShafts);
+  const roots = ws.f64(2);
 
   for (let s = 0; s < nShafts; s++) {
     const shaft = model.shafts[s];
@@ -420,7 +449,7 @@ function recoverShafts(
 
   // Twist of each segment, and the largest stress in each of its layers.
   const segTwist = segPhiFrom; // reused in place: φ(to) − φ(from)
-  const layerMaxShear = f64(layerBase[nSegments]);
+  const layerMaxShear = ws.f64(layerBase[nSegments]);
   for (let s = 0, g = 0; s < nShafts; s++) {
     for (const sg of model.shafts[s].segments) {
       segTwist[g] = segPhiTo[g] - segPhiFrom[g];
@@ -432,7 +461,6 @@ function recoverShafts(
       g++;
     }
   }
-  release(segPhiTo, interior);
   return { segBase, segMaxAbs: segMax, segAt, segTwist, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
 }
 
@@ -473,7 +501,7 @@ export const MAX_LISTED_CHECKS = 10_000;
  * million-segment model has a million checks; the table wants the worst).
  * Candidates are gathered in typed arrays; `listed` orders those shown.
  */
-function buildChecks(model: ResolvedModel, cols: ShaftColumns): CheckColumns {
+export function buildChecks(model: ResolvedModel, cols: ShaftColumns, ws: Workspace): CheckColumns {
   const { twistRate, totalTwist } = model.limits;
   const { segBase, layerBase, layerMaxShear, segMaxAbs } = cols;
   let n = 0;
@@ -484,12 +512,12 @@ function buildChecks(model: ResolvedModel, cols: ShaftColumns): CheckColumns {
     }
     if (totalTwist !== null) n++;
   }
-  const kind = u8(n);
-  const shaftIx = i32(n);
-  const segIx = i32(n);
-  const layerIx = i32(n);
-  const value = f64(n);
-  const limit = f64(n);
+  const kind = ws.u8(n);
+  const shaftIx = ws.i32(n);
+  const segIx = ws.i32(n);
+  const layerIx = ws.i32(n);
+  const value = ws.f64(n);
+  const limit = ws.f64(n);
   let k = 0;
   model.shafts.forEach((shaft, s) => {
     shaft.segments.forEach((seg, index) => {
@@ -519,22 +547,21 @@ function buildChecks(model: ResolvedModel, cols: ShaftColumns): CheckColumns {
       limit[k++] = totalTwist;
     }
   });
-  const util = f64(n);
+  const util = ws.f64(n);
   for (let m = 0; m < n; m++) util[m] = value[m] / limit[m];
   // Threshold of the worst MAX_LISTED_CHECKS by a native numeric sort of a copy.
   let chosen: number[] = [];
   if (n <= MAX_LISTED_CHECKS) {
     for (let m = 0; m < n; m++) chosen.push(m);
   } else {
-    const copy = f64(n);
+    const copy = ws.f64(n);
     copy.set(util);
     const threshold = kthSmallest(copy, n - MAX_LISTED_CHECKS);
-    release(copy);
     for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] > threshold) chosen.push(m);
     for (let m = 0; m < n && chosen.length < MAX_LISTED_CHECKS; m++) if (util[m] === threshold) chosen.push(m);
   }
   chosen = chosen.sort((x, y) => util[y] - util[x] || x - y);
-  const listed = i32(chosen.length);
+  const listed = ws.i32(chosen.length);
   listed.set(chosen);
   return { total: n, listed, kind, shaft: shaftIx, segment: segIx, layer: layerIx, value, limit, utilisation: util };
 }

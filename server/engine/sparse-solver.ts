@@ -1,16 +1,28 @@
 /**
- * Sparse symmetric positive definite solver: fill-reducing ordering, then an
- * up-looking L·D·Lᵀ factorisation over the elimination tree.
+ * Sparse symmetric L·D·Lᵀ factorisation, in the two phases of a concise
+ * sparse Cholesky package (Davis, "Algorithm 849: A concise sparse Cholesky
+ * factorization package", ACM TOMS 31(4), 2005), plus the triangular solves:
+ *
+ * - `ldlSymbolic` (pattern only): a fill-reducing order, the elimination
+ *   tree and the column counts of L, hence its storage `Lp`;
+ * - `ldlNumeric` (values): L and D by up-looking rows, row k of L being a
+ *   path up the elimination tree. It can run again, into the same storage,
+ *   for another matrix of the same pattern (a stiffness that changes with a
+ *   parameter); with `indefinite` it accepts negative pivots and counts them
+ *   (the number of negative entries of D is the number of eigenvalues below
+ *   zero: Sylvester's law of inertia);
+ * - `ldlSolve`: P·b, L·y = b, D, Lᵀ·x = y, Pᵀ·x.
  *
  * Shaft systems are chains and trees of shafts, with at most a few loops
  * through gear meshes and couplings. Eliminating leaves first makes no fill at
- * all on a tree, so the ordering peels every vertex of degree ≤ 1 (repeatedly,
+ * all on a tree, so the order peels every vertex of degree ≤ 1 (repeatedly,
  * in linear time) and orders only what remains, the loops, by minimum degree.
  * Work and memory then grow linearly with the number of stations.
  *
- * The constructor factorises; `solve` answers K·x = b.
+ * Every function takes its arrays from the workspace it is given and frees
+ * nothing: what it returns holds the arrays that outlive it.
  */
-import { f64, i32, i32Copy, release, u8 } from './arena.js';
+import type { Workspace } from './workspace.js';
 
 /** A symmetric matrix by its diagonal and its strictly off-diagonal entries (either triangle, duplicates summed). */
 export interface SymmetricEntries {
@@ -21,6 +33,14 @@ export interface SymmetricEntries {
   readonly vals: Float64Array;
   /** Entries used in rows/cols/vals. */
   readonly count: number;
+}
+
+/** The off-diagonal part of a symmetric matrix, both triangles, in compressed columns. */
+export interface CscMatrix {
+  readonly n: number;
+  readonly Ap: Int32Array;
+  readonly Ai: Int32Array;
+  readonly Ax: Float64Array;
 }
 
 /** Thrown when a pivot vanishes: the matrix is singular or too badly conditioned. */
@@ -36,155 +56,181 @@ export class SingularMatrixError extends Error {
 /** Pivots smaller than this fraction of the original diagonal mean no trustworthy solution. */
 const PIVOT_TOLERANCE = 1e-13;
 
-export class SparseLDLT {
+/** The symbolic phase: what depends on the pattern only. */
+export interface LdlSymbolic {
   readonly n: number;
-  /** Nonzeros of L below the diagonal. */
-  readonly factorNonzeros: number;
-  /** Smallest pivot relative to its diagonal entry: a cheap conditioning indicator. */
+  /** Elimination order: row/column k of the factor is perm[k] of the matrix; pinv the inverse. */
+  readonly perm: Int32Array;
+  readonly pinv: Int32Array;
+  /** Elimination tree of the permuted matrix (−1: a root). */
+  readonly parent: Int32Array;
+  /** Column k of L is Li/Lx[Lp[k] … Lp[k + 1] − 1]. */
+  readonly Lp: Int32Array;
+}
+
+/** The numeric phase: L (unit lower triangular, without its diagonal) and D. */
+export interface LdlFactor {
+  readonly Li: Int32Array;
+  readonly Lx: Float64Array;
+  readonly D: Float64Array;
+  /** Smallest |pivot| relative to its diagonal entry: a cheap conditioning indicator. */
   readonly minPivotRatio: number;
-  private readonly perm: Int32Array;
-  private readonly Lp: Int32Array;
-  private readonly Li: Int32Array;
-  private readonly Lx: Float64Array;
-  private readonly D: Float64Array;
+  /** Negative entries of D: eigenvalues below zero (0 for a definite matrix). */
+  readonly negativePivots: number;
+}
 
-  /**
-   * Factorises `a`. With `consume`, the off-diagonal entries (rows, cols,
-   * vals) are given back to the arena as soon as they are read: the caller
-   * must not read them again.
-   */
-  constructor(a: SymmetricEntries, options: { consume?: boolean } = {}) {
-    const n = a.n;
-    this.n = n;
-    const { Ap, Ai, Ax } = toFullCSC(a);
-    if (options.consume) release(a.rows, a.cols, a.vals);
-    const perm = fillReducingOrder(n, Ap, Ai);
-    const pinv = i32(n);
-    for (let k = 0; k < n; k++) pinv[perm[k]] = k;
-    this.perm = perm;
-
-    // Symbolic: elimination tree and column counts of L (permuted).
-    const parent = i32(n);
-    const lnz = i32(n);
-    const flag = i32(n);
-    for (let k = 0; k < n; k++) {
-      parent[k] = -1;
-      flag[k] = k;
-      const kk = perm[k];
-      for (let p = Ap[kk]; p < Ap[kk + 1]; p++) {
-        let i = pinv[Ai[p]];
-        if (i < k) {
-          while (flag[i] !== k) {
-            if (parent[i] === -1) parent[i] = k;
-            lnz[i]++;
-            flag[i] = k;
-            i = parent[i];
-          }
+/** Ordering, elimination tree and column counts of L for the pattern of `a` (Davis's ldl_symbolic). */
+export function ldlSymbolic(a: CscMatrix, ws: Workspace): LdlSymbolic {
+  const { n, Ap, Ai } = a;
+  const perm = fillReducingOrder(n, Ap, Ai, ws);
+  const pinv = ws.i32(n);
+  for (let k = 0; k < n; k++) pinv[perm[k]] = k;
+  const parent = ws.i32(n);
+  const lnz = ws.i32(n);
+  const flag = ws.i32(n);
+  for (let k = 0; k < n; k++) {
+    parent[k] = -1;
+    flag[k] = k;
+    const kk = perm[k];
+    for (let p = Ap[kk]; p < Ap[kk + 1]; p++) {
+      let i = pinv[Ai[p]];
+      if (i < k) {
+        // Up the tree from i until a node already met in row k: each one gets an entry in row k.
+        while (flag[i] !== k) {
+          if (parent[i] === -1) parent[i] = k;
+          lnz[i]++;
+          flag[i] = k;
+          i = parent[i];
         }
       }
     }
-    const Lp = i32(n + 1);
-    for (let k = 0; k < n; k++) Lp[k + 1] = Lp[k] + lnz[k];
-    const nnz = Lp[n];
-    const Li = i32(nnz);
-    const Lx = f64(nnz);
-    const D = f64(n);
+  }
+  const Lp = ws.i32(n + 1);
+  for (let k = 0; k < n; k++) Lp[k + 1] = Lp[k] + lnz[k];
+  return { n, perm, pinv, parent, Lp };
+}
 
-    // Numeric: row k of L from the k-th row pattern (a path up the etree).
-    const Y = f64(n);
-    const pattern = i32(n);
-    let minRatio = Infinity;
-    for (let k = 0; k < n; k++) {
-      Y[k] = 0;
-      let top = n;
-      flag[k] = k;
-      lnz[k] = 0;
-      const kk = perm[k];
-      for (let p = Ap[kk]; p < Ap[kk + 1]; p++) {
-        let i = pinv[Ai[p]];
-        if (i <= k) {
-          Y[i] += Ax[p];
-          let len = 0;
-          for (; flag[i] !== k; i = parent[i]) {
-            pattern[len++] = i;
-            flag[i] = k;
-          }
-          while (len > 0) pattern[--top] = pattern[--len];
+/**
+ * L and D of the matrix whose off-diagonal part is `a` and diagonal `diag`,
+ * row by row (Davis's ldl_numeric): row k of L solves L₁₁·y = a₁₂ over the
+ * pattern of row k, a path up the elimination tree. `a` must have the pattern
+ * `sym` was made for. With `into`, the factor of an earlier call on the same
+ * symbolic phase is overwritten (no new storage). Throws SingularMatrixError
+ * when a pivot is not above PIVOT_TOLERANCE of its diagonal entry (or, with
+ * `indefinite`, when its size is not): there is no pivoting, so an indefinite
+ * matrix with a vanishing leading minor is refused even when it is regular
+ * (a caller scanning a parameter moves it a little).
+ */
+export function ldlNumeric(
+  sym: LdlSymbolic,
+  a: CscMatrix,
+  diag: Float64Array,
+  ws: Workspace,
+  options: { indefinite?: boolean; into?: LdlFactor } = {},
+): LdlFactor {
+  const { n, perm, pinv, parent, Lp } = sym;
+  const { Ap, Ai, Ax } = a;
+  const nnz = Lp[n];
+  const Li = options.into ? options.into.Li : ws.i32(nnz);
+  const Lx = options.into ? options.into.Lx : ws.f64(nnz);
+  const D = options.into ? options.into.D : ws.f64(n);
+  const indefinite = options.indefinite === true;
+  const Y = ws.f64(n);
+  const pattern = ws.i32(n);
+  const flag = ws.i32(n);
+  const lnz = ws.i32(n);
+  let minRatio = Infinity;
+  let negative = 0;
+  for (let k = 0; k < n; k++) {
+    // Scatter column k of the permuted upper triangle into Y; gather the pattern of row k.
+    Y[k] = 0;
+    let top = n;
+    flag[k] = k;
+    lnz[k] = 0;
+    const kk = perm[k];
+    for (let p = Ap[kk]; p < Ap[kk + 1]; p++) {
+      let i = pinv[Ai[p]];
+      if (i <= k) {
+        Y[i] += Ax[p];
+        let len = 0;
+        for (; flag[i] !== k; i = parent[i]) {
+          pattern[len++] = i;
+          flag[i] = k;
         }
+        while (len > 0) pattern[--top] = pattern[--len];
       }
-      const akk = a.diag[kk];
-      let dk = Y[k] + akk;
-      Y[k] = 0;
-      for (; top < n; top++) {
-        const i = pattern[top];
-        const yi = Y[i];
-        Y[i] = 0;
-        const p2 = Lp[i] + lnz[i];
-        for (let p = Lp[i]; p < p2; p++) Y[Li[p]] -= Lx[p] * yi;
-        const lki = yi / D[i];
-        dk -= lki * yi;
-        Li[p2] = k;
-        Lx[p2] = lki;
-        lnz[i]++;
-      }
-      const ratio = akk > 0 ? dk / akk : dk > 0 ? 1 : -Infinity;
-      if (!(ratio > PIVOT_TOLERANCE)) throw new SingularMatrixError(kk, ratio);
-      if (ratio < minRatio) minRatio = ratio;
-      D[k] = dk;
     }
-    this.Lp = Lp;
-    this.Li = Li;
-    this.Lx = Lx;
-    this.D = D;
-    release(Ap, Ai, Ax, pinv, parent, lnz, flag, Y, pattern);
-    this.factorNonzeros = nnz;
-    this.minPivotRatio = n === 0 ? 1 : minRatio;
-  }
-
-  /** Solves K·x = b, into `out` when given (it may not be `b`); answers x. */
-  solve(b: Float64Array, out?: Float64Array): Float64Array {
-    const { n, perm, Lp, Li, Lx, D } = this;
-    this.work ??= f64(n);
-    const y = this.work;
-    for (let k = 0; k < n; k++) y[k] = b[perm[k]];
-    for (let j = 0; j < n; j++) {
-      const yj = y[j];
-      if (yj !== 0) for (let p = Lp[j]; p < Lp[j + 1]; p++) y[Li[p]] -= Lx[p] * yj;
+    // Sparse triangular solve for row k, and its pivot.
+    const akk = diag[kk];
+    let dk = Y[k] + akk;
+    Y[k] = 0;
+    for (; top < n; top++) {
+      const i = pattern[top];
+      const yi = Y[i];
+      Y[i] = 0;
+      const p2 = Lp[i] + lnz[i];
+      for (let p = Lp[i]; p < p2; p++) Y[Li[p]] -= Lx[p] * yi;
+      const lki = yi / D[i];
+      dk -= lki * yi;
+      Li[p2] = k;
+      Lx[p2] = lki;
+      lnz[i]++;
     }
-    for (let j = 0; j < n; j++) y[j] /= D[j];
-    for (let j = n - 1; j >= 0; j--) {
-      let yj = y[j];
-      for (let p = Lp[j]; p < Lp[j + 1]; p++) yj -= Lx[p] * y[Li[p]];
-      y[j] = yj;
-    }
-    const x = out ?? f64(n);
-    for (let k = 0; k < n; k++) x[perm[k]] = y[k];
-    return x;
+    let ratio: number;
+    if (indefinite) {
+      ratio = akk !== 0 ? Math.abs(dk / akk) : dk !== 0 ? 1 : 0;
+      if (dk < 0) negative++;
+    } else ratio = akk > 0 ? dk / akk : dk > 0 ? 1 : -Infinity;
+    if (!(ratio > PIVOT_TOLERANCE)) throw new SingularMatrixError(kk, ratio);
+    if (ratio < minRatio) minRatio = ratio;
+    D[k] = dk;
   }
+  return { Li, Lx, D, minPivotRatio: n === 0 ? 1 : minRatio, negativePivots: negative };
+}
 
-  /** Gives the factor's arrays back to the arena: no solve may follow. */
-  dispose(): void {
-    release(this.Lp, this.Li, this.Lx, this.D, this.perm);
-    if (this.work) release(this.work);
-    this.work = null;
+/**
+ * Solves K·x = b with the factor: x = Pᵀ·L⁻ᵀ·D⁻¹·L⁻¹·P·b. `y` is work space
+ * of n values; `x` may not be `b`.
+ */
+export function ldlSolve(sym: LdlSymbolic, f: LdlFactor, b: Float64Array, x: Float64Array, y: Float64Array): Float64Array {
+  const { n, perm, Lp } = sym;
+  for (let k = 0; k < n; k++) y[k] = b[perm[k]];
+  lowerSolve(n, Lp, f.Li, f.Lx, y);
+  for (let j = 0; j < n; j++) y[j] /= f.D[j];
+  lowerTransposeSolve(n, Lp, f.Li, f.Lx, y);
+  for (let k = 0; k < n; k++) x[perm[k]] = y[k];
+  return x;
+}
+
+/** y := L⁻¹·y, column by column (Davis's ldl_lsolve). */
+function lowerSolve(n: number, Lp: Int32Array, Li: Int32Array, Lx: Float64Array, y: Float64Array): void {
+  for (let j = 0; j < n; j++) {
+    const yj = y[j];
+    if (yj !== 0) for (let p = Lp[j]; p < Lp[j + 1]; p++) y[Li[p]] -= Lx[p] * yj;
   }
+}
 
-  /** The permuted right-hand side during a solve, reused by every solve. */
-  private work: Float64Array | null = null;
+/** y := L⁻ᵀ·y, column by column from the last (Davis's ldl_ltsolve). */
+function lowerTransposeSolve(n: number, Lp: Int32Array, Li: Int32Array, Lx: Float64Array, y: Float64Array): void {
+  for (let j = n - 1; j >= 0; j--) {
+    let yj = y[j];
+    for (let p = Lp[j]; p < Lp[j + 1]; p++) yj -= Lx[p] * y[Li[p]];
+    y[j] = yj;
+  }
 }
 
 /** Compressed columns of the off-diagonal part, both triangles, duplicates summed. */
-export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array; Ax: Float64Array } {
+export function toFullCSC(a: SymmetricEntries, ws: Workspace): CscMatrix {
   const { n, rows, cols, vals, count } = a;
-  const counts = i32(n + 1);
+  const counts = ws.i32(n + 1);
   for (let k = 0; k < count; k++) {
     counts[rows[k] + 1]++;
     counts[cols[k] + 1]++;
   }
   for (let k = 0; k < n; k++) counts[k + 1] += counts[k];
-  const start = i32Copy(counts, n);
-  const Ai = i32(counts[n]);
-  const Ax = f64(counts[n]);
+  const start = ws.i32Copy(counts, n);
+  const Ai = ws.i32(counts[n]);
+  const Ax = ws.f64(counts[n]);
   for (let k = 0; k < count; k++) {
     const r = rows[k];
     const c = cols[k];
@@ -195,8 +241,8 @@ export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array
     Ax[start[r]++] = v;
   }
   // Sum duplicates within each column in place.
-  const last = i32(n).fill(-1);
-  const Ap = i32(n + 1);
+  const last = ws.i32(n).fill(-1);
+  const Ap = ws.i32(n + 1);
   let w = 0;
   for (let c = 0; c < n; c++) {
     const colStart = w;
@@ -212,20 +258,19 @@ export function toFullCSC(a: SymmetricEntries): { Ap: Int32Array; Ai: Int32Array
     }
     Ap[c + 1] = w;
   }
-  release(counts, start, last);
-  return { Ap, Ai: Ai.subarray(0, w), Ax: Ax.subarray(0, w) };
+  return { n, Ap, Ai: Ai.subarray(0, w), Ax: Ax.subarray(0, w) };
 }
 
 /**
  * Elimination order: vertices of degree ≤ 1 first, peeled repeatedly (no fill
  * on trees); the rest, which lie on loops, by exact minimum degree.
  */
-export function fillReducingOrder(n: number, Ap: Int32Array, Ai: Int32Array): Int32Array {
-  const order = i32(n);
+export function fillReducingOrder(n: number, Ap: Int32Array, Ai: Int32Array, ws: Workspace): Int32Array {
+  const order = ws.i32(n);
   let placed = 0;
-  const degree = i32(n);
-  const done = u8(n);
-  const stack = i32(n);
+  const degree = ws.i32(n);
+  const done = ws.u8(n);
+  const stack = ws.i32(n);
   let sp = 0;
   for (let v = 0; v < n; v++) {
     degree[v] = Ap[v + 1] - Ap[v];
@@ -241,10 +286,7 @@ export function fillReducingOrder(n: number, Ap: Int32Array, Ai: Int32Array): In
       if (!done[u] && --degree[u] === 1) stack[sp++] = u;
     }
   }
-  if (placed === n) {
-    release(degree, done, stack);
-    return order;
-  }
+  if (placed === n) return order;
 
   // Minimum degree on the loops that remain, with explicit adjacency sets.
   const adj = new Map<number, Set<number>>();

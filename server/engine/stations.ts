@@ -7,7 +7,7 @@
  * one rotation unknown (a "dof"), numbered shaft by shaft, z ascending.
  */
 import type { ResolvedModel } from './normalise.js';
-import { f64, i32, i32Copy, release } from './arena.js';
+import type { Workspace } from './workspace.js';
 
 export interface StationLayout {
   readonly dofCount: number;
@@ -32,10 +32,10 @@ export interface StationLayout {
 const MERGE_TOLERANCE = 1e-12;
 
 /** Builds the stations and elements of every shaft. */
-export function buildStations(model: ResolvedModel): StationLayout {
+export function buildStations(model: ResolvedModel, ws: Workspace): StationLayout {
   const nShafts = model.shafts.length;
   // Two passes over the points of every shaft: count them, then write them into one typed array.
-  const start = i32(nShafts + 1);
+  const start = ws.i32(nShafts + 1);
   const points = (visit: (s: number, z: number) => void) => {
     model.shafts.forEach((shaft, s) => {
       visit(s, 0);
@@ -59,15 +59,15 @@ export function buildStations(model: ResolvedModel): StationLayout {
   };
   points((s) => start[s + 1]++);
   for (let s = 0; s < nShafts; s++) start[s + 1] += start[s];
-  const all = f64(start[nShafts]);
-  const fill = i32Copy(start, nShafts);
+  const all = ws.f64(start[nShafts]);
+  const fill = ws.i32Copy(start, nShafts);
   points((s, z) => (all[fill[s]++] = z));
 
   // Each shaft's range holds its segment ends first (0 and every z1: ascending, as lengths are
   // positive), then the other points. Sort the others only, then merge the two ascending runs,
   // keeping one station of points closer than the tolerance.
-  const shaftStart = i32(nShafts + 1);
-  const merged = f64(start[nShafts]);
+  const shaftStart = ws.i32(nShafts + 1);
+  const merged = ws.f64(start[nShafts]);
   for (let s = 0; s < nShafts; s++) {
     const ends = start[s] + 1 + model.shafts[s].segments.length;
     let a = start[s];
@@ -90,13 +90,12 @@ export function buildStations(model: ResolvedModel): StationLayout {
     shaftStart[s + 1] = n;
   }
   const dofCount = shaftStart[nShafts];
-  const z = f64(dofCount);
+  const z = ws.f64(dofCount);
   z.set(merged.subarray(0, dofCount));
-  release(all, merged, fill);
-  const shaftOf = i32(dofCount);
+  const shaftOf = ws.i32(dofCount);
   const elemCount = dofCount - nShafts;
-  const elemLeft = i32(elemCount);
-  const elemSegment = i32(elemCount);
+  const elemLeft = ws.i32(elemCount);
+  const elemSegment = ws.i32(elemCount);
   let e = 0;
   for (let s = 0; s < nShafts; s++) {
     const base = shaftStart[s];
@@ -126,8 +125,8 @@ export function buildStations(model: ResolvedModel): StationLayout {
   };
 
   // Element index of a left dof: dof k on shaft s is element k − s.
-  const elemT1 = f64(elemCount);
-  const elemT2 = f64(elemCount);
+  const elemT1 = ws.f64(elemCount);
+  const elemT2 = ws.f64(elemCount);
   for (const d of model.distributed) {
     if (d.to <= d.from) continue; // a zero-length load carries nothing
     const first = stationAt(d.shaft, d.from);

@@ -9,13 +9,15 @@
 import { parentPort } from 'node:worker_threads';
 import { ModelError } from '../../shared-types/errors.js';
 import { solveModelJson } from '../engine/index.js';
-import { releaseArena } from '../engine/arena.js';
+import { Workspace } from '../engine/workspace.js';
 import { normaliseModel } from '../engine/normalise.js';
 import { HttpError } from './errors.js';
 import { checkModelShape, checkSize, parseJsonText } from './solve-core.js';
 import type { WorkerJob, WorkerReply } from './solver-pool.js';
 
 const COPY_BELOW = 64 * 1024; // bytes: smaller chunks are copied (they may share a pooled ArrayBuffer)
+/** This worker's work memory: its small chunks stay warm; its large slab is dropped after each job. */
+const workspace = new Workspace();
 
 function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
   try {
@@ -41,7 +43,7 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
         chunks.push(new Uint8Array(c.buffer, c.byteOffset, c.byteLength));
         transfer.add(c.buffer as ArrayBuffer);
       }
-    });
+    }, { workspace });
     return { reply: { id: job.id, ok: true, chunks }, transfer: [...transfer] };
   } catch (err) {
     if (err instanceof HttpError || err instanceof ModelError) {
@@ -55,5 +57,5 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
 parentPort?.on('message', (job: WorkerJob) => {
   const { reply, transfer } = run(job);
   parentPort?.postMessage(reply, transfer);
-  releaseArena();
+  workspace.dropKept();
 });

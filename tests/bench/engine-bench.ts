@@ -9,7 +9,7 @@
  *
  * The models are synthetic and invented for timing only.
  */
-import { normaliseModel, solveResolved, withSolved } from '../../server/engine/index.js';
+import { normaliseModel, solveResolved, withSolved, Workspace } from '../../server/engine/index.js';
 import { writeSolutionJson } from '../../server/engine/output.js';
 import { calibrationLine } from './calibrate.js';
 
@@ -104,6 +104,9 @@ function time<T>(f: () => T): [T, number] {
   return [r, Number(process.hrtime.bigint() - t0) / 1e6];
 }
 
+/** The work memory this process keeps between its solves, as the CLI process, a worker or the request thread does. */
+const workspace = new Workspace();
+
 function gc(): void {
   (globalThis as { gc?: () => void }).gc?.();
 }
@@ -127,7 +130,7 @@ function bench(kind: string, make: (n: number) => Json, n: number, repeats: numb
     gc();
     const phases: Record<string, number> = {};
     const [, ms] = time(() =>
-      withSolved(resolved, { diagramPoints: 2, onPhase: (p, t) => (phases[p] = t) }, (solved) => {
+      withSolved(resolved, { diagramPoints: 2, workspace, onPhase: (p, t) => (phases[p] = t) }, (solved) => {
         stations = solved.stats.stations;
         fill = solved.stats.factorNonzeros;
         let scale = 0;
@@ -145,7 +148,7 @@ function bench(kind: string, make: (n: number) => Json, n: number, repeats: numb
   gc();
   let bytes = 0;
   let jsonMs = 0;
-  withSolved(resolved, { diagramPoints: 2, onPhase: (p, t) => p === 'output' && (jsonMs = t) }, (solved) =>
+  withSolved(resolved, { diagramPoints: 2, workspace, onPhase: (p, t) => p === 'output' && (jsonMs = t) }, (solved) =>
     writeSolutionJson(solved, (text) => (bytes += text.length)),
   );
   const heap = process.memoryUsage().heapUsed / 2 ** 20;
@@ -199,9 +202,9 @@ function main(): void {
   // Sparse against dense at 2,000 stations.
   const resolved = normaliseModel(chainModel(2000));
   let sparse = Infinity;
-  for (let r = 0; r < 20; r++) sparse = Math.min(sparse, time(() => solveResolved(resolved, { diagramPoints: 2 }))[1]);
+  for (let r = 0; r < 20; r++) sparse = Math.min(sparse, time(() => solveResolved(resolved, { diagramPoints: 2, workspace }))[1]);
   let dense = Infinity;
-  for (let r = 0; r < 2; r++) dense = Math.min(dense, time(() => solveResolved(resolved, { solver: 'dense', diagramPoints: 2 }))[1]);
+  for (let r = 0; r < 2; r++) dense = Math.min(dense, time(() => solveResolved(resolved, { solver: 'dense', diagramPoints: 2, workspace }))[1]);
   console.log(`2,000 stations: sparse ${sparse.toFixed(2)} ms, dense ${dense.toFixed(0)} ms, ratio ${(dense / sparse).toFixed(0)}x`);
 }
 

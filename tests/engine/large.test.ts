@@ -1,7 +1,7 @@
 /**
- * Models large enough that the engine's work arrays come from the arena's
+ * Models large enough that the engine's work arrays come from the workspace's
  * slab (arrays over 256 KiB, some 32,000 stations) and are given back and
- * reused within the solve (`release`). Small models never reach that path,
+ * reused within the solve (a stage's scratch, results no later stage reads). Small models never reach that path,
  * so it is checked here against closed forms, and against itself across
  * solves that reuse the kept memory.
  *
@@ -13,8 +13,8 @@
  * Tolerances are round-off allowances for a chain of 60,000 elements, common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
-import { solveModel, solveModelJson } from '../../server/engine/index.js';
-import { arenaKeptBytes, releaseArena } from '../../server/engine/arena.js';
+import { normaliseModel, solveModel, solveModelJson, withSolved, Workspace } from '../../server/engine/index.js';
+import { LARGE_BYTES_PER_STATION, stationEstimate } from '../../server/engine/pipeline.js';
 
 const N = 60_000; // segments
 const H = 2 ** -14; // m per segment: segment ends are exact in binary
@@ -84,22 +84,41 @@ describe('large models (work arrays from the slab, released and reused)', () => 
   });
 
   it('the same answer, byte for byte, with fresh memory, with kept memory, and after other large solves', () => {
-    releaseArena();
+    const workspace = new Workspace();
     const text = () => {
       let t = '';
-      solveModelJson(barModel(), (piece) => (t += piece));
+      solveModelJson(barModel(), (piece) => (t += piece), { workspace });
       return t;
     };
     const fresh = text();
-    expect(arenaKeptBytes()).toBeGreaterThan(1 << 20); // the slab was kept for the next solve
+    expect(workspace.keptBytes()).toBeGreaterThan(1 << 20); // the slab was kept for the next solve
     const kept = text();
     // Another large model in between leaves other values in the kept memory.
     const other = barModel() as { torques: Array<{ torque: number }> };
     for (const t of other.torques) t.torque = -3 * t.torque + 1;
-    solveModel(other);
+    solveModel(other, { workspace });
     const again = text();
     expect(kept).toBe(fresh);
     expect(again).toBe(fresh);
     expect(JSON.stringify(solveModel(barModel()))).toBe(fresh);
+  });
+
+  it('the slab reserved up front holds the whole solve: scratch and dead results are given back and reused', () => {
+    const workspace = new Workspace();
+    const resolved = normaliseModel(barModel());
+    const reserved = LARGE_BYTES_PER_STATION * stationEstimate(resolved);
+    let used = 0;
+    let stations = 0;
+    withSolved(resolved, { workspace }, (solved) => {
+      used = workspace.largeBytesUsed();
+      stations = solved.stats.stations;
+    });
+    expect(used).toBeGreaterThan(0);
+    // Measured on this model: 152 bytes per station of large arrays, 344 when nothing is given back
+    // (node 20); the bound sits between (common practice, no source).
+    expect(used).toBeLessThanOrEqual(200 * stations);
+    // Not outgrown: the slab kept is the one reserved (rounded up to its alignment), never a doubled one.
+    expect(used).toBeLessThanOrEqual(reserved);
+    expect(workspace.keptBytes()).toBeLessThan(reserved + 64);
   });
 });

@@ -1,14 +1,39 @@
 /**
- * The solution's JSON text is written straight from the engine's columns
- * (server/engine/output.ts). It must be, byte for byte, what JSON.stringify
- * gives for the solution object: JSON.stringify (ECMA-262 §25.5.2) is the
- * reference here, and the object form is checked by every other engine test.
+ * The solution is written by one walk over the engine's columns
+ * (server/engine/output.ts) into two writers: objects, and JSON text. The
+ * text must be, byte for byte, what JSON.stringify gives for the object:
+ * JSON.stringify (ECMA-262 §25.5.2) is the reference here, and the object
+ * form is checked by every other engine test. Both hold the fields of the
+ * schema in shared-types/solution.ts, no more, no fewer.
  */
 import { readdirSync, readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { solveModel, solveModelJson } from '../../server/engine/index.js';
 import { MAX_LISTED_CHECKS } from '../../server/engine/recover.js';
+import { Solution } from '../../shared-types/solution.js';
 import { randomModel } from './random-models.js';
+
+/** JSON-schema nodes as TypeBox makes them (the parts read here). */
+interface SchemaNode {
+  type?: string;
+  properties?: Record<string, SchemaNode>;
+  required?: string[];
+  items?: SchemaNode;
+}
+
+/** Every object of `value` against the schema: no field the schema lacks, none it requires missing. */
+function fieldProblems(value: unknown, schema: SchemaNode, path: string, out: string[]): void {
+  if (schema.type === 'object' && schema.properties && value !== null && typeof value === 'object') {
+    const props = schema.properties;
+    for (const key of Object.keys(value)) if (!(key in props)) out.push(`${path}/${key}: not in the schema`);
+    for (const key of schema.required ?? []) if (!(key in value)) out.push(`${path}/${key}: missing`);
+    for (const [key, sub] of Object.entries(props)) {
+      if (key in value) fieldProblems((value as Record<string, unknown>)[key], sub, `${path}/${key}`, out);
+    }
+  } else if (schema.type === 'array' && schema.items && Array.isArray(value)) {
+    value.slice(0, 50).forEach((item, k) => fieldProblems(item, schema.items as SchemaNode, `${path}/${k}`, out));
+  }
+}
 
 const demoDir = new URL('../../server/demos/', import.meta.url);
 const demos = readdirSync(demoDir)
@@ -40,6 +65,23 @@ describe('solution JSON written from columns', () => {
     }
     expect(differing).toBe(0);
     expect(loads).toBeGreaterThan(50); // the generator did exercise curved diagrams
+  });
+
+  it('every object has exactly the fields of the solution schema (demos and 100 random systems)', () => {
+    const problems: string[] = [];
+    let withName = 0;
+    let layerChecks = 0;
+    const models: unknown[] = [...demos.map(([, m]) => m), ...Array.from({ length: 100 }, (_, k) => randomModel(400 + k, { loops: 'sometimes' }))];
+    for (const model of models) {
+      const object = solveModel(model);
+      fieldProblems(object, Solution as SchemaNode, '', problems);
+      withName += object.shafts.filter((s) => s.name !== undefined).length;
+      layerChecks += object.checks.filter((c) => c.kind === 'shear').length;
+    }
+    expect(problems.slice(0, 10)).toEqual([]);
+    // Optional fields were met both ways.
+    expect(withName).toBeGreaterThan(0);
+    expect(layerChecks).toBeGreaterThan(0);
   });
 
   it('in small pieces, the pieces join to the same text', () => {

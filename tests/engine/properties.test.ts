@@ -441,6 +441,55 @@ describe('layered sections', () => {
   });
 });
 
+describe('section properties of every segment', () => {
+  it('a solid bar: J = π·d⁴/32, G·J, and k = G·J/L (closed forms, Saint-Venant torsion of a circular bar)', () => {
+    const d = 0.05; // m
+    const L = 1.25; // m
+    const G = 79.3e9; // Pa
+    const model = {
+      format: 'shaftnet/1',
+      name: 'Solid bar (invented)',
+      materials: [{ id: 'steel', G }],
+      sections: [{ id: 'd50', shape: 'solid', d }],
+      shafts: [{ id: 'bar', segments: [{ length: L, section: 'd50', material: 'steel' }] }],
+      supports: [{ id: 'A', shaft: 'bar', at: 0, kind: 'fixed' }],
+      torques: [{ id: 'T', shaft: 'bar', at: L, torque: 500 }],
+    };
+    const seg = solveModel(model).shafts[0].segments[0];
+    const J = (Math.PI * d ** 4) / 32;
+    expect(Math.abs(seg.torsionConstant - J)).toBeLessThanOrEqual(1e-14 * J);
+    expect(Math.abs(seg.torsionalRigidity - G * J)).toBeLessThanOrEqual(1e-14 * G * J);
+    expect(Math.abs(seg.stiffness - (G * J) / L)).toBeLessThanOrEqual(1e-14 * ((G * J) / L));
+    // The end twist under the end torque is T/k (a cantilever), so the stiffness is the one the solve used.
+    expect(Math.abs(seg.twist - 500 / seg.stiffness)).toBeLessThanOrEqual(1e-12 * (500 / seg.stiffness));
+  });
+
+  it('random systems: J = Σ π(r_o⁴ − r_i⁴)/2 over the rings, G·J = Σ G_i·J_i, k = G·J/(to − from)', () => {
+    let layered = 0;
+    for (const [name, model] of [['demo', demo] as [string, Model], ...systems(7000, 60, { layered: true })]) {
+      const sol = solveModel(model);
+      for (const shaft of model.shafts) {
+        const sr = shaftResult(sol, shaft.id);
+        segmentSpans(model, shaft.id).forEach((span, j) => {
+          const res = sr.segments[j];
+          const rings = ringsOf(model, span.segment);
+          if (rings.length > 1) layered++;
+          const J = rings.reduce((sum, r) => sum + ringJ(r), 0);
+          const GJ = rigidityOf(model, span.segment);
+          const where = `${name} ${shaft.id}/${j}`;
+          expect(Math.abs(res.torsionConstant - J), where).toBeLessThanOrEqual(1e-12 * J);
+          expect(Math.abs(res.torsionalRigidity - GJ), where).toBeLessThanOrEqual(1e-12 * GJ);
+          // The segment's own ends (to − from), as the solution reports them.
+          const k = res.torsionalRigidity / (res.to - res.from);
+          expect(Math.abs(res.stiffness - k), where).toBeLessThanOrEqual(1e-15 * k);
+          expect(Math.abs(res.stiffness - GJ / (span.to - span.from)), where).toBeLessThanOrEqual(1e-9 * k);
+        });
+      }
+    }
+    expect(layered).toBeGreaterThan(20);
+  });
+});
+
 describe('Maxwell–Betti reciprocity', () => {
   it.each(seeds(6000, 60))('seed %i: φ_j under a unit torque at i equals φ_i under a unit torque at j', (seed) => {
     const base = randomModel(seed, { loads: false, imposed: false });

@@ -1,0 +1,160 @@
+/**
+ * One solve, stage by stage, and the lifetime of every work array: this is
+ * the only code that reserves and gives back work memory.
+ *
+ * A stage is a function of the model and of earlier stages' results that
+ * takes its arrays from the workspace and returns what it made; it frees
+ * nothing. Each runs through `ws.stage`, which gives back, when the stage
+ * returns, the arrays it took and did not return (its scratch). A result is
+ * given back here (`ws.release`) on the line after the last stage that reads
+ * it; what is never given back is read by the output, until the session ends.
+ */
+import { ModelError } from '../../shared-types/errors.js';
+import type { Warning } from '../../shared-types/solution.js';
+import type { ResolvedModel } from './normalise.js';
+import { buildStations, type StationLayout } from './stations.js';
+import { assertNoMechanism, elasticParts, reducedSystem } from './assemble.js';
+import { reduceConstraints, type Reduction } from './constraints.js';
+import { ldlNumeric, ldlSymbolic, SingularMatrixError, toFullCSC, type LdlFactor } from './sparse-solver.js';
+import { solveDense } from './dense-solver.js';
+import { refinedSolve } from './refine.js';
+import { buildChecks, elementTorques, expandRotations, jointTorques, recoverShafts, recoveryWarnings, type Recovered } from './recover.js';
+import type { Solved } from './output.js';
+import type { Workspace } from './workspace.js';
+
+/** The phases of a solve, reported to `onPhase` with their durations. */
+export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'output';
+
+/** What the pipeline reads of the solve's options. */
+export interface PipelineOptions {
+  readonly solver?: 'sparse' | 'dense';
+  readonly diagramPoints?: number;
+  readonly onPhase?: (phase: SolvePhase, ms: number) => void;
+}
+
+/**
+ * Bytes of large work arrays per station of `stationEstimate`, a little more
+ * than the most measured (about 350 per station on a loaded chain of 1e6
+ * stations, scratch given back being reused): reserved in one piece at the
+ * start of a large solve.
+ */
+export const LARGE_BYTES_PER_STATION = 400;
+/** Bytes of small work arrays per station: sizes the first chunk of a fresh workspace. */
+const SMALL_BYTES_PER_STATION = 320;
+
+/** Solves `model` in the workspace's current session; the result's columns live until the session ends. */
+export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws: Workspace): Solved {
+  const stations = stationEstimate(model);
+  ws.reserve(LARGE_BYTES_PER_STATION * stations, SMALL_BYTES_PER_STATION * stations);
+  const lap = phaseClock(options.onPhase);
+
+  // Stations and elements: read by every later stage and by the output.
+  const layout = ws.stage(() => buildStations(model, ws));
+  lap('stations');
+
+  // Springs, constraint edges and loads: read until the joint torques are recovered.
+  const parts = ws.stage(() => elasticParts(model, layout, ws));
+  // The constraints eliminated, φ = α·x + β: read until the rotations are expanded.
+  const shaftName = (dof: number) => model.shafts[layout.shaftOf[dof]].id;
+  const reduction = ws.stage(() => reduceConstraints(layout.dofCount, parts.edges, shaftName, ws));
+  ws.stage(() => assertNoMechanism(model, layout, parts.springs, reduction, ws));
+  // K·x = f: the entries until the compressed columns are made, the diagonal and f until solved.
+  const system = ws.stage(() => reducedSystem(parts.springs, parts.load, reduction, ws));
+  lap('assemble');
+
+  const warnings: Warning[] = [];
+  let x: Float64Array;
+  let factorNonzeros = 0;
+  if (options.solver === 'dense') {
+    x = illConditionedAsModelError(model, layout, reduction, () => solveDense(system.matrix, system.rhs));
+  } else {
+    const csc = ws.stage(() => toFullCSC(system.matrix, ws));
+    ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);
+    const symbolic = ws.stage(() => ldlSymbolic(csc, ws));
+    const factor: LdlFactor = illConditionedAsModelError(model, layout, reduction, () =>
+      ws.stage(() => ldlNumeric(symbolic, csc, system.matrix.diag, ws)),
+    );
+    ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
+    factorNonzeros = symbolic.Lp[symbolic.n];
+    x = ws.stage(() => refinedSolve(parts.springs, parts.load, reduction, system.rhs, symbolic, factor, ws));
+    ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
+    if (factor.minPivotRatio < 1e-10) {
+      warnings.push({
+        code: 'SN_STIFFNESS_SPREAD',
+        message: `stiffnesses in the model differ by about ${(1 / factor.minPivotRatio).toExponential(0)}: results may lose ${Math.round(-Math.log10(factor.minPivotRatio))} of their 16 digits`,
+      });
+    }
+  }
+  lap('factorise');
+
+  // Rotations of every dof, and the end torques of every element: read by the output.
+  const phi = ws.stage(() => expandRotations(reduction, x, ws));
+  ws.release(x, reduction.varOf, reduction.alpha, reduction.beta);
+  const ends = ws.stage(() => elementTorques(layout, parts.springs, phi, ws));
+  // Reactions and connection torques; where T jumps (read by the diagrams only).
+  const joints = ws.stage(() => jointTorques(model, layout, parts, phi, ws));
+  const { springs, load } = parts;
+  ws.release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
+  const shafts = ws.stage(() => recoverShafts(model, layout, phi, ends, joints.jumps, options.diagramPoints ?? 8, ws));
+  ws.release(joints.jumps);
+  const checks = ws.stage(() => buildChecks(model, shafts, ws));
+  lap('recover');
+
+  const rec: Recovered = { phi, ...ends, ...shafts, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
+  let maxResidual = 0;
+  for (let k = 0; k < rec.residual.length; k++) maxResidual = Math.max(maxResidual, rec.residual[k]);
+  let torqueScale = 0;
+  for (let k = 0; k < rec.segMaxAbs.length; k++) torqueScale = Math.max(torqueScale, rec.segMaxAbs[k]);
+  if (maxResidual > 1e-8 * torqueScale) {
+    warnings.push({
+      code: 'SN_PRECISION_LOST',
+      message: `equilibrium holds only to ${maxResidual.toExponential(1)} N·m against torques of ${torqueScale.toExponential(1)} N·m: sizes or stiffnesses many orders of magnitude apart cost digits (check the units)`,
+    });
+  }
+  return {
+    model,
+    layout,
+    rec,
+    maxResidual,
+    warnings: [...recoveryWarnings(model, reduction), ...warnings],
+    stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
+  };
+}
+
+/** Stations a resolved model can have at most (each point on a shaft may be one). */
+export function stationEstimate(model: ResolvedModel): number {
+  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length;
+  for (const shaft of model.shafts) n += shaft.segments.length;
+  return n + 2 * (model.distributed.length + model.meshes.length + model.couplings.length);
+}
+
+/** Calls `onPhase` with the time since the previous call (nothing without it). */
+function phaseClock(onPhase: PipelineOptions['onPhase']): (phase: SolvePhase) => void {
+  if (!onPhase) return () => {};
+  let t0 = performance.now();
+  return (phase) => {
+    const t = performance.now();
+    onPhase(phase, t - t0);
+    t0 = t;
+  };
+}
+
+/** Runs a factorisation; a lost pivot becomes SN_ILL_CONDITIONED naming the shaft of its unknown. */
+function illConditionedAsModelError<T>(model: ResolvedModel, layout: StationLayout, red: Reduction, factorise: () => T): T {
+  try {
+    return factorise();
+  } catch (err) {
+    if (!(err instanceof SingularMatrixError)) throw err;
+    // The dense path cannot tell which unknown: the first shaft then.
+    const dof = err.column >= 0 ? red.varOf.indexOf(err.column) : 0;
+    const s = layout.shaftOf[Math.max(dof, 0)];
+    throw new ModelError([
+      {
+        code: 'SN_ILL_CONDITIONED',
+        pointer: `/shafts/${s}`,
+        message: `the stiffness matrix is singular to working precision near shaft "${model.shafts[s].id}": check for stiffnesses or sizes many orders of magnitude apart (units?)`,
+        shafts: [model.shafts[s].id],
+      },
+    ]);
+  }
+}
