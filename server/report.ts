@@ -6,7 +6,7 @@
  * Pure: values in, strings out.
  */
 import type { ModelIssue } from '../shared-types/errors.js';
-import type { SegmentResult, Solution } from '../shared-types/solution.js';
+import type { Solution } from '../shared-types/solution.js';
 import {
   CAUTIONS,
   DISPLAY_UNITS,
@@ -18,9 +18,6 @@ import {
   toDisplay,
 } from '../shared-types/present.js';
 import type { Solved } from './engine/index.js';
-
-/** Segment fields that newer engines add (read with `?.` so the table works before they land). */
-type SegmentExtras = SegmentResult & { readonly torsionConstant?: number; readonly stiffness?: number };
 
 function table(head: string[], rows: string[][]): string {
   const widths = head.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
@@ -133,28 +130,21 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
   return out.join('\n');
 }
 
-/**
- * Per segment: torsion constant J (when the solution carries it), torsional
- * rigidity Σ G·J and stiffness G·J/L (when carried).
- */
+/** Per segment: torsion constant J, torsional rigidity Σ G·J and stiffness k = G·J/L. */
 function stiffnessTable(s: Solution, units: UnitSystem): string {
   const u = DISPLAY_UNITS[units];
-  const segments = s.shafts.flatMap((sh) => sh.segments.map((seg) => ({ shaft: sh.id, seg: seg as SegmentExtras })));
-  const hasJ = segments.some(({ seg }) => seg.torsionConstant !== undefined);
-  const hasK = segments.some(({ seg }) => seg.stiffness !== undefined);
-  const value = (si: number | undefined, kind: FieldKind) => (si === undefined ? '-' : formatNumber(toDisplay(si, kind, units), 4));
-  const head = ['segment', `section`];
-  if (hasJ) head.push(`J [${u.torsionConstant}]`);
-  head.push(`GJ [${u.torsionalRigidity}]`);
-  if (hasK) head.push(`k [${u.torsionalStiffness}]`);
-  const rows = segments.map(({ shaft, seg }) => {
-    const row = [`${shaft}[${seg.index}]`, seg.section];
-    if (hasJ) row.push(value(seg.torsionConstant, 'torsionConstant'));
-    row.push(value(seg.torsionalRigidity, 'torsionalRigidity'));
-    if (hasK) row.push(value(seg.stiffness, 'torsionalStiffness'));
-    return row;
-  });
-  return `Segment stiffness${hasJ ? ' (J: torsion constant of the section' + (hasK ? '; k = GJ/L' : '') + ')' : hasK ? ' (k = GJ/L)' : ''}\n${table(head, rows)}`;
+  const value = (si: number, kind: FieldKind) => formatNumber(toDisplay(si, kind, units), 4);
+  const head = ['segment', 'section', `J [${u.torsionConstant}]`, `GJ [${u.torsionalRigidity}]`, `k [${u.torsionalStiffness}]`];
+  const rows = s.shafts.flatMap((sh) =>
+    sh.segments.map((seg) => [
+      `${sh.id}[${seg.index}]`,
+      seg.section,
+      value(seg.torsionConstant, 'torsionConstant'),
+      value(seg.torsionalRigidity, 'torsionalRigidity'),
+      value(seg.stiffness, 'torsionalStiffness'),
+    ]),
+  );
+  return `Segment stiffness (J: torsion constant of the section; k = GJ/L)\n${table(head, rows)}`;
 }
 
 /**
