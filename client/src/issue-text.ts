@@ -1,0 +1,37 @@
+/**
+ * What the screen says about the API's issues: one reader's sentence per
+ * problem, with readable paths ("shaft input › segment 2 › length") instead of
+ * JSON pointers, and the shafts free to spin said once.
+ */
+import type { ModelIssue } from '../../shared-types/errors.js';
+import { type EditModel, describePointer } from './model-edits.js';
+
+/** The shafts an issue list names as free to spin. */
+export function freeShafts(issues: readonly ModelIssue[]): string[] {
+  return issues.filter((i) => i.code === 'SN_MECHANISM').flatMap((i) => i.shafts ?? []);
+}
+
+/** One sentence for shafts free to spin: "Shafts output, tail are free to spin: …". */
+export function mechanismText(shafts: readonly string[]): string {
+  const many = shafts.length > 1;
+  return `${many ? 'Shafts' : 'Shaft'} ${shafts.join(', ')} ${many ? 'are' : 'is'} free to spin: add a fixed or spring support on ${
+    many ? 'them' : 'it'
+  }, or connect ${many ? 'them' : 'it'} to a supported shaft.`;
+}
+
+/** One issue as a reader's line: "shaft input › segment 1 › length: must be …". */
+export function issueLine(model: EditModel | null, issue: ModelIssue): string {
+  if (issue.code === 'SN_MECHANISM') return mechanismText(issue.shafts ?? []);
+  return `${describePointer(model, issue.pointer)}: ${issue.message}`;
+}
+
+/**
+ * The banner's reason for "not solved": the first problem in readable form and
+ * how many more the list holds; `fallback` (the API's message) when there are no issues.
+ */
+export function bannerReason(model: EditModel | null, issues: readonly ModelIssue[], fallback: string): string {
+  if (issues.length === 0) return fallback;
+  const first = issueLine(model, issues[0]).replace(/\.$/, '');
+  const more = issues.length - 1;
+  return more > 0 ? `${first} (and ${more} more, listed above)` : first;
+}
