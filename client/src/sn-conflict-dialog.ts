@@ -17,7 +17,7 @@ export class SnConflictDialog extends LitElement {
     p { font-size: 13.5px; }
     button { font: inherit; font-size: 13px; padding: 4px 12px; margin: 4px 6px 0 0; border-radius: 3px; border: 1px solid #c8c4bb; background: #fff; cursor: pointer; }
     button.primary { background: #1d3a4a; color: #fff; border-color: #1d3a4a; }
-    button:focus-visible { outline: 2px solid #d48a1a; outline-offset: 2px; }
+    button:focus { outline: 2px solid #d48a1a; outline-offset: 2px; }
   `;
 
   static override properties = {

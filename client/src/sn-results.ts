@@ -72,7 +72,7 @@ export class SnResults extends LitElement {
     .readout { font-size: 12.5px; color: #1d3a4a; background: #eef5f8; border-radius: 3px; padding: 3px 8px; margin: 2px 0 4px; min-height: 1.3em; font-variant-numeric: tabular-nums; }
     .readout.idle { color: #6b665e; background: none; }
     button.more { font: inherit; font-size: 12px; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
-    .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; }
+    .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; text-align: left; line-height: 0; }
     .warn { background: #fdf1d8; color: #7a4f00; padding: 4px 8px; border-radius: 4px; margin: 4px 0; font-size: 13px; }
     .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
     .muted { color: #6b665e; font-size: 12px; }

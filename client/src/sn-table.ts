@@ -82,8 +82,11 @@ export class SnTable extends LitElement {
     .invalid { border-color: #b3261e; background: #fdf0ef; }
     .msg { color: #b3261e; font-size: 11px; max-width: 18em; line-height: 1.25; padding: 1px 2px; }
     .rowmsg td { color: #b3261e; font-size: 12px; padding: 0 6px 4px; }
-    .rownote td { color: #1d3a4a; background: #eef5f8; font-size: 12px; padding: 3px 6px; border-left: 3px solid #2b6f8e; white-space: normal; }
+    .rownote td { padding: 2px 0 4px; }
+    .rownote .pinned { color: #1d3a4a; background: #eef5f8; font-size: 12px; padding: 3px 6px; border-left: 3px solid #2b6f8e; box-sizing: border-box; }
     .rowmsg td:first-child, .rownote td:first-child { position: static; }
+    /* A row's message stays in view while a wide table scrolls sideways, and wraps within the panel's width. */
+    .pinned { position: sticky; left: 0; max-width: 34em; white-space: normal; }
     button { font: inherit; font-size: 12px; cursor: pointer; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; }
     button.remove { border: none; background: none; color: #8a857c; font-size: 15px; padding: 0 5px; }
     button.remove:hover { color: #b3261e; }
@@ -202,8 +205,8 @@ export class SnTable extends LitElement {
           ? nothing
           : html`<td><button class="remove" title="Remove this ${this.noun}" aria-label="Remove ${this.noun} ${i + 1}" @click=${() => this.removeAt(i)}>×</button></td>`}
       </tr>
-      ${rowMsg ? html`<tr class="rowmsg"><td colspan=${this.columns.length + 1} id=${messageId(rp)}>${rowMsg}</td></tr>` : nothing}
-      ${this.notes[rp] ? html`<tr class="rownote" data-note=${rp}><td colspan=${this.columns.length + 1} role="status">${this.notes[rp]}</td></tr>` : nothing}`;
+      ${rowMsg ? html`<tr class="rowmsg"><td colspan=${this.columns.length + 1}><div class="pinned" id=${messageId(rp)}>${rowMsg}</div></td></tr>` : nothing}
+      ${this.notes[rp] ? html`<tr class="rownote" data-note=${rp}><td colspan=${this.columns.length + 1}><div class="pinned" role="status">${this.notes[rp]}</div></td></tr>` : nothing}`;
   }
 
   private renderCell(row: Record<string, unknown>, i: number, c: Column) {
