@@ -77,7 +77,8 @@ export class SnEditor extends LitElement {
           <span>
             <input class="name ${this.errors['/name'] ? 'invalid' : ''}" data-pointer="/name" .value=${live(m.name)}
               aria-invalid=${this.errors['/name'] ? 'true' : 'false'} aria-describedby=${this.errors['/name'] ? messageId('/name') : nothing}
-              @change=${(e: Event) => this.edit('/name', (e.target as HTMLInputElement).value)} />
+              @change=${(e: Event) => this.edit('/name', (e.target as HTMLInputElement).value)}
+              @keydown=${commitOnEnter} />
             ${this.errors['/name'] ? html`<div class="msg" id=${messageId('/name')}>${this.errors['/name']}</div>` : nothing}
           </span>
         </label>
@@ -171,6 +172,15 @@ export class SnEditor extends LitElement {
   private edit(pointer: string, value: unknown): void {
     this.dispatchEvent(new CustomEvent<EditDetail>('sn-edit', { detail: { pointer, value }, bubbles: true, composed: true }));
   }
+}
+
+/** Enter commits a one-line field as Tab would ("change" fires on blur), and the cursor stays in it. */
+function commitOnEnter(e: KeyboardEvent): void {
+  if (e.key !== 'Enter' || e.isComposing) return;
+  e.preventDefault();
+  const input = e.target as HTMLInputElement;
+  input.blur();
+  input.focus();
 }
 
 const has = (k: string) => (r: Row) => r[k] !== undefined;

@@ -65,7 +65,10 @@ function valueAt(row: Record<string, unknown>, col: Column): unknown {
 export class SnTable extends LitElement {
   static override styles = css`
     :host { display: block; }
-    .wrap { overflow-x: auto; max-width: 100%; }
+    /* A shadow at the right edge says there is more to scroll to (it is covered once the end is reached). */
+    .wrap { overflow-x: auto; max-width: 100%;
+      background: linear-gradient(to left, #fff 40%, rgba(255, 255, 255, 0)) right / 28px 100% no-repeat local,
+        radial-gradient(farthest-side at 100% 50%, rgba(29, 58, 74, 0.28), rgba(29, 58, 74, 0)) right / 12px 100% no-repeat scroll; }
     table { border-collapse: separate; border-spacing: 0; font-size: 13px; }
     th:first-child, td:first-child { position: sticky; left: 0; z-index: 1; background: #fff; }
     tr.row.selected > td:first-child { background: #fbeed3; }
