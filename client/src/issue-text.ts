@@ -31,7 +31,12 @@ export function issueLine(model: EditModel | null, issue: ModelIssue): string {
  */
 export function bannerReason(model: EditModel | null, issues: readonly ModelIssue[], fallback: string): string {
   if (issues.length === 0) return fallback;
-  const first = issueLine(model, issues[0]).replace(/\.$/, '');
-  const more = issues.length - 1;
+  const free = freeShafts(issues);
+  // The list above says what to do about shafts free to spin; the banner only names them.
+  const first =
+    issues[0].code === 'SN_MECHANISM'
+      ? `${free.length > 1 ? 'shafts' : 'shaft'} ${free.join(', ')} ${free.length > 1 ? 'are' : 'is'} free to spin (see above)`
+      : issueLine(model, issues[0]).replace(/\.$/, '');
+  const more = issues.filter((i) => i.code !== 'SN_MECHANISM').length - (issues[0].code === 'SN_MECHANISM' ? 0 : 1);
   return more > 0 ? `${first} (and ${more} more, listed above)` : first;
 }

@@ -88,8 +88,9 @@ export class SnTable extends LitElement {
     .rownote td { padding: 2px 0 4px; }
     .rownote .pinned { color: #1d3a4a; background: #eef5f8; font-size: 12px; padding: 3px 6px; border-left: 3px solid #2b6f8e; box-sizing: border-box; }
     .rowmsg td:first-child, .rownote td:first-child { position: static; }
-    /* A row's message stays in view while a wide table scrolls sideways, and wraps within the panel's width. */
-    .pinned { position: sticky; left: 0; max-width: 34em; white-space: normal; }
+    /* A row's message stays in view while a wide table scrolls sideways, wraps within the panel's width,
+       and never widens the table (no intrinsic width of its own). */
+    .pinned { position: sticky; left: 0; max-width: 34em; white-space: normal; contain: inline-size; }
     button { font: inherit; font-size: 12px; cursor: pointer; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; }
     button.remove { border: none; background: none; color: #8a857c; font-size: 15px; padding: 0 5px; }
     button.remove:hover { color: #b3261e; }

@@ -241,7 +241,8 @@ describe('what the screen says about problems', () => {
     expect(bannerReason(demo, issues, 'raw')).toBe('shaft input › segment 2 › length: must be positive (and 1 more, listed above)');
     expect(bannerReason(demo, [], '/x: raw')).toBe('/x: raw');
     const mech = { code: 'SN_MECHANISM' as const, pointer: '/supports', message: 'shaft "tail" can spin freely', shafts: ['tail'] };
-    expect(bannerReason(demo, [mech], '')).toBe('Shaft tail is free to spin: add a fixed or spring support on it, or connect it to a supported shaft');
+    expect(bannerReason(demo, [mech], '')).toBe('shaft tail is free to spin (see above)');
+    expect(issueLine(demo, mech)).toBe('Shaft tail is free to spin: add a fixed or spring support on it, or connect it to a supported shaft.');
     expect(mechanismText(['a', 'b'])).toMatch(/^Shafts a, b are free to spin: add a fixed or spring support on them/);
   });
 
