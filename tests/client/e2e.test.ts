@@ -643,7 +643,8 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     expect(Number(await torquePlot.locator('g.readout').getAttribute('data-value'))).toBeCloseTo(expected, 9);
     expect(await shaft.locator('p.readout').innerText()).toMatch(/^At z = .* T = .* N·m, φ = .* deg, τ = .* MPa$/);
     await shot(page, '16-cursor-readout');
-    // Segments: G·J of the d40 steel segment, G·π·d⁴/32 (solid circular section, closed form), G = 79.3 GPa, d = 40 mm.
+    // Segments: G·J of the d40 steel segment, G·π·d⁴/32 (solid circular section, closed form), G = 79.3 GPa, d = 40 mm;
+    // shown with 5 significant figures (19930 N·m²), hence the tolerance of ±5 (toBeCloseTo with -1 digits).
     const gj = (79.3e9 * Math.PI * 0.04 ** 4) / 32;
     expect(Number(await shaft.locator('sn-segment-table tr[data-segment="0"] td[data-gj]').innerText())).toBeCloseTo(gj, -1);
     const seg0 = input.segments[0] as (typeof input.segments)[number] & { torsionConstant?: number; stiffness?: number };
