@@ -467,3 +467,28 @@ export function sizingNote(before: EditModel, after: EditModel, index: number): 
   const how = now.module !== undefined ? 'sized by teeth (pitch radius = teeth × module / 2)' : 'sized by pitch radius';
   return `${now.id} is now ${how}: radii ${mm(rNow[0])} and ${mm(rNow[1])}, were ${mm(rWas[0])} and ${mm(rWas[1])}. The mesh force and torques change with them; check the teeth and module.`;
 }
+
+/** The model "New" starts from: one steel shaft of 500 mm held at z = 0 with a torque at its end (invented). */
+export function blankModel(): EditModel {
+  return {
+    format: 'shaftnet/1',
+    name: 'New shaft system',
+    materials: [{ id: 'steel', name: 'Steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
+    sections: [{ id: 'd40', shape: 'solid', d: '40 mm' }],
+    shafts: [{ id: 'shaft1', segments: [{ length: '500 mm', section: 'd40', material: 'steel' }] }],
+    supports: [{ id: 'A', shaft: 'shaft1', at: 0, kind: 'fixed' }],
+    torques: [{ id: 'T1', shaft: 'shaft1', at: '500 mm', torque: '100 N*m' }],
+  };
+}
+
+/**
+ * The model in a file's text: a model, or a library export that wraps one in
+ * `{ model }`. Throws an Error that says why when it is neither (the server
+ * checks the rest when it is solved).
+ */
+export function modelFromFile(text: string): EditModel {
+  const data = JSON.parse(text) as unknown;
+  const model = (data && typeof data === 'object' && 'model' in data && !('format' in data) ? (data as { model: unknown }).model : data) as EditModel;
+  if (!model || typeof model !== 'object' || !Array.isArray(model.shafts)) throw new Error('not a Shaftnet model (no "shafts")');
+  return model;
+}

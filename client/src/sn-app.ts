@@ -1,6 +1,6 @@
 import { LitElement, css, html, nothing } from 'lit';
 import type { ModelIssue } from '../../shared-types/errors.js';
-import { type EditModel, History, applyEdit, getAt, insertRow, issuesByPointer, removeRow, rowFor, sameJson, sizingNote } from './model-edits.js';
+import { type EditModel, History, applyEdit, blankModel, getAt, insertRow, modelFromFile, removeRow, rowFor, sameJson, sizingNote } from './model-edits.js';
 import { ApiError, api } from './api.js';
 import { download, fileName, stationsCsv } from './export.js';
 import type { UnitSystem } from './units.js';
@@ -13,7 +13,7 @@ import type { GoDetail } from './sn-problems.js';
 import { SolveController, TYPING_DELAY } from './controllers/solve-controller.js';
 import { LibraryDocumentController } from './controllers/library-document.js';
 import { ShortcutsController } from './controllers/shortcuts.js';
-import { bannerReason, freeShafts } from './issue-text.js';
+import { type IssueMarks, bannerReason, issueMarks } from './issue-text.js';
 import './sn-top-bar.js';
 import './sn-editor.js';
 import './sn-schematic.js';
@@ -123,6 +123,7 @@ export class SnApp extends LitElement {
     const dirty = this.library.isDirty(m);
     const state = this.solver.state;
     const issues = this.solver.issues;
+    const marks = this.marks(issues);
     return html`
       <sn-top-bar .modelName=${m?.name ?? ''} .doc=${doc} ?dirty=${dirty} ?canUndo=${this.history.canUndo} ?canRedo=${this.history.canRedo}
         .system=${this.system} ?hasSolution=${this.solver.solution !== null}
@@ -133,8 +134,8 @@ export class SnApp extends LitElement {
             <div class="col editor-col">
               <div class="card editor-card">
                 <h2>Model</h2>
-                <sn-editor .model=${m} .system=${this.system} .errors=${this.fieldErrors(issues)} .selected=${this.selected}
-                  .flagged=${this.flagged(issues)} .notes=${this.notes}></sn-editor>
+                <sn-editor .model=${m} .system=${this.system} .errors=${marks.messages} .selected=${this.selected}
+                  .flagged=${marks.rows} .notes=${this.notes}></sn-editor>
               </div>
             </div>
             <div class="col">
@@ -142,7 +143,7 @@ export class SnApp extends LitElement {
               <sn-problems .model=${m} .issues=${issues} ?invalid=${state === 'invalid'} @sn-go=${this.onGo}></sn-problems>
               <div class="card">
                 <h2>Schematic</h2>
-                <sn-schematic .model=${m} .system=${this.system} .selected=${this.selected} .flaggedShafts=${this.freeShaftIds(issues)}></sn-schematic>
+                <sn-schematic .model=${m} .system=${this.system} .selected=${this.selected} .flaggedShafts=${marks.shafts}></sn-schematic>
               </div>
               <div class="card">
                 <h2>Results</h2>
@@ -231,45 +232,15 @@ export class SnApp extends LitElement {
     this.changed(this.history.redo());
   }
 
-  private errorsCache: { issues: readonly ModelIssue[]; model: EditModel | null; errors: Record<string, string> } | null = null;
+  private marksCache: { model: EditModel | null; issues: readonly ModelIssue[]; marks: IssueMarks } | null = null;
 
-  /** Messages by field pointer (the same object while issues and model stay, so the editor does not re-render for nothing). */
-  private fieldErrors(issues: readonly ModelIssue[]): Record<string, string> {
-    const c = this.errorsCache;
-    if (c && c.issues === issues && c.model === this.model) return c.errors;
-    const out = issuesByPointer(issues.filter((i) => i.code !== 'SN_MECHANISM'));
-    for (const p of this.flaggedRows(issues)) out[p] = 'Free to spin: add a fixed or spring support on this shaft or on one it drives.';
-    for (const i of issues) {
-      for (const c of i.connections ?? []) {
-        const g = (this.model?.gearMeshes ?? []).findIndex((x) => x.id === c);
-        const k = (this.model?.couplings ?? []).findIndex((x) => x.id === c);
-        const p = g >= 0 ? `/gearMeshes/${g}` : k >= 0 ? `/couplings/${k}` : '';
-        if (p && !out[p]) out[p] = i.message;
-      }
-    }
-    this.errorsCache = { issues, model: this.model, errors: out };
-    return out;
-  }
-
-  private freeCache: { issues: readonly ModelIssue[]; ids: string[] } | null = null;
-
-  /** Ids of the shafts free to spin (the same array while the issues stay). */
-  private freeShaftIds(issues: readonly ModelIssue[]): string[] {
-    if (this.freeCache?.issues !== issues) this.freeCache = { issues, ids: freeShafts(issues) };
-    return this.freeCache.ids;
-  }
-
-  private flaggedCache: { issues: readonly ModelIssue[]; rows: string[] } | null = null;
-
-  /** Rows of shafts free to spin (the same array while the issues stay). */
-  private flagged(issues: readonly ModelIssue[]): string[] {
-    if (this.flaggedCache?.issues !== issues) this.flaggedCache = { issues, rows: this.flaggedRows(issues) };
-    return this.flaggedCache.rows;
-  }
-
-  private flaggedRows(issues: readonly ModelIssue[]): string[] {
-    const ids = freeShafts(issues);
-    return (this.model?.shafts ?? []).flatMap((s, i) => (ids.includes(s.id) ? [`/shafts/${i}`] : []));
+  /** The issues' marks, the same object while model and issues stay (so nothing re-renders for nothing). */
+  private marks(issues: readonly ModelIssue[]): IssueMarks {
+    const c = this.marksCache;
+    if (c && c.model === this.model && c.issues === issues) return c.marks;
+    const marks = issueMarks(this.model, issues);
+    this.marksCache = { model: this.model, issues, marks };
+    return marks;
   }
 
   // ——— events from the editor, schematic and results ———
@@ -383,9 +354,7 @@ export class SnApp extends LitElement {
   private onImport = async (e: CustomEvent<{ file: File }>): Promise<void> => {
     const file = e.detail.file;
     try {
-      const data = JSON.parse(await file.text()) as unknown;
-      const model = (data && typeof data === 'object' && 'model' in data && !('format' in data) ? (data as { model: unknown }).model : data) as EditModel;
-      if (!model || typeof model !== 'object' || !Array.isArray(model.shafts)) throw new Error('not a Shaftnet model (no "shafts")');
+      const model = modelFromFile(await file.text());
       if (!this.confirmDiscard()) return;
       this.library.openUnsaved(model, 'import');
       this.say(`Imported ${file.name}. Save it to share it.`);
@@ -395,19 +364,7 @@ export class SnApp extends LitElement {
   };
 
   private newModel(): void {
-    if (!this.confirmDiscard()) return;
-    this.library.openUnsaved(
-      {
-        format: 'shaftnet/1',
-        name: 'New shaft system',
-        materials: [{ id: 'steel', name: 'Steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
-        sections: [{ id: 'd40', shape: 'solid', d: '40 mm' }],
-        shafts: [{ id: 'shaft1', segments: [{ length: '500 mm', section: 'd40', material: 'steel' }] }],
-        supports: [{ id: 'A', shaft: 'shaft1', at: 0, kind: 'fixed' }],
-        torques: [{ id: 'T1', shaft: 'shaft1', at: '500 mm', torque: '100 N*m' }],
-      },
-      'new',
-    );
+    if (this.confirmDiscard()) this.library.openUnsaved(blankModel(), 'new');
   }
 
   private async copyLink(): Promise<void> {

@@ -27,8 +27,10 @@ import {
   newSupportPlace,
   shaftLength,
   sizingNote,
+  blankModel,
+  modelFromFile,
 } from '../../client/src/model-edits.js';
-import { bannerReason, issueLine, mechanismText } from '../../client/src/issue-text.js';
+import { bannerReason, issueLine, issueMarks, mechanismText } from '../../client/src/issue-text.js';
 import { stepCursor, valueAt } from '../../client/src/diagram-readout.js';
 import { fileName, stationsCsv } from '../../client/src/export.js';
 import { parseInput } from '../../client/src/units.js';
@@ -180,6 +182,22 @@ describe('a new support', () => {
   });
 });
 
+describe('files and new models', () => {
+  it('read a model, or the model inside a library export, and refuse what is neither', () => {
+    expect(modelFromFile(JSON.stringify(demo)).name).toBe(demo.name);
+    expect(modelFromFile(JSON.stringify({ id: 'x', revision: 3, model: demo })).shafts).toHaveLength(3);
+    expect(() => modelFromFile('{"name":"no shafts"}')).toThrow(/no "shafts"/);
+    expect(() => modelFromFile('not json')).toThrow();
+  });
+
+  it('start a new model with one shaft held at z = 0', () => {
+    const m = blankModel();
+    expect(m.shafts).toHaveLength(1);
+    expect(m.supports).toEqual([{ id: 'A', shaft: 'shaft1', at: 0, kind: 'fixed' }]);
+    expect(blankModel()).not.toBe(m); // a fresh object each time
+  });
+});
+
 describe('undo and redo', () => {
   it('walk back and forth over committed snapshots', () => {
     const h = new History<Model>(demo);
@@ -244,6 +262,21 @@ describe('what the screen says about problems', () => {
     expect(bannerReason(demo, [mech], '')).toBe('shaft tail is free to spin (see above)');
     expect(issueLine(demo, mech)).toBe('Shaft tail is free to spin: add a fixed or spring support on it, or connect it to a supported shaft.');
     expect(mechanismText(['a', 'b'])).toMatch(/^Shafts a, b are free to spin: add a fixed or spring support on them/);
+  });
+
+  it('mark the fields, the rows of shafts free to spin and the connections of a loop', () => {
+    const marks = issueMarks(demo, [
+      { code: 'SN_MECHANISM', pointer: '/supports', message: 'free', shafts: ['tail'] },
+      { code: 'SN_LOOP_MISMATCH', pointer: '', message: 'the loop does not close', connections: ['G1', 'C1'] },
+      { code: 'SN_NOT_POSITIVE', pointer: '/sections/0/d', message: 'must be positive' },
+    ]);
+    expect(marks.shafts).toEqual(['tail']);
+    expect(marks.rows).toEqual(['/shafts/2']);
+    expect(marks.messages['/shafts/2']).toMatch(/^Free to spin/);
+    expect(marks.messages['/gearMeshes/0']).toBe('the loop does not close');
+    expect(marks.messages['/couplings/0']).toBe('the loop does not close');
+    expect(marks.messages['/sections/0/d']).toBe('must be positive');
+    expect(marks.messages['/supports']).toBeUndefined(); // the mechanism is said once, on the shaft's row
   });
 
   it('says what a gear mesh sized by teeth does to its radii', () => {
