@@ -77,7 +77,7 @@ export class SnResults extends LitElement {
     .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
     .muted { color: #6b665e; font-size: 12px; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
-    @media print { .banner.fresh { display: none; } .body.dim { opacity: 1; filter: none; } }
+    @media print { .banner.fresh, .readout.idle, button.more { display: none; } .body.dim { opacity: 1; filter: none; } }
   `;
 
   static override properties = {
@@ -234,7 +234,7 @@ export class SnResults extends LitElement {
               <td>${k.label}</td>
               <td class="num value-of">${formatValue(c.value, k.kind, this.system, 3)} of ${formatValue(c.limit, k.kind, this.system, 3)} ${this.unit(k.kind)}</td>
               <td class="num"><span class="barbox" aria-hidden="true"><span class="bar ${over ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
-              <td class="status ${over ? 'fail' : 'ok'}">${over ? html`<span aria-hidden="true">⚠ </span>EXCEEDS by ${formatNumber((u - 1) * 100, 2)} %` : 'ok'}</td>
+              <td class="status ${over ? 'fail' : 'ok'}">${over ? html`<span aria-hidden="true">⚠ </span>EXCEEDS by ${formatNumber((u - 1) * 100, 3)} %` : 'ok'}</td>
             </tr>`;
           })}
         </tbody>
