@@ -77,7 +77,7 @@ export class SnResults extends LitElement {
     .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
     .muted { color: #6b665e; font-size: 12px; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
-    @media print { .banner.fresh, .readout.idle, button.more { display: none; } .body.dim { opacity: 1; filter: none; } }
+    @media print { .banner.fresh, .readout.idle { display: none; } .body.dim { opacity: 1; filter: none; } }
   `;
 
   static override properties = {
