@@ -265,8 +265,8 @@ export class SnApp extends LitElement {
     const m = this.model;
     if (!m) return;
     const { pointer, value } = e.detail;
-    if (sameJson(getAt(m, pointer), value)) return;
-    this.solver.solve(applyEdit(m, pointer, value), TYPING_DELAY);
+    // Typed back to what the model holds: solve the model itself (an earlier draft may have been solved).
+    this.solver.solve(sameJson(getAt(m, pointer), value) ? m : applyEdit(m, pointer, value), TYPING_DELAY);
   };
 
   private onRowAdd = (e: CustomEvent<RowDetail>): void => {

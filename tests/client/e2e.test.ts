@@ -468,6 +468,25 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     expect(errors).toEqual([]);
   });
 
+  it('solves what is being typed after a pause, without committing it; typing back solves the model as it is', async () => {
+    const { page, errors } = await open('/');
+    await waitFresh(page);
+    const before = await shownReactions(page);
+    const input = page.locator('sn-editor input[data-pointer="/torques/0/torque"]');
+    await input.focus();
+    await page.keyboard.press('Control+a');
+    await page.keyboard.type('400');
+    await expect.poll(async () => (await shownReactions(page)).A, { timeout: 10_000 }).not.toBeCloseTo(before.A, 6);
+    expect(await input.inputValue()).toBe('400'); // the answer arriving does not overwrite what is typed
+    expect(await page.locator('sn-top-bar button', { hasText: 'Undo' }).isDisabled()).toBe(true); // nothing committed
+    await page.keyboard.press('Control+a');
+    await page.keyboard.type('350'); // the demo's motor torque
+    await expect.poll(async () => (await shownReactions(page)).A, { timeout: 10_000 }).toBeCloseTo(before.A, 6);
+    await waitFresh(page);
+    expect(await page.locator('sn-top-bar button', { hasText: 'Undo' }).isDisabled()).toBe(true);
+    expect(errors).toEqual([]);
+  });
+
   it('puts a new support at the free end of the shaft, not on the support at z = 0', async () => {
     const { page, errors } = await open('/');
     await waitFresh(page);
