@@ -87,6 +87,12 @@ export class SnApp extends LitElement {
     say: (text) => this.say(text),
     auth: (e) => this.handleAuth(e),
   });
+  private readonly keys = new ShortcutsController(this, {
+    undo: () => this.undo(),
+    redo: () => this.redo(),
+    panelOpen: () => this.panel !== 'none',
+    closePanel: () => this.closePanel(),
+  });
 
   constructor() {
     super();
@@ -97,12 +103,6 @@ export class SnApp extends LitElement {
     this.toast = '';
     this.needSignIn = false;
     this.notes = {};
-    new ShortcutsController(this, {
-      undo: () => this.undo(),
-      redo: () => this.redo(),
-      panelOpen: () => this.panel !== 'none',
-      closePanel: () => this.closePanel(),
-    });
   }
 
   override connectedCallback(): void {
