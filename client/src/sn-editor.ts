@@ -1,7 +1,7 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
-import type { EditModel } from './store.js';
-import type { Column, EditDetail } from './sn-table.js';
+import type { EditModel } from './model-edits.js';
+import { type Column, type EditDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
 import './sn-table.js';
 
@@ -11,11 +11,13 @@ type Row = Record<string, unknown>;
  * The model editor: a table per list of the contract, sub-tables for the
  * segments of each shaft and the layers of each layered section, and the
  * model's name, notes and limits. Edits go up as events; the model comes down.
+ * `focusPointer` shows and focuses the field a problem names.
  *
  * @fires sn-edit - bubbled from the tables, and for the name and notes
  * @fires sn-row-add - bubbled from the tables
  * @fires sn-row-remove - bubbled from the tables
  * @fires sn-select - bubbled from the tables
+ * @fires sn-draft - bubbled from the tables
  */
 export class SnEditor extends LitElement {
   static override styles = css`
@@ -39,6 +41,7 @@ export class SnEditor extends LitElement {
     errors: { attribute: false },
     selected: { type: String },
     flagged: { attribute: false },
+    notes: { attribute: false },
   };
 
   declare model: EditModel | null;
@@ -47,6 +50,8 @@ export class SnEditor extends LitElement {
   declare selected: string;
   /** Pointers of rows to mark as in trouble (shafts free to spin). */
   declare flagged: readonly string[];
+  /** Notes shown under rows, by row pointer (e.g. what a gear mesh's new sizing did). */
+  declare notes: Readonly<Record<string, string>>;
 
   constructor() {
     super();
@@ -55,6 +60,7 @@ export class SnEditor extends LitElement {
     this.errors = {};
     this.selected = '';
     this.flagged = [];
+    this.notes = {};
   }
 
   override render() {
@@ -70,8 +76,10 @@ export class SnEditor extends LitElement {
           >Name
           <span>
             <input class="name ${this.errors['/name'] ? 'invalid' : ''}" data-pointer="/name" .value=${live(m.name)}
-              @change=${(e: Event) => this.edit('/name', (e.target as HTMLInputElement).value)} />
-            ${this.errors['/name'] ? html`<div class="msg">${this.errors['/name']}</div>` : nothing}
+              aria-invalid=${this.errors['/name'] ? 'true' : 'false'} aria-describedby=${this.errors['/name'] ? messageId('/name') : nothing}
+              @change=${(e: Event) => this.edit('/name', (e.target as HTMLInputElement).value)}
+              @keydown=${commitOnEnter} />
+            ${this.errors['/name'] ? html`<div class="msg" id=${messageId('/name')}>${this.errors['/name']}</div>` : nothing}
           </span>
         </label>
         <label class="field"
@@ -112,6 +120,37 @@ export class SnEditor extends LitElement {
     `;
   }
 
+  /**
+   * Shows and focuses the field a pointer names: its input, else the first
+   * field of the row, else the list's "+ Add" button, going up the pointer until
+   * something on screen matches; opens the section that holds it. False when
+   * nothing matches.
+   */
+  focusPointer(pointer: string): boolean {
+    const tables = [...this.renderRoot.querySelectorAll('sn-table')];
+    const fields = 'input:not(:disabled), select:not(:disabled), textarea';
+    for (let p = pointer; ; p = p.slice(0, p.lastIndexOf('/'))) {
+      const sel = `[data-pointer="${CSS.escape(p)}"]`;
+      let target: HTMLElement | null = this.renderRoot.querySelector<HTMLElement>(sel);
+      let holder: Element | null = target;
+      for (const t of tables) {
+        if (target) break;
+        const hit = t.renderRoot.querySelector<HTMLElement>(sel);
+        if (hit) target = hit.matches(fields) ? hit : hit.querySelector<HTMLElement>(fields);
+        else if (t.pointer === p) target = t.renderRoot.querySelector<HTMLElement>('button.add');
+        if (target) holder = t;
+      }
+      if (target && holder) {
+        const details = holder.closest('details');
+        if (details && !details.open) details.open = true;
+        target.scrollIntoView({ block: 'center' });
+        target.focus({ preventScroll: true });
+        return true;
+      }
+      if (p === '') return false;
+    }
+  }
+
   /** Scrolls the selected row into view in whichever table holds it. */
   revealSelected(): void {
     for (const t of this.renderRoot.querySelectorAll('sn-table')) t.revealSelected();
@@ -127,12 +166,21 @@ export class SnEditor extends LitElement {
 
   private table(pointer: string, noun: string, rows: Row[], columns: Column[]) {
     return html`<sn-table .rows=${rows} .columns=${columns} pointer=${pointer} noun=${noun} .system=${this.system}
-      .errors=${this.errors} .selected=${this.selected} .flagged=${this.flagged}></sn-table>`;
+      .errors=${this.errors} .selected=${this.selected} .flagged=${this.flagged} .notes=${this.notes}></sn-table>`;
   }
 
   private edit(pointer: string, value: unknown): void {
     this.dispatchEvent(new CustomEvent<EditDetail>('sn-edit', { detail: { pointer, value }, bubbles: true, composed: true }));
   }
+}
+
+/** Enter commits a one-line field as Tab would ("change" fires on blur), and the cursor stays in it. */
+function commitOnEnter(e: KeyboardEvent): void {
+  if (e.key !== 'Enter' || e.isComposing) return;
+  e.preventDefault();
+  const input = e.target as HTMLInputElement;
+  input.blur();
+  input.focus();
 }
 
 const has = (k: string) => (r: Row) => r[k] !== undefined;

@@ -1,4 +1,5 @@
 import { LitElement, css, html, nothing, svg } from 'lit';
+import { stepCursor, valueAt } from './diagram-readout.js';
 import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, prettyUnit, toDisplay } from './units.js';
 
 const PW = 680; // px, viewBox width
@@ -19,10 +20,17 @@ export function niceTicks(lo: number, hi: number, count = 5): number[] {
   return out;
 }
 
+/** Detail of `sn-cursor`: the z (m) to read the diagrams at, or null to stop reading. */
+export interface CursorDetail { z: number | null }
+
 /**
  * A diagram of one quantity along a shaft's z: a line through the given points
  * (two points at one z draw a jump), shaded to zero, with the governing point
  * marked and labelled. Values come in SI and are shown in the system's units.
+ * A cursor (a vertical line with the value) follows the pointer, or ← → Home End
+ * when the diagram has the focus; the parent reads all diagrams of a shaft at it.
+ *
+ * @fires sn-cursor - {z}: the pointer or a key moved the cursor (null: it left)
  */
 export class SnPlot extends LitElement {
   static override styles = css`
@@ -31,6 +39,9 @@ export class SnPlot extends LitElement {
     .tick { font-size: 11px; fill: #6b665e; }
     .title { font-size: 12.5px; font-weight: 600; fill: #1d3a4a; }
     .mark { font-size: 11.5px; font-weight: 600; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
+    .cursor { font-size: 11.5px; font-weight: 600; fill: #1d3a4a; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
+    svg:focus { outline: 2px solid #2b6f8e; outline-offset: 1px; }
+    svg:focus-visible { outline: 2px solid #2b6f8e; }
   `;
 
   static override properties = {
@@ -42,6 +53,7 @@ export class SnPlot extends LitElement {
     color: { type: String },
     markIndex: { type: Number },
     breaks: { attribute: false },
+    cursor: { attribute: false },
   };
 
   declare z: readonly number[];
@@ -55,6 +67,8 @@ export class SnPlot extends LitElement {
   declare markIndex: number;
   /** z of segment boundaries, drawn as faint verticals. */
   declare breaks: readonly number[];
+  /** z (m) of the reading cursor, or null. */
+  declare cursor: number | null;
 
   constructor() {
     super();
@@ -66,6 +80,7 @@ export class SnPlot extends LitElement {
     this.color = '#2b6f8e';
     this.markIndex = -1;
     this.breaks = [];
+    this.cursor = null;
   }
 
   override render() {
@@ -91,6 +106,17 @@ export class SnPlot extends LitElement {
     const xt = niceTicks(x0, x1, 8);
     const mi = this.markIndex;
     const unit = prettyUnit(displayUnit(this.kind, this.system));
+    const cz = this.cursor;
+    const cv = cz === null ? null : valueAt(this.z, this.values, cz);
+    const cx = cz === null ? 0 : X(toDisplay(cz, 'length', this.system));
+    const cursor =
+      cz !== null && cv !== null
+        ? svg`<g class="readout" data-z=${cz} data-value=${cv}>
+            <line x1=${cx} x2=${cx} y1=${MT} y2=${PH - MB} stroke="#1d3a4a" stroke-width="1" stroke-dasharray="4 2"/>
+            <circle cx=${cx} cy=${Y(toDisplay(cv, this.kind, this.system))} r="3.5" fill="#1d3a4a"/>
+            <text class="cursor" x=${cx > PW / 2 ? cx - 6 : cx + 6} y=${MT + 10} text-anchor=${cx > PW / 2 ? 'end' : 'start'}>${formatQuantity(cv, this.kind, this.system, 4)}</text>
+          </g>`
+        : nothing;
     const mark =
       mi >= 0 && mi < xs.length
         ? svg`<g class="gov" data-z=${this.z[mi]} data-value=${this.values[mi]}>
@@ -101,7 +127,9 @@ export class SnPlot extends LitElement {
             </text>
           </g>`
         : nothing;
-    return html`<svg viewBox="0 0 ${PW} ${PH}" role="img" aria-label=${this.label}>
+    return html`<svg viewBox="0 0 ${PW} ${PH}" role="img" tabindex="0"
+      aria-label=${`${this.label}; pointer or arrow keys read the value at any z`}
+      @pointermove=${this.onPointer} @pointerleave=${this.onLeave} @keydown=${this.onKey} @blur=${this.onLeave}>
       <text class="title" x=${ML} y="13">${this.label} [${unit}]</text>
       ${yt.map((t) => svg`<line x1=${ML} x2=${PW - MR} y1=${Y(t)} y2=${Y(t)} stroke="#e4e0d8"/>
         <text class="tick" x=${ML - 5} y=${Y(t) + 3} text-anchor="end">${formatNumber(t, 4)}</text>`)}
@@ -111,8 +139,38 @@ export class SnPlot extends LitElement {
       <polygon points=${area} fill=${this.color} fill-opacity="0.13" />
       <line x1=${ML} x2=${PW - MR} y1=${Y(0)} y2=${Y(0)} stroke="#6b665e" />
       <polyline points=${pts} fill="none" stroke=${this.color} stroke-width="1.8" stroke-linejoin="round" />
-      ${mark}
+      ${mark} ${cursor}
     </svg>`;
+  }
+
+  private zRange(): [number, number] {
+    return [Math.min(...this.z), Math.max(...this.z)];
+  }
+
+  private onPointer(e: PointerEvent): void {
+    const svgEl = e.currentTarget as SVGSVGElement;
+    const box = svgEl.getBoundingClientRect();
+    if (box.width <= 0) return;
+    const x = ((e.clientX - box.left) / box.width) * PW;
+    const [z0, z1] = this.zRange();
+    const frac = (x - ML) / (PW - ML - MR);
+    this.fireCursor(frac < 0 || frac > 1 ? null : z0 + frac * (z1 - z0));
+  }
+
+  private onLeave(): void {
+    this.fireCursor(null);
+  }
+
+  private onKey(e: KeyboardEvent): void {
+    const [z0, z1] = this.zRange();
+    const next = stepCursor(e.key, e.shiftKey, this.cursor, z0, z1);
+    if (next === null) return;
+    e.preventDefault();
+    this.fireCursor(next);
+  }
+
+  private fireCursor(z: number | null): void {
+    this.dispatchEvent(new CustomEvent<CursorDetail>('sn-cursor', { detail: { z }, bubbles: true, composed: true }));
   }
 }
 

@@ -1,9 +1,13 @@
 import { LitElement, css, html, nothing } from 'lit';
 import type { CheckResult, Solution } from '../../shared-types/solution.js';
-import type { EditModel } from './store.js';
+import type { EditModel } from './model-edits.js';
 import type { SelectDetail } from './sn-table.js';
-import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatValue, prettyUnit } from './units.js';
+import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, formatValue, prettyUnit } from './units.js';
+import type { CursorDetail } from './sn-plot.js';
+import { valueAt } from './diagram-readout.js';
 import './sn-plot.js';
+import './sn-segment-table.js';
+import './sn-station-table.js';
 
 /** Where the results stand against the model on screen. */
 export type ResultState = 'none' | 'fresh' | 'stale' | 'solving' | 'invalid' | 'failed';
@@ -13,6 +17,9 @@ const CHECK_KIND: Record<CheckResult['kind'], { label: string; kind: FieldKind }
   twistRate: { label: 'Twist rate', kind: 'twistRate' },
   totalTwist: { label: 'Total twist', kind: 'angle' },
 };
+
+/** Checks listed before "Show all": the worst ones. */
+const CHECKS_SHOWN = 12;
 
 /** Index of the largest |value|. */
 function peakIndex(values: readonly number[]): number {
@@ -29,8 +36,10 @@ function peakIndex(values: readonly number[]): number {
 
 /**
  * The answer for a model: state banner, reactions, mesh and coupling results,
- * the equilibrium residual, warnings, the check table (worst first) and, per
- * shaft, diagrams of torque, rotation and shear along z.
+ * the equilibrium residual, warnings, the check table (worst first: "65.3 of
+ * 55 MPa", an over-limit row marked by a sign, a word and a hatched bar, not by
+ * colour alone) and, per shaft, its segments (J, G·J, k), diagrams of torque,
+ * rotation and shear along z with a readout at the cursor's z, and its stations.
  *
  * @fires sn-select - {pointer}: a result row for a model item was clicked
  */
@@ -56,13 +65,19 @@ export class SnResults extends LitElement {
     .fail { color: #b3261e; font-weight: 600; }
     .ok { color: #1f5a3a; }
     .bar { display: inline-block; height: 8px; background: #2b6f8e; vertical-align: middle; border-radius: 2px; }
-    .bar.over { background: #b3261e; }
-    .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; }
+    .bar.over { background: repeating-linear-gradient(135deg, #b3261e 0 4px, #f3c1bc 4px 7px); outline: 1px solid #8c1d18; }
+    tr.over td { background: #fdf0ef; font-weight: 600; }
+    tr.over td:first-child { box-shadow: inset 4px 0 0 #8c1d18; padding-left: 6px; }
+    .status { white-space: nowrap; }
+    .readout { font-size: 12.5px; color: #1d3a4a; background: #eef5f8; border-radius: 3px; padding: 3px 8px; margin: 2px 0 4px; min-height: 1.3em; font-variant-numeric: tabular-nums; }
+    .readout.idle { color: #6b665e; background: none; }
+    button.more { font: inherit; font-size: 12px; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
+    .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; text-align: left; line-height: 0; }
     .warn { background: #fdf1d8; color: #7a4f00; padding: 4px 8px; border-radius: 4px; margin: 4px 0; font-size: 13px; }
     .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
     .muted { color: #6b665e; font-size: 12px; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
-    @media print { .banner.fresh { display: none; } .body.dim { opacity: 1; filter: none; } }
+    @media print { .banner.fresh, .readout.idle { display: none; } .body.dim { opacity: 1; filter: none; } }
   `;
 
   static override properties = {
@@ -72,6 +87,8 @@ export class SnResults extends LitElement {
     state: { type: String },
     message: { type: String },
     selected: { type: String },
+    cursors: { state: true },
+    allChecks: { state: true },
   };
 
   declare solution: Solution | null;
@@ -81,6 +98,10 @@ export class SnResults extends LitElement {
   /** Why the results are not fresh (an API message), shown in the banner. */
   declare message: string;
   declare selected: string;
+  /** The reading cursor's z (m) per shaft id. */
+  declare private cursors: Readonly<Record<string, number>>;
+  /** Show every check, not only the worst ones. */
+  declare private allChecks: boolean;
 
   constructor() {
     super();
@@ -90,6 +111,8 @@ export class SnResults extends LitElement {
     this.state = 'none';
     this.message = '';
     this.selected = '';
+    this.cursors = {};
+    this.allChecks = false;
   }
 
   override render() {
@@ -193,42 +216,67 @@ export class SnResults extends LitElement {
   }
 
   private checks(s: Solution) {
-    const rows = [...s.checks].sort((a, b) => b.utilisation - a.utilisation);
+    const sorted = [...s.checks].sort((a, b) => b.utilisation - a.utilisation);
+    // The worst ones first; the rest on request (a long shaft has a check per segment and layer).
+    const rows = this.allChecks ? sorted : sorted.slice(0, CHECKS_SHOWN);
     if (rows.length === 0) return html`<h3>Checks</h3><p class="muted">No checks: give materials an allowable shear stress, or set limits.</p>`;
     return html`<h3>Checks, worst first</h3>
       <table class="checks">
-        <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value</th><th>Allowed</th><th>Utilisation</th><th></th></tr></thead>
+        <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value of allowed</th><th>Utilisation</th><th>Status</th></tr></thead>
         <tbody>
           ${rows.map((c) => {
             const k = CHECK_KIND[c.kind];
             const u = c.utilisation;
-            return html`<tr data-check=${c.kind}>
+            const over = !c.pass;
+            return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'}>
               <td>${c.shaft}</td><td>${c.segment === undefined ? '—' : c.segment + 1}</td>
               <td>${c.layer === undefined ? '—' : `${c.layer + 1}${c.material ? ` (${c.material})` : ''}`}</td>
               <td>${k.label}</td>
-              <td class="num">${formatValue(c.value, k.kind, this.system, 4)} ${this.unit(k.kind)}</td>
-              <td class="num">${formatValue(c.limit, k.kind, this.system, 4)} ${this.unit(k.kind)}</td>
-              <td class="num"><span class="barbox"><span class="bar ${u > 1 ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
-              <td class=${c.pass ? 'ok' : 'fail'}>${c.pass ? 'ok' : 'EXCEEDS'}</td>
+              <td class="num value-of">${formatValue(c.value, k.kind, this.system, 3)} of ${formatValue(c.limit, k.kind, this.system, 3)} ${this.unit(k.kind)}</td>
+              <td class="num"><span class="barbox" aria-hidden="true"><span class="bar ${over ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
+              <td class="status ${over ? 'fail' : 'ok'}">${over ? html`<span aria-hidden="true">⚠ </span>EXCEEDS by ${formatNumber((u - 1) * 100, 3)} %` : 'ok'}</td>
             </tr>`;
           })}
         </tbody>
-      </table>`;
+      </table>
+      ${sorted.length > rows.length
+        ? html`<button class="more" @click=${() => (this.allChecks = true)}>Show all ${sorted.length} checks</button>`
+        : nothing}`;
   }
 
   private shaftPlots(sh: Solution['shafts'][number]) {
     const d = sh.diagram;
     const breaks = sh.segments.slice(1).map((g) => g.from);
+    const cz = this.cursors[sh.id] ?? null;
+    const onCursor = (e: CustomEvent<CursorDetail>) => {
+      const { [sh.id]: _drop, ...rest } = this.cursors;
+      this.cursors = e.detail.z === null ? rest : { ...rest, [sh.id]: e.detail.z };
+    };
     return html`<div class="shaft" data-shaft=${sh.id}>
       <h4>${sh.name ? `${sh.name} (${sh.id})` : sh.id}
         <span class="muted">— length ${formatValue(sh.length, 'length', this.system)} ${this.unit('length')}, largest relative twist
         ${formatValue(sh.totalTwist, 'angle', this.system, 4)} ${this.unit('angle')}</span></h4>
-      <div class="plots">
-        <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label="Internal torque T" color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks}></sn-plot>
-        <sn-plot .z=${d.z} .values=${d.rotation} kind="angle" .system=${this.system} label="Rotation φ" color="#2f7d5b" .markIndex=${peakIndex(d.rotation)} .breaks=${breaks}></sn-plot>
-        <sn-plot .z=${d.z} .values=${d.shear} kind="stress" .system=${this.system} label="Peak shear τ" color="#b3261e" .markIndex=${peakIndex(d.shear)} .breaks=${breaks}></sn-plot>
+      <sn-segment-table .shaft=${sh} .system=${this.system}></sn-segment-table>
+      ${this.readout(sh, cz)}
+      <div class="plots" @sn-cursor=${onCursor}>
+        <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label="Internal torque T" color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks} .cursor=${cz}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.rotation} kind="angle" .system=${this.system} label="Rotation φ" color="#2f7d5b" .markIndex=${peakIndex(d.rotation)} .breaks=${breaks} .cursor=${cz}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.shear} kind="stress" .system=${this.system} label="Peak shear τ" color="#b3261e" .markIndex=${peakIndex(d.shear)} .breaks=${breaks} .cursor=${cz}></sn-plot>
       </div>
+      <sn-station-table .shaft=${sh} .system=${this.system}></sn-station-table>
     </div>`;
+  }
+
+  /** T, φ and τ of a shaft at the cursor's z, or how to get a reading. */
+  private readout(sh: Solution['shafts'][number], z: number | null) {
+    const d = sh.diagram;
+    if (z === null) {
+      return html`<p class="readout idle" aria-live="polite" data-readout="">Point at a diagram (or focus it and press ← →) to read T, φ and τ at any z.</p>`;
+    }
+    const q = (values: readonly number[], kind: FieldKind) => formatQuantity(valueAt(d.z, values, z), kind, this.system, 4);
+    return html`<p class="readout" aria-live="polite" data-readout=${z}>
+      At z = ${formatQuantity(z, 'length', this.system, 4)}: T = ${q(d.torque, 'torque')}, φ = ${q(d.rotation, 'angle')}, τ = ${q(d.shear, 'stress')}
+    </p>`;
   }
 }
 

@@ -1,5 +1,5 @@
 import { LitElement, css, html, nothing, svg, type SVGTemplateResult } from 'lit';
-import type { EditModel } from './store.js';
+import type { EditModel } from './model-edits.js';
 import { type UnitSystem, formatQuantity, storedToSI } from './units.js';
 import type { SelectDetail } from './sn-table.js';
 
@@ -264,9 +264,11 @@ export class SnSchematic extends LitElement {
       const segs = sh.segments.map((seg, i) => {
         const len = Math.max(0, storedToSI(seg.length, 'length') ?? 0);
         const sec = secs.get(seg.section);
-        const layers = (sec?.layers ?? []).map((l) => storedToSI(l.d, 'length') ?? 0);
-        const outer = sec?.shape === 'layered' ? Math.max(0, ...layers) : storedToSI(sec?.d, 'length') ?? 0;
-        const inner = sec?.shape === 'solid' ? 0 : storedToSI(sec?.di, 'length') ?? 0;
+        // A negative or unreadable size (the server names it) is drawn as nothing, never as a negative rectangle.
+        const size = (q: unknown) => Math.max(0, storedToSI(q, 'length') ?? 0);
+        const layers = (sec?.layers ?? []).map((l) => size(l.d));
+        const outer = sec?.shape === 'layered' ? Math.max(0, ...layers) : size(sec?.d);
+        const inner = sec?.shape === 'solid' ? 0 : Math.min(size(sec?.di), outer);
         const out = { z0: z, z1: z + len, outer, inner, layers, shape: sec?.shape ?? 'solid', index: i };
         z += len;
         return out;
@@ -282,9 +284,11 @@ export class SnSchematic extends LitElement {
 
 /** Pitch radius of a gear end in m: its radius, or teeth × module / 2. */
 function gearRadius(end: { radius?: unknown; teeth?: number }, module: unknown): number | null {
-  if (end.radius !== undefined) return storedToSI(end.radius, 'length');
+  const r = end.radius !== undefined ? storedToSI(end.radius, 'length') : null;
   const mod = storedToSI(module, 'length');
-  return end.teeth !== undefined && mod !== null ? (end.teeth * mod) / 2 : null;
+  const fromTeeth = end.teeth !== undefined && mod !== null ? (end.teeth * mod) / 2 : null;
+  const radius = end.radius !== undefined ? r : fromTeeth;
+  return radius !== null && radius > 0 ? radius : null;
 }
 
 /** A round length (1, 2 or 5 × 10ⁿ m) about a fifth of the longest shaft. */

@@ -30,6 +30,13 @@ export interface EditDetail { pointer: string; value: unknown }
 export interface RowDetail { pointer: string; index: number }
 /** Detail of `sn-select`. */
 export interface SelectDetail { pointer: string }
+/** Detail of `sn-draft`: what a cell holds while it is being typed in (not committed yet). */
+export interface DraftDetail { pointer: string; value: unknown }
+
+/** An id for the element that holds the message of a field, from its pointer. */
+export function messageId(pointer: string): string {
+  return `msg${pointer.replace(/[^A-Za-z0-9_-]/g, (c) => `_${c.charCodeAt(0).toString(16)}`)}`;
+}
 
 function valueAt(row: Record<string, unknown>, col: Column): unknown {
   if (col.get) return col.get(row);
@@ -43,10 +50,13 @@ function valueAt(row: Record<string, unknown>, col: Column): unknown {
 
 /**
  * An editable table of one list of the model (or of one object, with `single`).
- * Tab moves through the cells; Enter commits the cell and adds a row below.
- * Each input carries `data-pointer`, the JSON pointer of its field, and shows the
- * API's message for that pointer.
+ * Tab moves through the cells; Enter (or Tab, or leaving the cell) commits the
+ * cell; a row is added only with the "+ Add" button. Each input carries
+ * `data-pointer`, the JSON pointer of its field; a field the API names is marked
+ * `aria-invalid` and described by its message. A wide table scrolls sideways
+ * inside its panel with the first column (the id) kept in view.
  *
+ * @fires sn-draft - {pointer, value}: a quantity or number is being typed (readable so far)
  * @fires sn-edit - {pointer, value}: a cell was committed (value undefined removes an optional field)
  * @fires sn-row-add - {pointer, index}: add a row to the list at pointer, at index
  * @fires sn-row-remove - {pointer, index}: remove a row
@@ -55,8 +65,13 @@ function valueAt(row: Record<string, unknown>, col: Column): unknown {
 export class SnTable extends LitElement {
   static override styles = css`
     :host { display: block; }
-    .wrap { overflow-x: auto; }
-    table { border-collapse: collapse; font-size: 13px; }
+    /* A shadow at the right edge says there is more to scroll to (it is covered once the end is reached). */
+    .wrap { overflow-x: auto; max-width: 100%;
+      background: linear-gradient(to left, #fff 40%, rgba(255, 255, 255, 0)) right / 28px 100% no-repeat local,
+        radial-gradient(farthest-side at 100% 50%, rgba(29, 58, 74, 0.28), rgba(29, 58, 74, 0)) right / 12px 100% no-repeat scroll; }
+    table { border-collapse: separate; border-spacing: 0; font-size: 13px; }
+    th:first-child, td:first-child { position: sticky; left: 0; z-index: 1; background: #fff; }
+    tr.row.selected > td:first-child { background: #fbeed3; }
     th { text-align: left; font-weight: 600; color: #4a5258; padding: 2px 4px; white-space: nowrap; font-size: 12px; }
     td { padding: 1px 2px; vertical-align: top; }
     tr.row > td:first-child { border-left: 3px solid transparent; }
@@ -70,6 +85,12 @@ export class SnTable extends LitElement {
     .invalid { border-color: #b3261e; background: #fdf0ef; }
     .msg { color: #b3261e; font-size: 11px; max-width: 18em; line-height: 1.25; padding: 1px 2px; }
     .rowmsg td { color: #b3261e; font-size: 12px; padding: 0 6px 4px; }
+    .rownote td { padding: 2px 0 4px; }
+    .rownote .pinned { color: #1d3a4a; background: #eef5f8; font-size: 12px; padding: 3px 6px; border-left: 3px solid #2b6f8e; box-sizing: border-box; }
+    .rowmsg td:first-child, .rownote td:first-child { position: static; }
+    /* A row's message stays in view while a wide table scrolls sideways, wraps within the panel's width,
+       and never widens the table (no intrinsic width of its own). */
+    .pinned { position: sticky; left: 0; max-width: 34em; white-space: normal; contain: inline-size; }
     button { font: inherit; font-size: 12px; cursor: pointer; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; }
     button.remove { border: none; background: none; color: #8a857c; font-size: 15px; padding: 0 5px; }
     button.remove:hover { color: #b3261e; }
@@ -88,6 +109,7 @@ export class SnTable extends LitElement {
     single: { type: Boolean },
     noun: { type: String },
     flagged: { attribute: false },
+    notes: { attribute: false },
   };
 
   declare rows: ReadonlyArray<Record<string, unknown>>;
@@ -105,8 +127,12 @@ export class SnTable extends LitElement {
   declare noun: string;
   /** Row pointers to mark (shafts free to spin). */
   declare flagged: readonly string[];
+  /** Notes (not errors) shown under a row, by row pointer. */
+  declare notes: Readonly<Record<string, string>>;
 
   private focusRow = -1;
+  /** Text typed but not committed yet, by field pointer: a re-render (a draft's results arriving) must not overwrite it. */
+  private typing = new Map<string, string>();
 
   constructor() {
     super();
@@ -119,6 +145,7 @@ export class SnTable extends LitElement {
     this.single = false;
     this.noun = 'row';
     this.flagged = [];
+    this.notes = {};
   }
 
   override render() {
@@ -182,7 +209,8 @@ export class SnTable extends LitElement {
           ? nothing
           : html`<td><button class="remove" title="Remove this ${this.noun}" aria-label="Remove ${this.noun} ${i + 1}" @click=${() => this.removeAt(i)}>×</button></td>`}
       </tr>
-      ${rowMsg ? html`<tr class="rowmsg"><td colspan=${this.columns.length + 1}>${rowMsg}</td></tr>` : nothing}`;
+      ${rowMsg ? html`<tr class="rowmsg"><td colspan=${this.columns.length + 1}><div class="pinned" id=${messageId(rp)}>${rowMsg}</div></td></tr>` : nothing}
+      ${this.notes[rp] ? html`<tr class="rownote" data-note=${rp}><td colspan=${this.columns.length + 1}><div class="pinned" role="status">${this.notes[rp]}</div></td></tr>` : nothing}`;
   }
 
   private renderCell(row: Record<string, unknown>, i: number, c: Column) {
@@ -198,6 +226,8 @@ export class SnTable extends LitElement {
       return html`<select
           data-pointer=${ptr}
           aria-label=${label}
+          aria-invalid=${msg ? 'true' : 'false'}
+          aria-describedby=${msg ? messageId(ptr) : nothing}
           class=${msg ? 'invalid' : ''}
           ?disabled=${disabled}
           @change=${(e: Event) => this.commitSelect(e, ptr)}
@@ -205,15 +235,18 @@ export class SnTable extends LitElement {
           ${c.blank !== undefined ? html`<option value="" ?selected=${v === ''}>${c.blank}</option>` : nothing}
           ${all.map((o) => html`<option value=${o} ?selected=${o === v}>${o}</option>`)}
         </select>
-        ${msg ? html`<div class="msg">${msg}</div>` : nothing}`;
+        ${msg ? html`<div class="msg" id=${messageId(ptr)}>${msg}</div>` : nothing}`;
     }
     let text: string;
-    if (c.type === 'quantity' && c.kind) text = inputText(value, c.kind, this.system);
+    if (this.typing.has(ptr)) text = this.typing.get(ptr) as string;
+    else if (c.type === 'quantity' && c.kind) text = inputText(value, c.kind, this.system);
     else text = value === undefined || value === null ? '' : String(value);
     const title = c.type === 'quantity' && typeof value === 'string' ? `stored as "${value}"` : '';
     return html`<input
         data-pointer=${ptr}
         aria-label=${label}
+        aria-invalid=${msg ? 'true' : 'false'}
+        aria-describedby=${msg ? messageId(ptr) : nothing}
         title=${title}
         class=${msg ? 'invalid' : ''}
         size=${c.width ?? (c.type === 'text' ? 10 : 8)}
@@ -222,9 +255,11 @@ export class SnTable extends LitElement {
         spellcheck="false"
         autocomplete="off"
         @change=${(e: Event) => this.commitInput(e.target as HTMLInputElement, c, ptr)}
-        @keydown=${(e: KeyboardEvent) => this.onKey(e, c, ptr, i)}
+        @input=${(e: Event) => this.draft(e.target as HTMLInputElement, c, ptr)}
+        @blur=${() => this.typing.delete(ptr)}
+        @keydown=${(e: KeyboardEvent) => this.onKey(e)}
       />
-      ${msg ? html`<div class="msg">${msg}</div>` : nothing}`;
+      ${msg ? html`<div class="msg" id=${messageId(ptr)}>${msg}</div>` : nothing}`;
   }
 
   private parse(text: string, c: Column): unknown {
@@ -235,6 +270,7 @@ export class SnTable extends LitElement {
   }
 
   private commitInput(input: HTMLInputElement, c: Column, ptr: string): void {
+    this.typing.delete(ptr);
     this.emit<EditDetail>('sn-edit', { pointer: ptr, value: this.parse(input.value, c) });
   }
 
@@ -243,11 +279,24 @@ export class SnTable extends LitElement {
     this.emit<EditDetail>('sn-edit', { pointer: ptr, value: v === '' ? undefined : v });
   }
 
-  private onKey(e: KeyboardEvent, c: Column, ptr: string, i: number): void {
+  /** While typing a quantity or a number: its value so far, when it reads (nothing else is sent). */
+  private draft(input: HTMLInputElement, c: Column, ptr: string): void {
+    this.typing.set(ptr, input.value);
+    let parsed: { value: unknown; problem?: string } | null = null;
+    if (c.type === 'quantity' && c.kind) parsed = parseInput(input.value, c.kind, this.system);
+    else if (c.type === 'number' || c.type === 'integer') parsed = parsePlainNumber(input.value, c.type === 'integer');
+    if (!parsed || parsed.problem || parsed.value === undefined) return;
+    this.emit<DraftDetail>('sn-draft', { pointer: ptr, value: parsed.value });
+  }
+
+  /** Enter commits the cell (the input's "change" fires) and keeps the focus in it; it never adds a row. */
+  private onKey(e: KeyboardEvent): void {
     if (e.key !== 'Enter' || e.isComposing) return;
     e.preventDefault();
-    this.commitInput(e.target as HTMLInputElement, c, ptr);
-    if (!this.single) this.add(i + 1);
+    const input = e.target as HTMLInputElement;
+    // Blurring fires "change" only when the text changed since the last commit: the one commit path.
+    input.blur();
+    input.focus();
   }
 
   private add(index: number): void {

@@ -1,9 +1,12 @@
 /**
- * The editor's data flow, free of the DOM: JSON pointers, immutable edits of a
- * model, new rows, and an undo/redo history. Every edit returns a new model and
- * leaves the old one untouched, so Lit elements re-render and undo is a pointer move.
+ * Edits of a model, free of the DOM: JSON pointers, immutable edits, new rows
+ * (with places that make sense), an undo/redo history, and a reader's name for a
+ * pointer. Every edit returns a new model and leaves the old one untouched, so Lit
+ * elements re-render and undo is a pointer move.
  */
 import type { Model } from '../../shared-types/model.js';
+import { isProblem, readQuantity } from '../../shared-types/quantity.js';
+import { readablePointer } from '../../shared-types/present.js';
 
 /** A model as the editor holds it: the contract's shape, values as typed. */
 export type EditModel = Model;
@@ -109,7 +112,7 @@ export function newRow(model: EditModel, list: ListName): Record<string, Json> {
     case 'shafts':
       return { id, segments: [newSegment(model)] };
     case 'supports':
-      return { id, shaft, at: 0, kind: 'fixed' };
+      return { id, ...newSupportPlace(model), kind: 'fixed' };
     case 'torques':
       return { id, shaft, at: 0, torque: '100 N*m' };
     case 'distributedTorques':
@@ -121,6 +124,47 @@ export function newRow(model: EditModel, list: ListName): Record<string, Json> {
     case 'discs':
       return { id, shaft, at: 0, inertia: '0.1 kg*m2' };
   }
+}
+
+/** Length of a shaft in m (sum of the segments that can be read), or null when none can. */
+export function shaftLength(model: EditModel, shaftIndex: number): number | null {
+  const shaft = model.shafts[shaftIndex];
+  if (!shaft) return null;
+  let total = 0;
+  for (const seg of shaft.segments) {
+    const len = readQuantity(seg.length, 'length');
+    if (isProblem(len)) return null;
+    total += len;
+  }
+  return total;
+}
+
+/** A length in m as the editor stores it: "650 mm" (6 significant figures). */
+function mmText(m: number): string {
+  return `${Number((m * 1000).toPrecision(6))} mm`;
+}
+
+/**
+ * Where a new support goes: on the first shaft that has a free end (an end
+ * without a support), at that end; z = 0 is taken only when nothing holds it.
+ * When every end is held, the middle of the first shaft.
+ */
+export function newSupportPlace(model: EditModel): { shaft: string; at: string | number } {
+  const held = (shaft: string, z: number) =>
+    (model.supports ?? []).some((s) => {
+      if (s.shaft !== shaft) return false;
+      const at = readQuantity(s.at, 'length');
+      return !isProblem(at) && Math.abs(at - z) <= 1e-9; // m: one nanometre, far below any drawn length
+    });
+  for (let i = 0; i < model.shafts.length; i++) {
+    const id = model.shafts[i].id;
+    const len = shaftLength(model, i);
+    if (!held(id, 0)) return { shaft: id, at: 0 };
+    if (len !== null && len > 0 && !held(id, len)) return { shaft: id, at: mmText(len) };
+  }
+  const first = model.shafts[0];
+  const len = shaftLength(model, 0);
+  return { shaft: first?.id ?? '', at: len ? mmText(len / 2) : 0 };
 }
 
 /** A new segment: the first section and material of the model. */
@@ -343,48 +387,12 @@ export function issuesByPointer(issues: ReadonlyArray<{ pointer: string; message
   return out;
 }
 
-const LIST_WORDS: Record<string, string> = {
-  materials: 'material',
-  sections: 'section',
-  shafts: 'shaft',
-  supports: 'support',
-  torques: 'torque',
-  distributedTorques: 'distributed torque',
-  gearMeshes: 'gear mesh',
-  couplings: 'coupling',
-  discs: 'disc',
-  segments: 'segment',
-  layers: 'layer',
-};
-
 /**
- * A reader's name for the place a pointer names:
- * "/shafts/0/segments/1/length" → "shaft input › segment 2 › length".
+ * A reader's name for the place a pointer names: the presentation module's,
+ * shared with the command line ("/shafts/0/segments/1/length" → `shaft "input", segment 2, length`).
  */
 export function describePointer(model: EditModel | null, pointer: string): string {
-  if (pointer === '') return 'the model';
-  let keys: Key[];
-  try {
-    keys = parsePointer(pointer);
-  } catch {
-    return pointer;
-  }
-  const parts: string[] = [];
-  let cur: unknown = model;
-  for (let i = 0; i < keys.length; i++) {
-    const k = keys[i];
-    const next = keys[i + 1];
-    if (typeof k === 'string' && typeof next === 'number' && LIST_WORDS[k]) {
-      const item = (getAt(cur, [k, next]) ?? {}) as { id?: unknown };
-      parts.push(typeof item.id === 'string' && item.id ? `${LIST_WORDS[k]} ${item.id}` : `${LIST_WORDS[k]} ${next + 1}`);
-      cur = getAt(cur, [k, next]);
-      i++;
-    } else {
-      parts.push(String(k));
-      cur = getAt(cur, [k]);
-    }
-  }
-  return parts.join(' › ');
+  return readablePointer(model, pointer);
 }
 
 /** Structural equality of JSON values (for skipping edits that change nothing). */
@@ -396,4 +404,56 @@ export function sameJson(a: unknown, b: unknown): boolean {
   const kb = Object.keys(b);
   if (ka.length !== kb.length) return false;
   return ka.every((k) => sameJson((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k]));
+}
+
+/** Pitch radius of one gear of a mesh in m: its radius, or teeth × module / 2; null when it cannot be read. */
+export function pitchRadius(end: { radius?: unknown; teeth?: unknown }, module: unknown): number | null {
+  if (end.radius !== undefined) {
+    const r = readQuantity(end.radius, 'length');
+    return isProblem(r) ? null : r;
+  }
+  const m = readQuantity(module, 'length');
+  return typeof end.teeth === 'number' && !isProblem(m) ? (end.teeth * m) / 2 : null;
+}
+
+/**
+ * What switching a gear mesh between pitch radius and teeth did, for a note
+ * beside the mesh: the radii before and after. The tangential force is the
+ * torque over the radius, so new radii change the force (and, with a ratio
+ * that changes, the torques).
+ */
+export function sizingNote(before: EditModel, after: EditModel, index: number): string {
+  const was = before.gearMeshes?.[index];
+  const now = after.gearMeshes?.[index];
+  if (!was || !now) return '';
+  const mm = (r: number | null) => (r === null ? '?' : `${Number((r * 1000).toPrecision(4))} mm`);
+  const rWas = [pitchRadius(was.a, was.module), pitchRadius(was.b, was.module)];
+  const rNow = [pitchRadius(now.a, now.module), pitchRadius(now.b, now.module)];
+  const how = now.module !== undefined ? 'sized by teeth (pitch radius = teeth × module / 2)' : 'sized by pitch radius';
+  return `${now.id} is now ${how}: radii ${mm(rNow[0])} and ${mm(rNow[1])}, were ${mm(rWas[0])} and ${mm(rWas[1])}. The mesh force and torques change with them; check the teeth and module.`;
+}
+
+/** The model "New" starts from: one steel shaft of 500 mm held at z = 0 with a torque at its end (invented). */
+export function blankModel(): EditModel {
+  return {
+    format: 'shaftnet/1',
+    name: 'New shaft system',
+    materials: [{ id: 'steel', name: 'Steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
+    sections: [{ id: 'd40', shape: 'solid', d: '40 mm' }],
+    shafts: [{ id: 'shaft1', segments: [{ length: '500 mm', section: 'd40', material: 'steel' }] }],
+    supports: [{ id: 'A', shaft: 'shaft1', at: 0, kind: 'fixed' }],
+    torques: [{ id: 'T1', shaft: 'shaft1', at: '500 mm', torque: '100 N*m' }],
+  };
+}
+
+/**
+ * The model in a file's text: a model, or a library export that wraps one in
+ * `{ model }`. Throws an Error that says why when it is neither (the server
+ * checks the rest when it is solved).
+ */
+export function modelFromFile(text: string): EditModel {
+  const data = JSON.parse(text) as unknown;
+  const model = (data && typeof data === 'object' && 'model' in data && !('format' in data) ? (data as { model: unknown }).model : data) as EditModel;
+  if (!model || typeof model !== 'object' || !Array.isArray(model.shafts)) throw new Error('not a Shaftnet model (no "shafts")');
+  return model;
 }

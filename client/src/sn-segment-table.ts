@@ -1,0 +1,82 @@
+import { LitElement, css, html, nothing } from 'lit';
+import type { ShaftResult, SegmentResult } from '../../shared-types/solution.js';
+import { type UnitSystem, displayUnit, formatNumber, formatValue, prettyUnit, toDisplay } from './units.js';
+
+/** Segments above which the table starts folded (its rows are built when opened). */
+const OPEN_UP_TO = 12;
+
+/**
+ * The segments of one shaft: where each runs, its section, torsion constant J,
+ * rigidity G·J and stiffness k = G·J / L, its peak torque, twist and peak shear
+ * stress of its layers. Open for a few segments, folded for many.
+ */
+export class SnSegmentTable extends LitElement {
+  static override styles = css`
+    :host { display: block; overflow-x: auto; }
+    summary { cursor: pointer; font-size: 12.5px; color: #1d3a4a; font-weight: 600; padding: 2px 0; }
+    table { border-collapse: collapse; font-size: 12.5px; margin: 2px 0 6px; }
+    th { text-align: left; font-size: 11.5px; color: #4a5258; font-weight: 600; padding: 2px 8px 2px 0; border-bottom: 1px solid #dcd7cd; white-space: nowrap; }
+    td { padding: 2px 8px 2px 0; border-bottom: 1px solid #ece8e0; white-space: nowrap; }
+    td.num { text-align: right; font-variant-numeric: tabular-nums; }
+  `;
+
+  static override properties = { shaft: { attribute: false }, system: { type: String }, open: { state: true } };
+
+  declare shaft: ShaftResult | null;
+  declare system: UnitSystem;
+  /** Open or folded by the user; undefined: by the number of segments. */
+  declare private open: boolean | undefined;
+
+  constructor() {
+    super();
+    this.shaft = null;
+    this.system = 'si';
+    this.open = undefined;
+  }
+
+  override render() {
+    const sh = this.shaft;
+    if (!sh) return nothing;
+    const open = this.open ?? sh.segments.length <= OPEN_UP_TO;
+    return html`<details ?open=${open} @toggle=${(e: Event) => (this.open = (e.target as HTMLDetailsElement).open)}>
+      <summary>Segments of ${sh.id} (${sh.segments.length})</summary>
+      ${open ? this.table(sh) : nothing}
+    </details>`;
+  }
+
+  private table(sh: ShaftResult) {
+    const u = (k: Parameters<typeof displayUnit>[0]) => prettyUnit(displayUnit(k, this.system));
+    const len = u('length');
+    return html`<table class="segments" aria-label=${`Segments of ${sh.id}`}>
+      <thead><tr>
+        <th>Segment</th><th>From–to [${len}]</th><th>Section</th><th title="Torsion constant">J [${u('torsionConstant')}]</th>
+        <th title="Torsional rigidity">G·J [${u('torsionalRigidity')}]</th><th title="Stiffness G·J / L">k [${u('torsionalStiffness')}]</th>
+        <th>Peak |T| [${u('torque')}]</th><th>Twist [${u('angle')}]</th><th>Peak τ [${u('stress')}]</th>
+      </tr></thead>
+      <tbody>
+        ${sh.segments.map((g: SegmentResult) => {
+          const peak = Math.max(0, ...g.layers.map((l) => l.maxShear));
+          return html`<tr data-segment=${g.index}>
+            <td>${g.index + 1}</td>
+            <td class="num">${formatValue(g.from, 'length', this.system, 4)}–${formatValue(g.to, 'length', this.system, 4)}</td>
+            <td>${g.section}</td>
+            <td class="num" data-j>${formatValue(g.torsionConstant, 'torsionConstant', this.system)}</td>
+            <td class="num" data-gj>${formatValue(g.torsionalRigidity, 'torsionalRigidity', this.system)}</td>
+            <td class="num" data-k>${formatValue(g.stiffness, 'torsionalStiffness', this.system)}</td>
+            <td class="num">${formatValue(g.maxAbsTorque, 'torque', this.system)}</td>
+            <td class="num">${formatValue(g.twist, 'angle', this.system)}</td>
+            <td class="num">${formatValue(peak, 'stress', this.system)}</td>
+          </tr>`;
+        })}
+      </tbody>
+    </table>`;
+  }
+}
+
+customElements.define('sn-segment-table', SnSegmentTable);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'sn-segment-table': SnSegmentTable;
+  }
+}
