@@ -5,12 +5,12 @@
  * diameters D > d with fillet radius r, from the published polynomial fit of the torsion chart for
  * a stepped round bar with a shoulder fillet:
  *   Pilkey & Pilkey, Peterson's Stress Concentration Factors, 3rd ed. (Wiley, 2008), chapter 3
- *   "Shoulder fillets", torsion chart of the stepped bar of circular cross section (Chart 3.12,
- *   chart number from memory). Coefficients as reproduced at
- *   https://www.amesweb.info/StressConcentrationFactor/SteppedShaftWithShoulderFillet.aspx
- *   (that page's text drops its minus signs; the signs here are the ones that reproduce the
- *   chart-read values of tests/reference/stress-raisers.test.ts, and they follow the same page's
- *   tension entries, whose signed copy is at eng-calculations.com):
+ *   "Shoulder fillets", torsion of a stepped bar of circular cross section, Chart 3.12 (chart
+ *   number as public implementations of the fit cite it; the book itself was not at hand).
+ *   Coefficients as reproduced at
+ *   https://www.amesweb.info/StressConcentrationFactor/SteppedShaftWithShoulderFillet.aspx,
+ *   whose text drops the minus signs; the signs below are those of signed public copies of the
+ *   same fit, and they reproduce the chart-read values in tests/reference/stress-raisers.test.ts:
  *     h = (D − d)/2,  valid for 0.25 ≤ h/r ≤ 4.0,
  *     C1 =  0.905 + 0.783·√(h/r) − 0.075·h/r
  *     C2 = −0.437 − 1.969·√(h/r) + 0.553·h/r
