@@ -18,20 +18,25 @@
  *   ∫₀ᶻ dζ/d(ζ)⁴ = z·(d² + d·dA + dA²)/(3·dA³·d³), d = d(z), written without the difference
  *   1/dA³ − 1/d³ so that a nearly uniform taper loses no digits (dA = dB gives z/dA⁴ exactly).
  * Hollow, and the load moments ∫ Q·g: adaptive Gauss–Legendre. Each panel is accepted when the
- * 20-point rule and the sum of the 20-point rules on its halves agree to INTEGRAL_TOL of the running
- * total; the integrands are smooth and their poles lie off [0, L] (the wall and the diameters stay
+ * 20-point rule and the sum of the 20-point rules on its halves agree to INTEGRAL_TOL of ∫|f|;
+ * the integrands are smooth and their poles lie off [0, L] (the wall and the diameters stay
  * positive), so the rule converges geometrically. Proof by test: against the exact primitive of
  * 1/(p·q·(p² + q²)) (tests/reference/taper.test.ts) to 1e-13.
  *
- * Peak stress: |τ| is sampled at PEAK_SAMPLES + 1 points; around every sampled local maximum (ends
- * included) a golden-section search on the neighbouring bracket converges z to 1e-13·L, so the peak
- * value (flat at an interior maximum) is exact to far better than 1e-12 relative.
+ * Peak stress. Solid: τ ∝ (T0 − Q(z))/d(z)³, and dτ/dz = 0 is the quadratic
+ *   (c·s/2)·z² + (2s·ta − c·dA)·z − (ta·dA + 3s·T0) = 0   (s = d', c = t'),
+ * so the peak is the largest |τ| among the ends and the roots inside (exact). Hollow: |τ| is sampled
+ * at PEAK_SAMPLES + 1 points; around every sampled local maximum (ends included) a golden-section
+ * search on the neighbouring bracket converges z to 1e-13·L, so the peak value (flat at an interior
+ * maximum) is exact to far better than 1e-12 relative. (dτ/dz has at most six roots there.)
  */
 
 /** Relative agreement asked of a Gauss–Legendre panel, dimensionless. */
 const INTEGRAL_TOL = 1e-15;
-/** Deepest panel halving; at depth 30 a panel is L/2³⁰, far below any physical scale. */
-const MAX_DEPTH = 30;
+/** Round-off floor of a panel's two estimates, relative to ∫|f| over it (≈ 40 roundings of eps). */
+const ROUNDOFF = 1e-14;
+/** Deepest panel halving (at most 2¹² panels: a bound on the work, never reached by these integrands). */
+const MAX_DEPTH = 12;
 /** Samples of |τ| along the segment before the golden-section refinement. */
 const PEAK_SAMPLES = 64;
 /** Golden-section bracket width at which the search stops, relative to L. */
@@ -130,28 +135,39 @@ function gaussLegendre(n: number): { readonly x: Float64Array; readonly w: Float
 
 const GL20 = gaussLegendre(20);
 
-function gl(f: (z: number) => number, a: number, b: number): number {
+/** 20-point rule on [a, b]: the integral and the integral of |f| (the size the tolerance is relative to). */
+function gl(f: (z: number) => number, a: number, b: number): { readonly value: number; readonly size: number } {
   const m = (a + b) / 2;
   const h = (b - a) / 2;
   let s = 0;
-  for (let i = 0; i < 20; i++) s += GL20.w[i]! * f(m + h * GL20.x[i]!);
-  return s * h;
+  let sa = 0;
+  for (let i = 0; i < 20; i++) {
+    const v = GL20.w[i]! * f(m + h * GL20.x[i]!);
+    s += v;
+    sa += Math.abs(v);
+  }
+  return { value: s * h, size: Math.abs(sa * h) };
 }
 
-/** ∫_a^b f by adaptive 20-point Gauss–Legendre (see the header). */
+/**
+ * ∫_a^b f by adaptive 20-point Gauss–Legendre (see the header). The tolerance is relative to
+ * ∫|f|, not to the result, so an integral that cancels to nearly zero still stops; and a panel
+ * whose two estimates differ by no more than their round-off (ROUNDOFF·∫|f| over it) is accepted.
+ */
 export function integrate(f: (z: number) => number, a: number, b: number): number {
   if (a === b) return 0;
   const whole = gl(f, a, b);
-  const scale = Math.abs(whole);
+  const scale = whole.size;
   const rec = (lo: number, hi: number, est: number, depth: number): number => {
     const mid = (lo + hi) / 2;
     const left = gl(f, lo, mid);
     const right = gl(f, mid, hi);
-    const both = left + right;
-    if (Math.abs(both - est) <= INTEGRAL_TOL * scale || depth >= MAX_DEPTH) return both;
-    return rec(lo, mid, left, depth + 1) + rec(mid, hi, right, depth + 1);
+    const both = left.value + right.value;
+    const diff = Math.abs(both - est);
+    if (diff <= INTEGRAL_TOL * scale || diff <= ROUNDOFF * (left.size + right.size) || depth >= MAX_DEPTH) return both;
+    return rec(lo, mid, left.value, depth + 1) + rec(mid, hi, right.value, depth + 1);
   };
-  return rec(a, b, whole, 0);
+  return rec(a, b, whole.value, 0);
 }
 
 /** F(z) = ∫₀ᶻ dζ / J(ζ), m⁻³. */
@@ -230,7 +246,42 @@ export function taperState(t: TaperInput, G: number, phiA: number, phiB: number,
     if (z >= L) return phiB;
     return phiA + (T0 * inverseMomentIntegral(t, z) - loadMoment(t, ta, tb, z)) / G;
   };
-  return { torqueStart: T0, torqueEnd: torqueAt(L), torqueAt, rotationAt, shearAt, peak: peakAbs((z) => Math.abs(shearAt(z)), L) };
+  const absShear = (z: number): number => Math.abs(shearAt(z));
+  const peak = isSolid(t) ? solidPeak(absShear, L, t.dA, (t.dB - t.dA) / L, ta, (tb - ta) / L, T0) : peakAbs(absShear, L);
+  return { torqueStart: T0, torqueEnd: torqueAt(L), torqueAt, rotationAt, shearAt, peak };
+}
+
+/** Largest |τ| of a solid taper: the ends and the roots of dτ/dz inside (see the header). */
+function solidPeak(
+  absShear: (z: number) => number,
+  L: number,
+  dA: number,
+  s: number,
+  ta: number,
+  c: number,
+  T0: number,
+): { readonly z: number; readonly shear: number } {
+  const candidates = [0, L, ...quadraticRoots((c * s) / 2, 2 * s * ta - c * dA, -(ta * dA + 3 * s * T0))];
+  let z = 0;
+  let shear = -1;
+  for (const x of candidates) {
+    if (!(x >= 0 && x <= L)) continue;
+    const v = absShear(x);
+    if (v > shear) {
+      shear = v;
+      z = x;
+    }
+  }
+  return { z, shear };
+}
+
+/** Real roots of a·x² + b·x + c = 0 (a may be 0), without cancellation. */
+function quadraticRoots(a: number, b: number, c: number): number[] {
+  if (a === 0) return b === 0 ? [] : [-c / b];
+  const disc = b * b - 4 * a * c;
+  if (disc < 0) return [];
+  const q = -0.5 * (b + Math.sign(b || 1) * Math.sqrt(disc));
+  return q === 0 ? [0] : [q / a, c / q];
 }
 
 /** The largest value of a continuous f ≥ 0 on [0, L] and where (sampling + golden section). */

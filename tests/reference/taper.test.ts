@@ -191,7 +191,7 @@ describe('peak stress inside the segment', () => {
     expect(zStar).toBeLessThan(0.9);
     const tauStar = (16 * (T0 - tq * zStar)) / (Math.PI * (dA + s * zStar) ** 3);
     expectClose(st.peak.shear, tauStar, 1e-12);
-    expect(Math.abs(st.peak.z - zStar)).toBeLessThanOrEqual(1e-6 * L);
+    expect(Math.abs(st.peak.z - zStar)).toBeLessThanOrEqual(1e-12 * L);
   });
 
   it('hollow: the peak is at least every one of 20001 samples and at most 1e-12 above the best', () => {
