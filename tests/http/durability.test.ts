@@ -3,13 +3,14 @@
  * SIGKILL in the middle of a burst of saves; after a restart every save it had
  * acknowledged is there, exactly as sent.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawnSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cantilever } from './helpers.js';
+import { spawnServer, type ServerProcess } from '../helpers/server-process.js';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const mainJs = path.join(root, 'dist', 'server', 'main.js');
@@ -31,30 +32,8 @@ afterAll(() => {
 });
 
 /** Starts the server on a free loopback port; resolves its URL once it prints it. */
-function startServer(): Promise<{ child: ChildProcess; url: string }> {
-  const child = spawn(process.execPath, [mainJs, '--port', '0', '--data', dataDir, '--log-level', 'warn', '--rate-limit', '0'], {
-    cwd: root,
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  children.add(child);
-  return new Promise((resolve, reject) => {
-    let out = '';
-    let err = '';
-    const timer = setTimeout(() => reject(new Error(`server did not start: ${out} ${err}`)), 30_000);
-    child.stdout!.on('data', (d: Buffer) => {
-      out += String(d);
-      const m = /listening on (http:\/\/[^\s]+)/.exec(out);
-      if (m) {
-        clearTimeout(timer);
-        resolve({ child, url: m[1].replace(/\/$/, '') });
-      }
-    });
-    child.stderr!.on('data', (d: Buffer) => (err += String(d)));
-    child.on('exit', (code) => {
-      clearTimeout(timer);
-      reject(new Error(`server exited (${code}) before listening: ${out} ${err}`));
-    });
-  });
+function startServer(): Promise<ServerProcess> {
+  return spawnServer(mainJs, ['--port', '0', '--data', dataDir, '--log-level', 'warn', '--rate-limit', '0'], { cwd: root, children, timeoutMs: 30_000 });
 }
 
 const modelWith = (marker: string) => ({ ...cantilever(2), name: `durable ${marker}`, notes: marker });

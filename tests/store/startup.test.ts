@@ -5,7 +5,7 @@
  * one line on stderr naming the path and what to do; the file is left as it was.
  * And six servers started together on one new directory seed the demos once.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawnSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -14,6 +14,7 @@ import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_FILE, openSqliteStore } from '../../server/store/sqlite-store.js';
 import { mountTmpfs, unmount } from './mounts.js';
+import { spawnServer, type ServerProcess } from '../helpers/server-process.js';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const mainJs = path.join(root, 'dist', 'server', 'main.js');
@@ -135,31 +136,9 @@ describe('the server refuses an empty or damaged library and leaves it as it is'
 const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&');
 
 /** Starts a server; resolves its URL once it listens (rejects if it exits first). */
-function start(dataDir: string): Promise<{ child: ChildProcess; url: string }> {
-  const child = spawn(
-    process.execPath,
-    [mainJs, '--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--log-level', 'warn', '--workers', '1', '--rate-limit', '0'],
-    { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] },
-  );
-  children.add(child);
-  return new Promise((resolve, reject) => {
-    let out = '';
-    let err = '';
-    const timer = setTimeout(() => reject(new Error(`server did not start: ${out} ${err}`)), 60_000);
-    child.stdout!.on('data', (d: Buffer) => {
-      out += String(d);
-      const m = /listening on (http:\/\/[^\s]+)/.exec(out);
-      if (m) {
-        clearTimeout(timer);
-        resolve({ child, url: m[1].replace(/\/$/, '') });
-      }
-    });
-    child.stderr!.on('data', (d: Buffer) => (err += String(d)));
-    child.on('exit', (code) => {
-      clearTimeout(timer);
-      reject(new Error(`server exited (${code}) before listening: ${out} ${err}`));
-    });
-  });
+function start(dataDir: string): Promise<ServerProcess> {
+  const args = ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--log-level', 'warn', '--workers', '1', '--rate-limit', '0'];
+  return spawnServer(mainJs, args, { cwd: root, children, timeoutMs: 60_000 });
 }
 
 describe('seeding the demos', () => {
