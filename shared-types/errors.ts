@@ -31,6 +31,7 @@ export const ERROR_CODES = {
   SN_MATERIAL: { status: 400, summary: 'A material gives neither G nor both E and nu, or both; or a segment lacks the material its section needs.' },
   SN_GEAR_SIZE: { status: 400, summary: 'A gear gives neither radius nor teeth, both, or teeth without the mesh module.' },
   SN_TORQUE_FORM: { status: 400, summary: 'A point torque gives neither "torque" nor "power" with "speed", or both.' },
+  SN_RAISER_PLACE: { status: 400, summary: 'A shoulder stress raiser is not at a segment boundary where the diameter steps.' },
   SN_RANGE_ORDER: { status: 400, summary: 'A distributed torque ends before it starts.' },
   SN_MECHANISM: { status: 422, summary: 'Some shafts are free to spin: no fixed or spring support holds them.' },
   SN_LOOP_MISMATCH: { status: 422, summary: 'Rigid connections close a loop whose offsets or misfits do not add up: no assembly exists.' },
