@@ -480,7 +480,8 @@ class Resolver {
       this.issue('SN_UNRESOLVED', sp + '/sectionEnd', `no section with id "${endId}"`);
       return undefined;
     }
-    if (si === undefined) return undefined;
+    // Without the start section or the material the segment is refused already.
+    if (si === undefined || material === undefined) return undefined;
     const a = this.m.sections[si].shape;
     const b = this.m.sections[ei].shape;
     if (!((a === 'solid' && b === 'solid') || (a === 'hollow' && b === 'hollow'))) {
@@ -597,10 +598,12 @@ class Resolver {
   /** A stress raiser: where it sits, its factor, and the sides whose nominal stress it multiplies. */
   private raiser(r: NonNullable<ModelT['stressRaisers']>[number], i: number): ResolvedRaiser {
     const base = pointer('stressRaisers', i);
+    const before = this.issues.length;
     const at = this.point(r.shaft, r.at, base);
     const out = { id: r.id, kind: r.kind, ...at, ...(r.note === undefined ? {} : { note: r.note }) };
     const shaft = at.shaft >= 0 ? this.shafts[at.shaft] : undefined;
-    if (!shaft || !Number.isFinite(at.z) || !Number.isFinite(shaft.length)) return { ...out, factor: 1, sides: [] };
+    // A place already refused (off the shaft, no such shaft) is not judged again: one issue for one mistake.
+    if (!shaft || this.issues.length > before || !Number.isFinite(shaft.length)) return { ...out, factor: 1, sides: [] };
     const tol = 1e-12 * shaft.length;
     // The segment boundary at z (j: the segment that ends there), or −1.
     const boundary = shaft.segments.findIndex((s, j) => j < shaft.segments.length - 1 && Math.abs(s.z1 - at.z) <= tol);
