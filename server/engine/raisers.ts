@@ -5,7 +5,7 @@
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { ElementTorques } from './recover.js';
-import { polarMomentAt } from './taper.js';
+import { stationShearFactor } from './taper-element.js';
 
 /** One row per raiser of the model, in its order. */
 export interface RaiserColumns {
@@ -30,14 +30,8 @@ export function recoverRaisers(model: ResolvedModel, layout: StationLayout, ends
       const e = side.left ? d - 1 - r.shaft : d - r.shaft;
       const T = side.left ? ends.TR[e] : ends.TL[e];
       const seg = shaft.segments[side.segment];
-      let factor = seg.shearFactor;
-      if (seg.taper) {
-        // τ = T·r(z)/J(z) at the raiser's place along the taper.
-        const x = Math.min(Math.max(r.z - seg.z0, 0), seg.taper.input.length);
-        const t = seg.taper.input;
-        factor = (t.dA + ((t.dB - t.dA) * x) / t.length) / 2 / polarMomentAt(t, x);
-      }
-      const tau = Math.abs(T) * factor;
+      // τ = T·r(z)/J(z) at the raiser's place (along a taper too).
+      const tau = Math.abs(T) * stationShearFactor(seg, r.z);
       if (side === r.sides[0] || tau > nominal[i]) {
         nominal[i] = tau;
         segment[i] = side.segment;

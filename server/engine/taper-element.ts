@@ -62,3 +62,12 @@ export function taperTwistRatePeak(input: TaperInput, G: number, state: TaperSta
   const p = peakAbs(rate, input.length);
   return { z: p.z, rate: p.shear };
 }
+
+/** τ/|T| at z (m, on the shaft) in a segment, 1/m³: r(z)/J(z) along a taper, the section's factor elsewhere. */
+export function stationShearFactor(seg: ResolvedSegment, z: number): number {
+  const taper = seg.taper;
+  if (!taper) return seg.shearFactor;
+  const t = taper.input;
+  const x = Math.min(Math.max(z - seg.z0, 0), t.length);
+  return (t.dA + ((t.dB - t.dA) * x) / t.length) / 2 / polarMomentAt(t, x);
+}
