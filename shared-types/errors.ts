@@ -27,7 +27,7 @@ export const ERROR_CODES = {
   SN_DUPLICATE_ID: { status: 400, summary: 'Two items of one list share an id.' },
   SN_UNRESOLVED: { status: 400, summary: 'A reference names a shaft, section or material that does not exist.' },
   SN_OFF_SHAFT: { status: 400, summary: 'A point ("at", "from", "to") lies outside [0, length] of its shaft.' },
-  SN_SECTION_GEOMETRY: { status: 400, summary: 'A bore is not smaller than its outer diameter, or layers do not grow outwards.' },
+  SN_SECTION_GEOMETRY: { status: 400, summary: 'A bore is not smaller than its outer diameter, layers do not grow outwards, a tube wall is too thick, or a taper joins sections of another pair.' },
   SN_MATERIAL: { status: 400, summary: 'A material gives neither G nor both E and nu, or both; or a segment lacks the material its section needs.' },
   SN_GEAR_SIZE: { status: 400, summary: 'A gear gives neither radius nor teeth, both, or teeth without the mesh module.' },
   SN_TORQUE_FORM: { status: 400, summary: 'A point torque gives neither "torque" nor "power" with "speed", or both.' },
