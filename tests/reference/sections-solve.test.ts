@@ -17,7 +17,8 @@ const close = (got: number, want: number, rel: number) => expect(Math.abs(got - 
  */
 function rectangleSeries(b: number, h: number): { J: number; k: number } {
   // Σ_{n odd} tanh(x_n)/n⁵ = (31/32)ζ(5) − Σ (1 − tanh x_n)/n⁵, ζ(5) = 1.036927755143369926… (the
-  // tabulated value of the zeta function): summing tanh ≈ 1 plainly loses about 1e-11 of J to round-off.
+  // tabulated value of the zeta function): the plain sum of tanh/n⁵ to n = 200 misses a tail of
+  // Σ 1/n⁵ of about 1e-10, 2e-11 of J; the rest decays like e^{−nπh/b}.
   let sT = (31 / 32) * 1.036927755143369926;
   let sC = 0;
   for (let n = 1; n < 200; n += 2) {
