@@ -427,7 +427,7 @@ export function recoverShafts(
       const loaded = t1 !== 0 || t2 !== 0;
       const T1 = TL[e];
       const T2 = TR[e];
-      const { state, input } = taperElementState(sg, taper, z[d], z[d + 1], phi[d], phi[d + 1], t1, t2);
+      const { state, input } = taperElementState(sg, taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
       if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
       if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
       if (loaded && dt !== 0) {

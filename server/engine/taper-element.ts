@@ -5,7 +5,7 @@
  * segment cut anywhere gives the same nodal results as the whole.
  */
 import type { ResolvedSegment, ResolvedTaper } from './normalise.js';
-import { consistentLoads, peakAbs, polarMomentAt, taperState, taperStiffness, type TaperInput, type TaperState } from './taper.js';
+import { consistentLoads, peakAbs, polarMomentAt, taperStateFromTorque, taperStiffness, type TaperInput, type TaperState } from './taper.js';
 
 /** The taper of the element from za to zb (m, on the shaft) of a tapered segment. */
 export function subTaper(seg: ResolvedSegment, taper: ResolvedTaper, za: number, zb: number): TaperInput {
@@ -29,10 +29,12 @@ export function taperElementStiffness(seg: ResolvedSegment, taper: ResolvedTaper
 
 /** Consistent nodal loads of t linear from t1 to t2 (N·m/m) over an element of a tapered segment, N·m. */
 export function taperElementLoads(seg: ResolvedSegment, taper: ResolvedTaper, za: number, zb: number, t1: number, t2: number): { fa: number; fb: number } {
-  return consistentLoads(subTaper(seg, taper, za, zb), t1, t2);
+  const whole = za <= seg.z0 && zb >= seg.z1;
+  // The whole segment's F(L) = G/k is known from normalising: one integral fewer.
+  return consistentLoads(subTaper(seg, taper, za, zb), t1, t2, whole ? taper.G / taper.stiffness : undefined);
 }
 
-/** The exact state inside an element of a tapered segment (z measured from the element's start). */
+/** The exact state inside an element of a tapered segment from its end torque T(za+) (z measured from the element's start). */
 export function taperElementState(
   seg: ResolvedSegment,
   taper: ResolvedTaper,
@@ -40,11 +42,12 @@ export function taperElementState(
   zb: number,
   phiA: number,
   phiB: number,
+  T0: number,
   t1: number,
   t2: number,
 ): { state: TaperState; input: TaperInput } {
   const input = subTaper(seg, taper, za, zb);
-  return { state: taperState(input, taper.G, phiA, phiB, t1, t2), input };
+  return { state: taperStateFromTorque(input, taper.G, phiA, phiB, T0, t1, t2), input };
 }
 
 /**
