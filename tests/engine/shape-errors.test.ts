@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { ERROR_CODES, ModelError, type ErrorCode } from '../../shared-types/errors.js';
-import { solveModel } from '../../server/engine/index.js';
+import { modelSize, solveModel } from '../../server/engine/index.js';
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 type Json = any;
@@ -70,6 +70,13 @@ describe('the base model', () => {
     const sol = solveModel(base());
     expect(sol.warnings).toEqual([]);
     expect(sol.stressRaisers?.map((r) => r.id)).toEqual(['F1']);
+  });
+  it('the size bound before solving counts a raiser\'s station', () => {
+    // A factor raiser inside a segment adds a station: the bound must hold with it.
+    const m = base((x) => x.stressRaisers.push({ id: 'K', shaft: 's', at: '650 mm', kind: 'factor', factor: 2 }));
+    const stations = solveModel(m).stats.stations;
+    expect(stations).toBe(solveModel(base()).stats.stations + 1);
+    expect(modelSize(m).stations).toBeGreaterThanOrEqual(stations);
   });
 });
 
