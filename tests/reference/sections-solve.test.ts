@@ -132,6 +132,9 @@ describe.each(SOLVERS)('%s solver', (solver) => {
     const right = (16 * Math.abs((T * f1) / (f1 + f2))) / (Math.PI * dB ** 3);
     close(seg.layers[0].maxShear, Math.max(left, right), 1e-12);
     close(seg.governingZ, left > right ? a : L, 1e-12);
+    // Twist rate |T|/(G J(z)), J = πd⁴/32: also largest at z = a or at the small end.
+    const rate = Math.max(Math.abs((T * f2) / (f1 + f2)) / (G * jSolid(dAt(a))), Math.abs((T * f1) / (f1 + f2)) / (G * jSolid(dB)));
+    close(seg.maxTwistRate, rate, 1e-12);
     // The diagram's τ follows 16T/(πd(z)³) inside the taper (not the start section's factor).
     const d = sol.shafts[0].diagram;
     const m = d.z.findIndex((z) => z > 0 && z < a);
