@@ -438,7 +438,7 @@ export function recoverShafts(
         segPeak[g] = state.peak.shear;
         segAt[g] = z[d] + state.peak.z;
       }
-      const rate = taperTwistRatePeak(input, taper.G, state, loaded).rate;
+      const rate = taperTwistRatePeak(input, taper.G, state, t1, t2).rate;
       if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
       for (const p of [phi[d], phi[d + 1]]) {
         if (p < phiMin) phiMin = p;

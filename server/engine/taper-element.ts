@@ -51,19 +51,38 @@ export function taperElementState(
 }
 
 /**
- * The largest twist rate |T(z)|/(G·J(z)) in an element and where (m from its start). Without a
- * distributed torque T is constant and a solid taper's J is monotone, so the smaller end governs;
- * otherwise the same sampled search with golden-section refinement as the peak stress (taper.ts).
+ * The largest twist rate |T(z)|/(G·J(z)) in an element and where (m from its start). Solid: with
+ * T = T0 − ta·z − c·z²/2 and d = dA + s·z, d/dz (T/d⁴) = 0 is the quadratic
+ *   (c·s)·z² + (3s·ta − c·dA)·z − (ta·dA + 4s·T0) = 0
+ * (as the peak stress's in taper.ts, with d⁴ for d³), so the ends and its roots inside are the only
+ * candidates: exact. Hollow: the sampled search with golden-section refinement of taper.ts.
  */
-export function taperTwistRatePeak(input: TaperInput, G: number, state: TaperState, loaded: boolean): { z: number; rate: number } {
+export function taperTwistRatePeak(input: TaperInput, G: number, state: TaperState, t1: number, t2: number): { z: number; rate: number } {
   const rate = (z: number) => Math.abs(state.torqueAt(z)) / (G * polarMomentAt(input, z));
-  if (!loaded && !((input.diA ?? 0) > 0)) {
-    const a = rate(0);
-    const b = rate(input.length);
-    return a >= b ? { z: 0, rate: a } : { z: input.length, rate: b };
+  const L = input.length;
+  if (!((input.diA ?? 0) > 0)) {
+    const s = (input.dB - input.dA) / L;
+    const c = (t2 - t1) / L;
+    const candidates = [0, L, ...quadraticRoots(c * s, 3 * s * t1 - c * input.dA, -(t1 * input.dA + 4 * s * state.torqueStart))];
+    let best = { z: 0, rate: -1 };
+    for (const z of candidates) {
+      if (!(z >= 0 && z <= L)) continue;
+      const r = rate(z);
+      if (r > best.rate) best = { z, rate: r };
+    }
+    return best;
   }
-  const p = peakAbs(rate, input.length);
+  const p = peakAbs(rate, L);
   return { z: p.z, rate: p.shear };
+}
+
+/** Real roots of a·x² + b·x + c = 0 (a may be 0), without cancellation. */
+function quadraticRoots(a: number, b: number, c: number): number[] {
+  if (a === 0) return b === 0 ? [] : [-c / b];
+  const disc = b * b - 4 * a * c;
+  if (disc < 0) return [];
+  const q = -0.5 * (b + Math.sign(b || 1) * Math.sqrt(disc));
+  return q === 0 ? [0] : [q / a, c / q];
 }
 
 /** τ/|T| at z (m, on the shaft) in a segment, 1/m³: r(z)/J(z) along a taper, the section's factor elsewhere. */

@@ -141,6 +141,35 @@ describe.each(SOLVERS)('%s solver', (solver) => {
     close(d.shear[m], (16 * d.torque[m]) / (Math.PI * dAt(d.z[m]) ** 3), 1e-12);
   });
 
+  it('a solid taper 60 → 20 mm under a uniform distributed torque, fixed at its wide end: τ and the twist rate peak inside, where d/dz of T/d³ and T/d⁴ vanish', () => {
+    const L = 1; // m
+    const t = 400; // N·m/m
+    const dA = 0.06;
+    const dB = 0.02;
+    const sol = solve(
+      model(
+        [
+          { id: 'd60', shape: 'solid', d: dA },
+          { id: 'd20', shape: 'solid', d: dB },
+        ],
+        [{ length: L, section: 'd60', sectionEnd: 'd20', material: 'steel' }],
+        { supports: [{ id: 'A', shaft: 's', at: 0, kind: 'fixed' }], distributedTorques: [{ id: 'q', shaft: 's', from: 0, to: L, start: t, end: t }] },
+      ),
+    );
+    // Closed form (statics): T(z) = t (L − z); d(z) = dA + s z, s = (dB − dA)/L.
+    // τ = 16 T/(π d³) peaks where −d − 3s(L − z) = 0: z = (dA + 3sL)/(2s) = 0.75 m, d = 30 mm.
+    // θ = 32 T/(G π d⁴) peaks where −d − 4s(L − z) = 0: z = (dA + 4sL)/(3s) = 0.8333 m, d = 26.67 mm.
+    const s = (dB - dA) / L;
+    const zTau = (dA + 3 * s * L) / (2 * s);
+    const zRate = (dA + 4 * s * L) / (3 * s);
+    const d = (z: number) => dA + s * z;
+    const seg = sol.shafts[0].segments[0];
+    close(seg.governingZ, zTau, 1e-12);
+    close(seg.layers[0].maxShear, (16 * t * (L - zTau)) / (Math.PI * d(zTau) ** 3), 1e-12);
+    close(seg.maxTwistRate, (32 * t * (L - zRate)) / (G * Math.PI * d(zRate) ** 4), 1e-12);
+    close(sol.reactions[0].torque, -t * L, 1e-12);
+  });
+
   it('a torque inside a taper and the same taper cut there into two segments give the same answer', () => {
     const taper = (segments: unknown[], extra: unknown[] = []) =>
       solve(
