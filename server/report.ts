@@ -18,6 +18,7 @@ import {
   toDisplay,
 } from '../shared-types/present.js';
 import type { Solved } from './engine/index.js';
+import { stationShearFactor } from './engine/taper-element.js';
 
 function table(head: string[], rows: string[][]): string {
   const widths = head.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
@@ -102,6 +103,7 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
     '',
   );
   out.push(stiffnessTable(s, units), '');
+  if (s.stressRaisers !== undefined && s.stressRaisers.length > 0) out.push(raiserTable(s, units), '');
   out.push('Total twist per shaft (max rotation - min rotation)');
   out.push(table(['shaft', `twist [${u.angle}]`], s.shafts.map((sh) => [sh.id, deg(sh.totalTwist)])), '');
   if (s.checks.length > 0) {
@@ -110,10 +112,10 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
       table(
         ['check', 'where', 'value', 'limit', 'utilisation', 'result'],
         s.checks.map((c) => {
-          const kind: FieldKind = c.kind === 'shear' ? 'stress' : c.kind === 'twistRate' ? 'twistRate' : 'angle';
+          const kind: FieldKind = c.kind === 'shear' || c.kind === 'localPeak' ? 'stress' : c.kind === 'twistRate' ? 'twistRate' : 'angle';
           return [
             c.kind,
-            `${c.shaft}${c.segment === undefined ? '' : `[${c.segment}]`}${c.material ? ` ${c.material}` : ''}`,
+            `${c.shaft}${c.segment === undefined ? '' : `[${c.segment}]`}${c.raiser === undefined ? '' : ` ${c.raiser}`}${c.material ? ` ${c.material}` : ''}`,
             `${show(c.value, kind)} ${u[kind]}`,
             `${show(c.limit, kind)} ${u[kind]}`,
             formatNumber(c.utilisation, 3),
@@ -130,21 +132,86 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
   return out.join('\n');
 }
 
-/** Per segment: torsion constant J, torsional rigidity Σ G·J and stiffness k = G·J/L. */
+/**
+ * Per segment: torsion constant J, torsional rigidity Σ G·J, stiffness k, polar moment Ip and
+ * torsional modulus Wt (τmax = T/Wt). A round section of one material has Ip = J and Wt = J/r; a
+ * layered one has no single Wt ("-"). A tapered segment has a second row for its end section, and
+ * its k is the exact 1/∫dz/(G·J(z)).
+ */
 function stiffnessTable(s: Solution, units: UnitSystem): string {
   const u = DISPLAY_UNITS[units];
-  const value = (si: number, kind: FieldKind) => formatNumber(toDisplay(si, kind, units), 4);
-  const head = ['segment', 'section', `J [${u.torsionConstant}]`, `GJ [${u.torsionalRigidity}]`, `k [${u.torsionalStiffness}]`];
+  const value = (si: number | null | undefined, kind: FieldKind) => (si === null || si === undefined ? '-' : formatNumber(toDisplay(si, kind, units), 4));
+  const head = [
+    'segment',
+    'section',
+    `J [${u.torsionConstant}]`,
+    `GJ [${u.torsionalRigidity}]`,
+    `k [${u.torsionalStiffness}]`,
+    `Ip [${u.areaMoment}]`,
+    `Wt [${u.sectionModulus}]`,
+  ];
   const rows = s.shafts.flatMap((sh) =>
-    sh.segments.map((seg) => [
-      `${sh.id}[${seg.index}]`,
-      seg.section,
-      value(seg.torsionConstant, 'torsionConstant'),
-      value(seg.torsionalRigidity, 'torsionalRigidity'),
-      value(seg.stiffness, 'torsionalStiffness'),
-    ]),
+    sh.segments.flatMap((seg) => {
+      const round = seg.torsionalModulus === undefined;
+      const single = seg.layers.length === 1;
+      const r0 = seg.layers[seg.layers.length - 1].outerRadius;
+      const start = [
+        `${sh.id}[${seg.index}]`,
+        seg.section,
+        value(seg.torsionConstant, 'torsionConstant'),
+        value(seg.torsionalRigidity, 'torsionalRigidity'),
+        value(seg.stiffness, 'torsionalStiffness'),
+        value(round ? seg.torsionConstant : seg.polarMoment, 'areaMoment'),
+        value(round ? (single ? seg.torsionConstant / r0 : null) : seg.torsionalModulus, 'sectionModulus'),
+      ];
+      if (seg.sectionEnd === undefined || seg.torsionConstantEnd === undefined) return [start];
+      // The end of a taper: Wt = J/r, r from J for a solid end (not shown for a hollow one).
+      const JEnd = seg.torsionConstantEnd;
+      const rEnd = endRadius(seg.torsionConstant, r0, JEnd);
+      return [
+        start,
+        [
+          '  end',
+          seg.sectionEnd,
+          value(JEnd, 'torsionConstant'),
+          value(seg.torsionalRigidityEnd, 'torsionalRigidity'),
+          '',
+          value(JEnd, 'areaMoment'),
+          value(rEnd === null ? null : JEnd / rEnd, 'sectionModulus'),
+        ],
+      ];
+    }),
   );
-  return `Segment stiffness (J: torsion constant of the section; k = GJ/L)\n${table(head, rows)}`;
+  return `Segment stiffness and section properties (J: torsion constant; k = GJ/L, of a taper 1/integral(dz/GJ); Ip: polar moment; Wt: modulus, tau max = T/Wt)\n${table(head, rows)}`;
+}
+
+/**
+ * Outer radius at a taper's end, m, from its J: for a solid ring J = πr⁴/2; for a hollow one the
+ * wall is not in the solution, so null (the modulus is then not shown). A solid start has
+ * J = πr⁴/2 exactly, which tells the two apart.
+ */
+function endRadius(J0: number, r0: number, JEnd: number): number | null {
+  const solid = Math.abs(J0 - (Math.PI * r0 ** 4) / 2) <= 1e-12 * J0;
+  return solid ? ((2 * JEnd) / Math.PI) ** 0.25 : null;
+}
+
+/** Stress raisers: the local peak K·τ_nominal beside the nominal stress, checked against the allowable. */
+function raiserTable(s: Solution, units: UnitSystem): string {
+  const u = DISPLAY_UNITS[units];
+  const S = (pa: number) => formatNumber(toDisplay(pa, 'stress', units), 4);
+  const head = ['raiser', 'shaft', `z [${u.length}]`, 'Kts', `nominal [${u.stress}]`, `local peak [${u.stress}]`, `allowable [${u.stress}]`, 'util.', 'note'];
+  const rows = (s.stressRaisers ?? []).map((r) => [
+    `${r.id} (${r.kind})`,
+    r.shaft,
+    formatNumber(toDisplay(r.z, 'length', units), 4),
+    formatNumber(r.factor, 3),
+    S(r.nominalShear),
+    S(r.localPeak),
+    r.allowableShear === null ? '-' : S(r.allowableShear),
+    r.utilisation === null ? '-' : formatNumber(r.utilisation, 3),
+    r.note ?? '',
+  ]);
+  return `Stress raisers: local peaks (Kts x nominal on the smaller side); the nominal stresses above are unchanged\n${table(head, rows)}`;
 }
 
 /**
@@ -162,8 +229,8 @@ export function formatIssue(issue: ModelIssue, model?: unknown): string {
  * The station columns of a finished solve, read from the engine's columns
  * without an object per station. Valid only inside `withSolved`'s callback,
  * like the columns themselves. The shear at a station is |T| times the
- * section's shear factor (largest G·r_outer / ΣGJ over its layers) of the
- * element on each side, the larger of the two.
+ * section's shear factor (largest G·r_outer / ΣGJ over its layers; of a taper,
+ * r(z)/J(z) at the station) of the element on each side, the larger of the two.
  */
 export function solvedStationColumns(sv: Solved): StationColumns {
   const { model, layout, rec } = sv;
@@ -186,12 +253,12 @@ export function solvedStationColumns(sv: Solved): StationColumns {
       if (d < last) {
         const e = d - s; // elements are numbered like stations, one fewer per shaft
         tr = TL[e];
-        rightShear = Math.abs(tr) * segments[elemSegment[e]].shearFactor;
+        rightShear = Math.abs(tr) * stationShearFactor(segments[elemSegment[e]], z[d]);
       }
       torqueLeft[d] = tl;
       torqueRight[d] = tr;
       shear[d] = Math.max(leftShear, rightShear);
-      leftShear = d < last ? Math.abs(TR[d - s]) * segments[elemSegment[d - s]].shearFactor : 0;
+      leftShear = d < last ? Math.abs(TR[d - s]) * stationShearFactor(segments[elemSegment[d - s]], z[d + 1]) : 0;
     }
   }
   return {

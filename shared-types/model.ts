@@ -42,10 +42,28 @@ export type Material = Static<typeof Material>;
 export const Layer = Type.Object({ d: Quantity, material: Ref('material') }, strict);
 export type Layer = Static<typeof Layer>;
 
-export const SectionShape = Type.Union([Type.Literal('solid'), Type.Literal('hollow'), Type.Literal('layered')]);
+export const SectionShape = Type.Union([
+  Type.Literal('solid'),
+  Type.Literal('hollow'),
+  Type.Literal('layered'),
+  Type.Literal('rectangle'),
+  Type.Literal('ellipse'),
+  Type.Literal('rectangularTube'),
+  Type.Literal('thinOpen'),
+  Type.Literal('custom'),
+]);
 export type SectionShape = Static<typeof SectionShape>;
 
-/** Solid needs d; hollow needs d and di; layered needs layers (inside out) and an optional bore di. */
+/** One wall of a thin open section: its centre-line length and thickness. */
+export const OpenWall = Type.Object({ length: Quantity, thickness: Quantity }, strict);
+export type OpenWall = Static<typeof OpenWall>;
+
+/**
+ * Solid needs d; hollow needs d and di; layered needs layers (inside out) and an optional bore di.
+ * rectangle and ellipse need width and height (full axes); rectangularTube width, height (outside)
+ * and wall; thinOpen walls (and polarMoment for inertia); custom torsionConstant and
+ * torsionalModulus (polarMoment, plasticTorqueModulus optional).
+ */
 export const Section = Type.Object(
   {
     id: Id,
@@ -54,6 +72,14 @@ export const Section = Type.Object(
     d: Type.Optional(Quantity),
     di: Type.Optional(Quantity),
     layers: Type.Optional(Type.Array(Layer, { minItems: 1, maxItems: 32 })),
+    width: Type.Optional(Quantity),
+    height: Type.Optional(Quantity),
+    wall: Type.Optional(Quantity),
+    walls: Type.Optional(Type.Array(OpenWall, { minItems: 1, maxItems: 64 })),
+    polarMoment: Type.Optional(Quantity),
+    torsionConstant: Type.Optional(Quantity),
+    torsionalModulus: Type.Optional(Quantity),
+    plasticTorqueModulus: Type.Optional(Quantity),
   },
   strict,
 );
@@ -63,6 +89,8 @@ export const Segment = Type.Object(
   {
     length: Quantity,
     section: Ref('section'),
+    /** Tapered segment: the section at its end (solid–solid or hollow–hollow with `section`). */
+    sectionEnd: Type.Optional(Ref('section')),
     material: Type.Optional(Ref('material')),
   },
   strict,
@@ -161,6 +189,21 @@ export type Coupling = Static<typeof Coupling>;
 export const Disc = Type.Object({ id: Id, shaft: Ref('shaft'), at: Quantity, inertia: Quantity }, strict);
 export type Disc = Static<typeof Disc>;
 
+/** A local stress raiser: a shoulder fillet (factor from a published fit) or a factor given by the user. */
+export const StressRaiser = Type.Object(
+  {
+    id: Id,
+    shaft: Ref('shaft'),
+    at: Quantity,
+    kind: Type.Union([Type.Literal('shoulder'), Type.Literal('factor')]),
+    fillet: Type.Optional(Quantity),
+    factor: Type.Optional(Type.Number()),
+    note: Type.Optional(Text(200)),
+  },
+  strict,
+);
+export type StressRaiser = Static<typeof StressRaiser>;
+
 export const Limits = Type.Object(
   { twistRate: Type.Optional(Quantity), totalTwist: Type.Optional(Quantity) },
   strict,
@@ -181,6 +224,7 @@ export const Model = Type.Object(
     gearMeshes: Type.Optional(Type.Array(GearMesh)),
     couplings: Type.Optional(Type.Array(Coupling)),
     discs: Type.Optional(Type.Array(Disc)),
+    stressRaisers: Type.Optional(Type.Array(StressRaiser)),
     limits: Type.Optional(Limits),
   },
   { $id: 'Model', additionalProperties: false, description: 'A Shaftnet model, format shaftnet/1.' },

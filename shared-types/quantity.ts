@@ -24,6 +24,8 @@ export type QuantityKind =
   | 'twistRate'
   | 'density'
   | 'massInertia'
+  | 'areaMoment'
+  | 'sectionModulus'
   | 'power'
   | 'angularSpeed';
 
@@ -56,6 +58,8 @@ export const SI_UNIT: Readonly<Record<QuantityKind, string>> = {
   twistRate: 'rad/m',
   density: 'kg/m3',
   massInertia: 'kg*m2',
+  areaMoment: 'm4',
+  sectionModulus: 'm3',
   power: 'W',
   angularSpeed: 'rad/s',
 };
@@ -88,6 +92,9 @@ export const QUANTITY_RANGE: Readonly<Record<QuantityKind, QuantityRange>> = Obj
   twistRate: Object.freeze({ min: 1e-12, max: 1e6 }),
   density: Object.freeze({ min: 1e-2, max: 1e5 }),
   massInertia: Object.freeze({ min: 1e-20, max: 1e10 }),
+  // Second moments and moduli of sections whose sizes lie in the length range (1e-7 … 1e5 m), widened.
+  areaMoment: Object.freeze({ min: 1e-30, max: 1e22 }),
+  sectionModulus: Object.freeze({ min: 1e-23, max: 1e17 }),
   power: Object.freeze({ min: 1e-9, max: 1e10 }),
   angularSpeed: Object.freeze({ min: 1e-6, max: 1e6 }),
 });
@@ -152,6 +159,15 @@ const table: Array<[QuantityKind, string, number]> = [
   ['massInertia', 'kg*mm2', 1e-6],
   ['massInertia', 'lb*in2', LB * IN * IN],
   ['massInertia', 'lb*ft2', LB * FT * FT],
+  // Second moment of area (m⁴) and section modulus (m³): never the kind of kg·m² (mass inertia).
+  ['areaMoment', 'm4', 1],
+  ['areaMoment', 'mm4', 1e-12],
+  ['areaMoment', 'cm4', 1e-8],
+  ['areaMoment', 'in4', IN ** 4],
+  ['sectionModulus', 'm3', 1],
+  ['sectionModulus', 'mm3', 1e-9],
+  ['sectionModulus', 'cm3', 1e-6],
+  ['sectionModulus', 'in3', IN ** 3],
   ['power', 'W', 1],
   ['power', 'kW', 1e3],
   ['power', 'MW', 1e6],
@@ -339,6 +355,8 @@ const KIND_WORDS: Record<QuantityKind, string> = {
   twistRate: 'twist per length',
   density: 'density',
   massInertia: 'mass moment of inertia',
+  areaMoment: 'second moment of area',
+  sectionModulus: 'section modulus',
   power: 'power',
   angularSpeed: 'rotational speed',
 };
@@ -359,6 +377,8 @@ const EXAMPLES: Record<QuantityKind, string> = {
   twistRate: '0.25 deg/m',
   density: '7850 kg/m3',
   massInertia: '0.8 kg*m2',
+  areaMoment: '2.1e5 mm4',
+  sectionModulus: '1.1e4 mm3',
   power: '15 kW',
   angularSpeed: '1450 rpm',
 };

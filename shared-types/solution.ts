@@ -43,10 +43,20 @@ export const SegmentResult = Type.Object({
   torsionConstant: Num,
   /** Σ G·J over the layers, N·m². */
   torsionalRigidity: Num,
-  /** G·J / (to − from) of the whole segment, N·m/rad. */
+  /** G·J / (to − from) of the whole segment, N·m/rad; of a tapered one the exact 1/∫dz/(G·J(z)). */
   stiffness: Num,
+  /** Tapered segments only: the id of the end section (torsionConstant and torsionalRigidity are then those at the start). */
+  sectionEnd: Type.Optional(Type.String()),
+  /** Tapered segments only: J at the end, m⁴. */
+  torsionConstantEnd: Type.Optional(Num),
+  /** Tapered segments only: G·J at the end, N·m². */
+  torsionalRigidityEnd: Type.Optional(Num),
+  /** Non-circular sections only: polar moment of area Ip, m⁴ (null where the section does not give it). */
+  polarMoment: Type.Optional(NullableNum),
+  /** Non-circular sections only: torsional modulus Wt, m³ (τmax = T/Wt; the layer's outerRadius is J/Wt). */
+  torsionalModulus: Type.Optional(Num),
   maxAbsTorque: Num,
-  /** z where |T| peaks in the segment (the governing point). */
+  /** z where |T| peaks in the segment (the governing point); in a tapered segment, where τ peaks. */
   governingZ: Num,
   maxTwistRate: Num,
   /** φ(to) − φ(from), rad. */
@@ -112,7 +122,7 @@ export const CouplingResult = Type.Object({
 export type CouplingResult = Static<typeof CouplingResult>;
 
 export const CheckResult = Type.Object({
-  kind: Type.Union([Type.Literal('shear'), Type.Literal('twistRate'), Type.Literal('totalTwist')]),
+  kind: Type.Union([Type.Literal('shear'), Type.Literal('twistRate'), Type.Literal('totalTwist'), Type.Literal('localPeak')]),
   shaft: Type.String(),
   segment: Type.Optional(Type.Integer()),
   material: Type.Optional(Type.String()),
@@ -121,8 +131,29 @@ export const CheckResult = Type.Object({
   limit: Num,
   utilisation: Num,
   pass: Type.Boolean(),
+  /** localPeak checks: the stress raiser's id. */
+  raiser: Type.Optional(Type.String()),
 });
 export type CheckResult = Static<typeof CheckResult>;
+
+/** A stress raiser's local peak beside the nominal stress (nominal results are unchanged). */
+export const StressRaiserResult = Type.Object({
+  id: Type.String(),
+  shaft: Type.String(),
+  z: Num,
+  kind: Type.Union([Type.Literal('shoulder'), Type.Literal('factor')]),
+  /** Kts: from the shoulder fit, or the user's factor. */
+  factor: Num,
+  /** Nominal peak |τ| at z on the smaller side (the larger nominal), Pa. */
+  nominalShear: Num,
+  /** factor · nominalShear, Pa: a local peak. */
+  localPeak: Num,
+  material: Type.String(),
+  allowableShear: NullableNum,
+  utilisation: NullableNum,
+  note: Type.Optional(Type.String()),
+});
+export type StressRaiserResult = Static<typeof StressRaiserResult>;
 
 export const Warning = Type.Object({
   code: Type.String(),
@@ -147,6 +178,8 @@ export const Solution = Type.Object(
     }),
     /** The checks, worst utilisation first: all of them up to 10,000, else the worst 10,000 (stats.checksEvaluated counts all). */
     checks: Type.Array(CheckResult),
+    /** Only when the model has stress raisers. */
+    stressRaisers: Type.Optional(Type.Array(StressRaiserResult)),
     warnings: Type.Array(Warning),
     stats: Type.Object({
       stations: Type.Integer(),

@@ -16,6 +16,7 @@ const CHECK_KIND: Record<CheckResult['kind'], { label: string; kind: FieldKind }
   shear: { label: 'Shear stress', kind: 'stress' },
   twistRate: { label: 'Twist rate', kind: 'twistRate' },
   totalTwist: { label: 'Total twist', kind: 'angle' },
+  localPeak: { label: 'Local peak', kind: 'stress' },
 };
 
 /** Checks listed before "Show all": the worst ones. */

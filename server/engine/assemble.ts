@@ -15,6 +15,7 @@ import { ModelError } from '../../shared-types/errors.js';
 import type { Reduction, RigidEdge } from './constraints.js';
 import type { SymmetricEntries } from './sparse-solver.js';
 import type { Workspace } from './workspace.js';
+import { taperElementLoads, taperElementStiffness } from './taper-element.js';
 
 /**
  * All elastic parts as springs; the first `elemCount` are the shaft elements,
@@ -131,9 +132,19 @@ export function elasticParts(model: ResolvedModel, layout: StationLayout, ws: Wo
     const left = elemLeft[e];
     const h = z[left + 1] - z[left];
     const seg = model.shafts[shaftOf[left]].segments[elemSegment[e]];
-    springs.k[e] = seg.rigidity / h;
     const t1 = elemT1[e];
     const t2 = elemT2[e];
+    if (seg.taper) {
+      // A (sub-)taper: exact stiffness and consistent loads by the exact shape function.
+      springs.k[e] = taperElementStiffness(seg, seg.taper, z[left], z[left + 1]);
+      if (t1 !== 0 || t2 !== 0) {
+        const f = taperElementLoads(seg, seg.taper, z[left], z[left + 1], t1, t2);
+        load[left] += f.fa;
+        load[left + 1] += f.fb;
+      }
+      continue;
+    }
+    springs.k[e] = seg.rigidity / h;
     if (t1 !== 0 || t2 !== 0) {
       // ∫ N·t dz with linear N and linear t: exact nodal loads for a linear element.
       load[left] += consistentLeft(h, t1, t2);

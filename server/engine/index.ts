@@ -78,6 +78,12 @@ export function modelSize(model: unknown): { stations: number; shafts: number } 
   const shafts = Array.isArray(m.shafts) ? (m.shafts as Array<{ segments?: unknown }>) : [];
   const segments = shafts.reduce((n, s) => n + (s && Array.isArray(s.segments) ? s.segments.length : 0), 0);
   const stations =
-    shafts.length + segments + len('supports') + len('torques') + len('discs') + 2 * (len('distributedTorques') + len('gearMeshes') + len('couplings'));
+    shafts.length +
+    segments +
+    len('supports') +
+    len('torques') +
+    len('discs') +
+    len('stressRaisers') +
+    2 * (len('distributedTorques') + len('gearMeshes') + len('couplings'));
   return { stations, shafts: shafts.length };
 }

@@ -8,7 +8,11 @@ import type { GearEnd, Model as ModelT } from '../../shared-types/model.js';
 import { MODEL_VALIDATOR, modelSchemaIssues } from '../../shared-types/schema-issues.js';
 import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
 import { isProblem, rangeProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
+import type { Warning } from '../../shared-types/solution.js';
 import { buildSectionLayers, type SectionLayer } from './sections.js';
+import { sectionProperties, shapeProblems, type ShapeInput, type ShapeProperties } from './shapes.js';
+import { taperProblems, taperStiffness, type TaperInput } from './taper.js';
+import { shoulderFactor, shoulderRangeProblem } from './stress-raisers.js';
 
 export interface ResolvedMaterial {
   readonly id: string;
@@ -27,6 +31,34 @@ export interface ResolvedSegment {
   readonly rigidity: number;
   /** max over layers of G·r_outer / ΣGJ: τ_peak = factor · |T|, 1/m³. */
   readonly shearFactor: number;
+  /** A section of the non-circular shapes: its polar moment (m⁴, null if not given) and modulus Wt (m³). */
+  readonly shape?: { readonly polarMoment: number | null; readonly torsionalModulus: number };
+  /** A tapered segment (`layers`, `rigidity` and `shearFactor` are then those at its start). */
+  readonly taper?: ResolvedTaper;
+}
+
+/** A tapered segment: its geometry from the segment's start, its one material and its exact stiffness. */
+export interface ResolvedTaper {
+  readonly input: TaperInput;
+  readonly G: number;
+  /** 1/∫dz/(G·J(z)) of the whole segment, N·m/rad. */
+  readonly stiffness: number;
+  readonly sectionEndId: string;
+  /** The layer at the end (one ring). */
+  readonly layersEnd: readonly SectionLayer[];
+}
+
+/**
+ * A stress raiser resolved: its factor, and the sides of its station whose nominal stress it
+ * multiplies (a shoulder: the smaller side; a factor: both sides, the larger nominal governs).
+ */
+export interface ResolvedRaiser extends ShaftPoint {
+  readonly id: string;
+  readonly kind: 'shoulder' | 'factor';
+  readonly factor: number;
+  readonly note?: string;
+  /** Segment index (within the shaft) of each side read, and whether it lies left of the station. */
+  readonly sides: ReadonlyArray<{ readonly segment: number; readonly left: boolean }>;
 }
 
 export interface ResolvedShaft {
@@ -99,6 +131,9 @@ export interface ResolvedModel {
   readonly meshes: readonly ResolvedMesh[];
   readonly couplings: readonly ResolvedCoupling[];
   readonly discs: readonly ResolvedDisc[];
+  readonly raisers: readonly ResolvedRaiser[];
+  /** Cautions found while resolving (thin walls stretched, open sections). */
+  readonly warnings: readonly Warning[];
   readonly limits: { readonly twistRate: number | null; readonly totalTwist: number | null };
 }
 
@@ -133,6 +168,9 @@ class Resolver {
   private readonly sectionIndex = new Map<string, number>();
   private readonly shaftIndex = new Map<string, number>();
   private shafts: ResolvedShaft[] = [];
+  private readonly warnings: Warning[] = [];
+  /** Properties of the non-circular sections, by section index. */
+  private readonly shapeProps = new Map<number, ShapeProperties>();
 
   constructor(private readonly m: ModelT) {}
 
@@ -141,7 +179,7 @@ class Resolver {
     this.uniqueIds('materials', m.materials);
     this.uniqueIds('sections', m.sections);
     this.uniqueIds('shafts', m.shafts);
-    for (const list of ['supports', 'torques', 'distributedTorques', 'gearMeshes', 'couplings', 'discs'] as const) {
+    for (const list of ['supports', 'torques', 'distributedTorques', 'gearMeshes', 'couplings', 'discs', 'stressRaisers'] as const) {
       this.uniqueIds(list, m[list] ?? []);
     }
     m.materials.forEach((mat, i) => this.material(mat, i));
@@ -220,12 +258,13 @@ class Resolver {
       const base = pointer('discs', i);
       return { id: d.id, ...this.point(d.shaft, d.at, base), inertia: this.nonNegative(d.inertia, 'massInertia', base + '/inertia') };
     });
+    const raisers = (m.stressRaisers ?? []).map((r, i) => this.raiser(r, i));
     const limits = {
       twistRate: m.limits?.twistRate === undefined ? null : this.positive(m.limits.twistRate, 'twistRate', '/limits/twistRate'),
       totalTwist: m.limits?.totalTwist === undefined ? null : this.positive(m.limits.totalTwist, 'angle', '/limits/totalTwist'),
     };
     if (this.issues.length > 0) throw new ModelError(this.issues);
-    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, limits };
+    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits };
   }
 
   private issue(code: ErrorCode, ptr: string, message: string): void {
@@ -322,6 +361,9 @@ class Resolver {
       } else {
         layers = this.sectionLayers(si, seg.material, sp);
       }
+      const props = si === undefined ? undefined : this.shapeProps.get(si);
+      const shape = props === undefined ? undefined : { polarMoment: props.polarMoment, torsionalModulus: props.torsionalModulus };
+      const taper = seg.sectionEnd === undefined ? undefined : this.taper(seg.sectionEnd, si, layers, seg.material, length, sp);
       const rigidity = layers.reduce((sum, l) => sum + l.G * l.J, 0);
       const shearFactor = layers.reduce((mx, l) => Math.max(mx, l.G * l.rOuter), 0) / rigidity;
       if (layers.length > 0 && length > 0 && layers.every((l) => l.G > 0 && l.G < Infinity && l.rOuter < Infinity)) {
@@ -332,7 +374,9 @@ class Resolver {
           this.issue('SN_OUT_OF_RANGE', sp + '/length', `a length of ${length} m makes the stiffness G·J/L out of numeric range: check its unit`);
         }
       }
-      return { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor };
+      const out: ResolvedSegment = { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor };
+      if (shape) return { ...out, shape };
+      return taper ? { ...out, taper } : out;
     });
     const length = z + carry;
     for (let j = 0; j < segments.length && Number.isFinite(length); j++) {
@@ -357,7 +401,15 @@ class Resolver {
     const key = `${si}\u0000${sec.shape === 'layered' ? '' : segMaterial ?? ''}`;
     const cached = this.sectionCache.get(key);
     if (cached) return cached;
+    if (sec.shape !== 'solid' && sec.shape !== 'hollow' && sec.shape !== 'layered') {
+      const layers = this.shapeLayers(si, segMaterial, segPtr);
+      this.sectionCache.set(key, layers);
+      return layers;
+    }
     const before = this.issues.length;
+    for (const f of ['width', 'height', 'wall', 'walls', 'polarMoment', 'torsionConstant', 'torsionalModulus', 'plasticTorqueModulus'] as const) {
+      if (sec[f] !== undefined) this.issue('SN_SCHEMA', `${sp}/${f}`, `a ${sec.shape} section takes no ${f}`);
+    }
     const lookup = (id: string, ptr: string): ResolvedMaterial | null => {
       const mat = this.materials.get(id);
       if (!mat) this.issue('SN_UNRESOLVED', ptr, `no material with id "${id}"`);
@@ -412,6 +464,203 @@ class Resolver {
     // Keyed by section (and material for solid/hollow): each section's errors are reported once.
     this.sectionCache.set(key, layers);
     return layers;
+  }
+
+  /** A tapered segment from `section` (layers given) to `sectionEnd`; undefined after an issue. */
+  private taper(
+    endId: string,
+    si: number | undefined,
+    layers: readonly SectionLayer[],
+    material: string | undefined,
+    length: number,
+    sp: string,
+  ): ResolvedTaper | undefined {
+    const ei = this.sectionIndex.get(endId);
+    if (ei === undefined) {
+      this.issue('SN_UNRESOLVED', sp + '/sectionEnd', `no section with id "${endId}"`);
+      return undefined;
+    }
+    // Without the start section or the material the segment is refused already.
+    if (si === undefined || material === undefined) return undefined;
+    const a = this.m.sections[si].shape;
+    const b = this.m.sections[ei].shape;
+    if (!((a === 'solid' && b === 'solid') || (a === 'hollow' && b === 'hollow'))) {
+      this.issue('SN_SECTION_GEOMETRY', sp + '/sectionEnd', `a taper joins two solid or two hollow sections; "${this.m.sections[si].id}" is ${a} and "${endId}" is ${b}`);
+      return undefined;
+    }
+    const layersEnd = this.sectionLayers(ei, material, sp);
+    if (layers.length !== 1 || layersEnd.length !== 1 || !(length > 0)) return undefined;
+    const input: TaperInput = {
+      length,
+      dA: 2 * layers[0].rOuter,
+      dB: 2 * layersEnd[0].rOuter,
+      diA: 2 * layers[0].rInner,
+      diB: 2 * layersEnd[0].rInner,
+    };
+    const problems = taperProblems(input);
+    for (const p of problems) this.issue('SN_SECTION_GEOMETRY', sp + '/sectionEnd', `taper from "${this.m.sections[si].id}" to "${endId}": ${p.message}`);
+    if (problems.length > 0) return undefined;
+    const G = layers[0].G;
+    return { input, G, stiffness: taperStiffness(input, G), sectionEndId: endId, layersEnd };
+  }
+
+  /** The layer of a non-circular section: its effective J and outer radius J/Wt (τmax = G·r·θ). */
+  private shapeLayers(si: number, segMaterial: string | undefined, segPtr: string): SectionLayer[] {
+    const sec = this.m.sections[si];
+    const sp = pointer('sections', si);
+    const before = this.issues.length;
+    const allowed: Record<string, readonly string[]> = {
+      rectangle: ['width', 'height'],
+      ellipse: ['width', 'height'],
+      rectangularTube: ['width', 'height', 'wall'],
+      thinOpen: ['walls', 'polarMoment'],
+      custom: ['torsionConstant', 'torsionalModulus', 'polarMoment', 'plasticTorqueModulus'],
+    };
+    const fields = allowed[sec.shape];
+    for (const f of ['d', 'di', 'layers', 'width', 'height', 'wall', 'walls', 'polarMoment', 'torsionConstant', 'torsionalModulus', 'plasticTorqueModulus'] as const) {
+      if (sec[f] !== undefined && !fields.includes(f)) this.issue('SN_SCHEMA', `${sp}/${f}`, `a ${sec.shape} section takes no ${f}`);
+    }
+    const need = (f: 'width' | 'height' | 'wall' | 'torsionConstant' | 'torsionalModulus', kind: QuantityKind): number => {
+      if (sec[f] === undefined) {
+        this.issue('SN_SCHEMA', `${sp}/${f}`, `a ${sec.shape} section needs ${f}`);
+        return Number.NaN;
+      }
+      return this.positive(sec[f], kind, `${sp}/${f}`);
+    };
+    const opt = (f: 'polarMoment' | 'plasticTorqueModulus', kind: QuantityKind): number | undefined =>
+      sec[f] === undefined ? undefined : this.positive(sec[f], kind, `${sp}/${f}`);
+    let input: ShapeInput;
+    switch (sec.shape) {
+      case 'rectangle':
+      case 'ellipse':
+        input = { shape: sec.shape, width: need('width', 'length'), height: need('height', 'length') };
+        break;
+      case 'rectangularTube':
+        input = { shape: 'rectangularTube', width: need('width', 'length'), height: need('height', 'length'), wall: need('wall', 'length') };
+        break;
+      case 'thinOpen':
+        if (sec.walls === undefined) this.issue('SN_SCHEMA', sp + '/walls', 'a thinOpen section needs walls');
+        input = {
+          shape: 'thinOpen',
+          walls: (sec.walls ?? []).map((w, k) => ({
+            length: this.positive(w.length, 'length', `${sp}/walls/${k}/length`),
+            thickness: this.positive(w.thickness, 'length', `${sp}/walls/${k}/thickness`),
+          })),
+          polarMoment: opt('polarMoment', 'areaMoment'),
+        };
+        break;
+      default:
+        input = {
+          shape: 'custom',
+          torsionConstant: need('torsionConstant', 'areaMoment'),
+          torsionalModulus: need('torsionalModulus', 'sectionModulus'),
+          polarMoment: opt('polarMoment', 'areaMoment'),
+          plasticTorqueModulus: opt('plasticTorqueModulus', 'sectionModulus'),
+        };
+    }
+    if (this.issues.length === before) {
+      // Sizes are positive by now: what is left is geometry (a wall too thick for its tube).
+      for (const p of shapeProblems(input)) this.issue('SN_SECTION_GEOMETRY', `${sp}/${p.field}`, p.message);
+    }
+    let material: ResolvedMaterial | null = null;
+    if (segMaterial === undefined) this.issue('SN_MATERIAL', segPtr + '/material', `a ${sec.shape} section needs the segment's material`);
+    else {
+      material = this.materials.get(segMaterial) ?? null;
+      if (!material) this.issue('SN_UNRESOLVED', segPtr + '/material', `no material with id "${segMaterial}"`);
+    }
+    if (this.issues.length !== before || material === null) return [];
+    const props = sectionProperties(input);
+    if (!this.shapeProps.has(si)) {
+      for (const w of props.warnings) {
+        const where = w.field === null ? '' : ` (${sp}/${w.field})`;
+        this.warnings.push(
+          w.kind === 'thinWallStretched'
+            ? { code: 'SN_THIN_WALL', message: `section "${sec.id}"${where}: ${w.message}` }
+            : { code: 'SN_OPEN_SECTION', message: `section "${sec.id}": ${w.message}` },
+        );
+      }
+    }
+    this.shapeProps.set(si, props);
+    const J = props.torsionConstant;
+    return [
+      {
+        materialId: material.id,
+        G: material.G,
+        rInner: 0,
+        rOuter: J / props.torsionalModulus,
+        J,
+        allowableShear: material.allowableShear,
+        shearYield: material.shearYield,
+      },
+    ];
+  }
+
+  /** A stress raiser: where it sits, its factor, and the sides whose nominal stress it multiplies. */
+  private raiser(r: NonNullable<ModelT['stressRaisers']>[number], i: number): ResolvedRaiser {
+    const base = pointer('stressRaisers', i);
+    const before = this.issues.length;
+    const at = this.point(r.shaft, r.at, base);
+    const out = { id: r.id, kind: r.kind, ...at, ...(r.note === undefined ? {} : { note: r.note }) };
+    const shaft = at.shaft >= 0 ? this.shafts[at.shaft] : undefined;
+    // A place already refused (off the shaft, no such shaft) is not judged again: one issue for one mistake.
+    if (!shaft || this.issues.length > before || !Number.isFinite(shaft.length)) return { ...out, factor: 1, sides: [] };
+    const tol = 1e-12 * shaft.length;
+    // The segment boundary at z (j: the segment that ends there), or −1.
+    const boundary = shaft.segments.findIndex((s, j) => j < shaft.segments.length - 1 && Math.abs(s.z1 - at.z) <= tol);
+    if (r.kind === 'factor') {
+      if (r.fillet !== undefined) this.issue('SN_SCHEMA', base + '/fillet', 'a "factor" raiser takes no fillet (give "factor")');
+      if (r.factor === undefined) {
+        this.issue('SN_SCHEMA', base + '/factor', 'a "factor" raiser needs its factor (≥ 1)');
+        return { ...out, factor: 1, sides: [] };
+      }
+      if (!(Number.isFinite(r.factor) && r.factor >= 1)) {
+        this.issue('SN_OUT_OF_RANGE', base + '/factor', `a stress concentration factor must be at least 1 (got ${r.factor})`);
+      }
+      let sides: Array<{ segment: number; left: boolean }>;
+      if (boundary >= 0) sides = [{ segment: boundary, left: true }, { segment: boundary + 1, left: false }];
+      else {
+        let j = shaft.segments.findIndex((s) => at.z <= s.z1 + tol);
+        if (j < 0) j = shaft.segments.length - 1;
+        sides = at.z <= tol ? [{ segment: 0, left: false }] : Math.abs(at.z - shaft.length) <= tol ? [{ segment: j, left: true }] : [{ segment: j, left: true }, { segment: j, left: false }];
+      }
+      return { ...out, factor: r.factor, sides };
+    }
+    if (r.factor !== undefined) this.issue('SN_SCHEMA', base + '/factor', 'a shoulder takes its factor from the fit: give "fillet", not "factor"');
+    if (r.fillet === undefined) {
+      this.issue('SN_SCHEMA', base + '/fillet', 'a shoulder needs its fillet radius');
+      return { ...out, factor: 1, sides: [] };
+    }
+    const fillet = this.positive(r.fillet, 'length', base + '/fillet');
+    if (boundary < 0) {
+      this.issue('SN_RAISER_PLACE', base + '/at', `a shoulder sits where the diameter steps, at a segment boundary of shaft "${shaft.id}"; ${at.z} m is not one`);
+      return { ...out, factor: 1, sides: [] };
+    }
+    const left = shaft.segments[boundary];
+    const right = shaft.segments[boundary + 1];
+    const diameter = (s: ResolvedSegment, atEnd: boolean): number => {
+      if (s.shape || s.layers.length === 0) return Number.NaN;
+      if (s.taper) return atEnd ? s.taper.input.dB : s.taper.input.dA;
+      return 2 * s.layers[s.layers.length - 1].rOuter;
+    };
+    const dl = diameter(left, true);
+    const dr = diameter(right, false);
+    if (left.layers.length === 0 || right.layers.length === 0) return { ...out, factor: 1, sides: [] };
+    if (!(Number.isFinite(dl) && Number.isFinite(dr))) {
+      this.issue('SN_RAISER_PLACE', base + '/at', 'a shoulder joins two round sections');
+      return { ...out, factor: 1, sides: [] };
+    }
+    if (dl === dr) {
+      this.issue('SN_RAISER_PLACE', base + '/at', `no diameter step at ${at.z} m on shaft "${shaft.id}" (${dl} m on both sides): a shoulder needs one`);
+      return { ...out, factor: 1, sides: [] };
+    }
+    if (!Number.isFinite(fillet)) return { ...out, factor: 1, sides: [] };
+    const input = { D: Math.max(dl, dr), d: Math.min(dl, dr), r: fillet };
+    const problem = shoulderRangeProblem(input);
+    if (problem) {
+      this.issue(problem.field === 'fillet' ? 'SN_OUT_OF_RANGE' : 'SN_RAISER_PLACE', base + (problem.field === 'fillet' ? '/fillet' : '/at'), problem.message);
+      return { ...out, factor: 1, sides: [] };
+    }
+    return { ...out, factor: shoulderFactor(input), sides: [dl < dr ? { segment: boundary, left: true } : { segment: boundary + 1, left: false }] };
   }
 
   private point(shaftId: string, at: unknown, base: string, key = 'at'): ShaftPoint {

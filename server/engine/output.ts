@@ -25,6 +25,7 @@ import {
   type ShaftResult,
   type Solution,
   type Station,
+  type StressRaiserResult,
   type Warning,
 } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
@@ -79,7 +80,7 @@ function rec<T>(...keys: Array<keyof T & string>): Rec {
 }
 
 // The key order of the solution: written here once, for both writers.
-const SOLUTION = rec<Solution>('format', 'name', 'shafts', 'reactions', 'gearMeshes', 'couplings', 'equilibrium', 'checks', 'warnings', 'stats');
+const SOLUTION = rec<Solution>('format', 'name', 'shafts', 'reactions', 'gearMeshes', 'couplings', 'equilibrium', 'checks', 'stressRaisers', 'warnings', 'stats');
 const SHAFT = rec<ShaftResult>('id', 'name', 'length', 'stations', 'segments', 'totalTwist', 'diagram');
 const STATION = rec<Station>('z', 'rotation', 'torqueLeft', 'torqueRight');
 const SEGMENT = rec<SegmentResult>(
@@ -90,6 +91,11 @@ const SEGMENT = rec<SegmentResult>(
   'torsionConstant',
   'torsionalRigidity',
   'stiffness',
+  'sectionEnd',
+  'torsionConstantEnd',
+  'torsionalRigidityEnd',
+  'polarMoment',
+  'torsionalModulus',
   'maxAbsTorque',
   'governingZ',
   'maxTwistRate',
@@ -103,11 +109,24 @@ const GEAR_MESH = rec<GearMeshResult>('gearMesh', 'force', 'torqueA', 'torqueB',
 const COUPLING = rec<CouplingResult>('coupling', 'torqueA', 'torqueB', 'twist');
 const EQUILIBRIUM = rec<Solution['equilibrium']>('maxResidual', 'shafts');
 const RESIDUAL = rec<Solution['equilibrium']['shafts'][number]>('shaft', 'residual');
-const CHECK = rec<CheckResult>('kind', 'shaft', 'value', 'limit', 'utilisation', 'pass', 'segment', 'layer', 'material');
+const CHECK = rec<CheckResult>('kind', 'shaft', 'value', 'limit', 'utilisation', 'pass', 'segment', 'layer', 'material', 'raiser');
+const RAISER = rec<StressRaiserResult>(
+  'id',
+  'shaft',
+  'z',
+  'kind',
+  'factor',
+  'nominalShear',
+  'localPeak',
+  'material',
+  'allowableShear',
+  'utilisation',
+  'note',
+);
 const WARNING = rec<Warning>('code', 'message', 'shafts', 'connections');
 const STATS = rec<Solution['stats']>('stations', 'unknowns', 'factorNonzeros', 'checksEvaluated');
 
-const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist'] as const;
+const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist', 'localPeak'] as const;
 
 /**
  * What the walk writes with. Each value is the next field of the innermost
@@ -169,10 +188,33 @@ function walkSolution(sv: Solved, w: Writer): void {
       w.num(sg.z1);
       w.num(J);
       w.num(sg.rigidity);
-      w.num(sg.rigidity / (sg.z1 - sg.z0));
+      const taper = sg.taper;
+      w.num(taper ? taper.stiffness : sg.rigidity / (sg.z1 - sg.z0));
+      if (taper) {
+        let JEnd = 0;
+        let GJEnd = 0;
+        for (const l of taper.layersEnd) {
+          JEnd += l.J;
+          GJEnd += l.G * l.J;
+        }
+        w.str(taper.sectionEndId);
+        w.num(JEnd);
+        w.num(GJEnd);
+      } else {
+        w.absent();
+        w.absent();
+        w.absent();
+      }
+      if (sg.shape) {
+        w.optNum(sg.shape.polarMoment);
+        w.num(sg.shape.torsionalModulus);
+      } else {
+        w.absent();
+        w.absent();
+      }
       w.num(maxAbs);
       w.num(segAt[g]);
-      w.num(maxAbs / sg.rigidity);
+      w.num(taper ? r.segRate[g] : maxAbs / sg.rigidity);
       w.num(segTwist[g]);
       w.list();
       sg.layers.forEach((l, j) => {
@@ -260,6 +302,16 @@ function walkSolution(sv: Solved, w: Writer): void {
     w.num(c.limit[m]);
     w.num(c.utilisation[m]);
     w.bool(c.value[m] <= c.limit[m]);
+    if (kind === 3) {
+      // A local peak: its material is the outer layer's on the side that governs.
+      const seg = shaft.segments[(r.raisers as NonNullable<typeof r.raisers>).segment[c.segment[m]]];
+      w.absent();
+      w.absent();
+      w.str(seg.layers[seg.layers.length - 1].materialId);
+      w.str(model.raisers[c.segment[m]].id);
+      w.close();
+      continue;
+    }
     if (kind === 2) w.absent();
     else w.num(c.segment[m]);
     if (kind === 0) {
@@ -269,9 +321,34 @@ function walkSolution(sv: Solved, w: Writer): void {
       w.absent();
       w.absent();
     }
+    w.absent();
     w.close();
   }
   w.close();
+  if (r.raisers === undefined) w.absent();
+  else {
+    const rr = r.raisers;
+    w.list();
+    model.raisers.forEach((x, i) => {
+      const seg = model.shafts[x.shaft].segments[rr.segment[i]];
+      const layer = seg.layers[seg.layers.length - 1];
+      w.open(RAISER);
+      w.str(x.id);
+      w.str(model.shafts[x.shaft].id);
+      w.num(x.z);
+      w.str(x.kind);
+      w.num(x.factor);
+      w.num(rr.nominal[i]);
+      w.num(rr.peak[i]);
+      w.str(layer.materialId);
+      w.optNum(layer.allowableShear);
+      w.optNum(layer.allowableShear === null ? null : rr.peak[i] / layer.allowableShear);
+      if (x.note === undefined) w.absent();
+      else w.str(x.note);
+      w.close();
+    });
+    w.close();
+  }
   w.list();
   for (const x of sv.warnings) {
     w.open(WARNING);

@@ -20,6 +20,7 @@ import { solveDense } from './dense-solver.js';
 import { refinedSolve } from './refine.js';
 import { buildChecks, elementTorques, expandRotations, jointTorques, recoverShafts, recoveryWarnings, type Recovered } from './recover.js';
 import type { Solved } from './output.js';
+import { recoverRaisers } from './raisers.js';
 import type { Workspace } from './workspace.js';
 
 /** The phases of a solve, reported to `onPhase` with their durations. */
@@ -90,17 +91,18 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   // Rotations of every dof, and the end torques of every element: read by the output.
   const phi = ws.stage(() => expandRotations(reduction, x, ws));
   ws.release(x, reduction.varOf, reduction.alpha, reduction.beta);
-  const ends = ws.stage(() => elementTorques(layout, parts.springs, phi, ws));
+  const ends = ws.stage(() => elementTorques(model, layout, parts.springs, phi, ws));
   // Reactions and connection torques; where T jumps (read by the diagrams only).
   const joints = ws.stage(() => jointTorques(model, layout, parts, phi, ws));
   const { springs, load } = parts;
   ws.release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
   const shafts = ws.stage(() => recoverShafts(model, layout, phi, ends, joints.jumps, options.diagramPoints ?? 8, ws));
   ws.release(joints.jumps);
-  const checks = ws.stage(() => buildChecks(model, shafts, ws));
+  const raisers = model.raisers.length > 0 ? recoverRaisers(model, layout, ends) : undefined;
+  const checks = ws.stage(() => buildChecks(model, shafts, ws, raisers));
   lap('recover');
 
-  const rec: Recovered = { phi, ...ends, ...shafts, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
+  const rec: Recovered = { phi, ...ends, ...shafts, raisers, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
   let maxResidual = 0;
   for (let k = 0; k < rec.residual.length; k++) maxResidual = Math.max(maxResidual, rec.residual[k]);
   let torqueScale = 0;
@@ -116,14 +118,14 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
     layout,
     rec,
     maxResidual,
-    warnings: [...recoveryWarnings(model, reduction), ...warnings],
+    warnings: [...recoveryWarnings(model, reduction), ...model.warnings, ...warnings],
     stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
   };
 }
 
 /** Stations a resolved model can have at most (each point on a shaft may be one). */
 export function stationEstimate(model: ResolvedModel): number {
-  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length;
+  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length + model.raisers.length;
   for (const shaft of model.shafts) n += shaft.segments.length;
   return n + 2 * (model.distributed.length + model.meshes.length + model.couplings.length);
 }

@@ -13,12 +13,15 @@
  * with the diagrams (`recoverShafts`), and the checks (`buildChecks`).
  */
 import { Matrix, pseudoInverse } from 'ml-matrix';
-import type { ResolvedModel } from './normalise.js';
+import type { ResolvedModel, ResolvedSegment, ResolvedTaper } from './normalise.js';
+import { polarMomentAt } from './taper.js';
+import type { RaiserColumns } from './raisers.js';
 import type { StationLayout } from './stations.js';
 import { consistentLeft, consistentRight, SpringCursor, type ElasticParts, type SpringSet } from './assemble.js';
 import type { Reduction } from './constraints.js';
 import type { CouplingResult, GearMeshResult, ReactionResult, Warning } from '../../shared-types/solution.js';
 import type { Workspace } from './workspace.js';
+import { taperElementLoads, taperElementState, taperTwistRatePeak } from './taper-element.js';
 
 /**
  * Everything recovered, in columns (typed arrays from the workspace) rather
@@ -38,6 +41,12 @@ export interface Recovered {
   readonly segMaxAbs: Float64Array;
   readonly segAt: Float64Array;
   readonly segTwist: Float64Array;
+  /**
+   * Per segment, only when the model has tapers (else empty): the largest twist rate |T|/(G·J(z)),
+   * rad/m (NaN for a uniform segment, whose rate is segMaxAbs / rigidity). A tapered segment's
+   * segAt is where its peak stress lies and its layer's maxShear that peak.
+   */
+  readonly segRate: Float64Array;
   readonly layerBase: Int32Array;
   /** Per layer: largest |τ| over its segment, Pa. */
   readonly layerMaxShear: Float64Array;
@@ -55,6 +64,8 @@ export interface Recovered {
   readonly gearMeshes: GearMeshResult[];
   readonly couplings: CouplingResult[];
   readonly checks: CheckColumns;
+  /** Stress raisers' nominal and local peaks; absent when the model has none. */
+  readonly raisers?: RaiserColumns;
 }
 
 /** The checks evaluated, and the order of those listed (worst first). */
@@ -63,7 +74,7 @@ export interface CheckColumns {
   readonly total: number;
   /** Indices of the listed checks, worst utilisation first. */
   readonly listed: Int32Array;
-  /** 0 shear, 1 twist rate, 2 total twist. */
+  /** 0 shear, 1 twist rate, 2 total twist, 3 local peak at a stress raiser (its index in `segment`). */
   readonly kind: Uint8Array;
   readonly shaft: Int32Array;
   /** Segment index within its shaft, and layer index within its segment. */
@@ -91,9 +102,9 @@ export interface ElementTorques {
   readonly TR: Float64Array;
 }
 
-/** Element end torques: k·(φ2 − φ1) plus or minus the consistent load share. */
-export function elementTorques(layout: StationLayout, springs: SpringSet, phi: Float64Array, ws: Workspace): ElementTorques {
-  const { z, elemLeft, elemT1, elemT2 } = layout;
+/** Element end torques: k·(φ2 − φ1) plus or minus the consistent load share (of a taper: by its exact shape function). */
+export function elementTorques(model: ResolvedModel, layout: StationLayout, springs: SpringSet, phi: Float64Array, ws: Workspace): ElementTorques {
+  const { z, elemLeft, elemT1, elemT2, shaftOf, elemSegment } = layout;
   const elemCount = springs.elemCount;
   const TL = ws.f64(elemCount); // T(z1+)
   const TR = ws.f64(elemCount); // T(z2−)
@@ -104,6 +115,15 @@ export function elementTorques(layout: StationLayout, springs: SpringSet, phi: F
     const t2 = elemT2[e];
     const loaded = t1 !== 0 || t2 !== 0;
     const h = z[d + 1] - z[d];
+    if (loaded) {
+      const seg = model.shafts[shaftOf[d]].segments[elemSegment[e]];
+      if (seg.taper) {
+        const f = taperElementLoads(seg, seg.taper, z[d], z[d + 1], t1, t2);
+        TL[e] = kd + f.fa;
+        TR[e] = kd - f.fb;
+        continue;
+      }
+    }
     TL[e] = kd + (loaded ? consistentLeft(h, t1, t2) : 0);
     TR[e] = kd - (loaded ? consistentRight(h, t1, t2) : 0);
   }
@@ -306,7 +326,20 @@ function constraintTorques(edges: ElasticParts['edges'], need: Float64Array, ws:
 
 export type ShaftColumns = Pick<
   Recovered,
-  'segBase' | 'segMaxAbs' | 'segAt' | 'segTwist' | 'layerBase' | 'layerMaxShear' | 'totalTwist' | 'diagStart' | 'diagCount' | 'dZ' | 'dT' | 'dPhi' | 'dTau'
+  | 'segBase'
+  | 'segMaxAbs'
+  | 'segAt'
+  | 'segTwist'
+  | 'segRate'
+  | 'layerBase'
+  | 'layerMaxShear'
+  | 'totalTwist'
+  | 'diagStart'
+  | 'diagCount'
+  | 'dZ'
+  | 'dT'
+  | 'dPhi'
+  | 'dTau'
 >;
 
 /** Per segment, per layer and per shaft extremes, and the diagrams, of every shaft. */
@@ -340,8 +373,10 @@ export function recoverShafts(
     const elemN = shaftStart[s + 1] - shaftStart[s] - 1;
     let loaded = 0;
     let jumped = 0;
+    const segs = model.shafts[s].segments;
     for (let e = e0; e < e0 + elemN; e++) {
-      if (elemT1[e] !== 0 || elemT2[e] !== 0) loaded++;
+      // A taper's τ curves even under a constant torque: its elements get interior points too.
+      if (elemT1[e] !== 0 || elemT2[e] !== 0 || segs[elemSegment[e]].taper) loaded++;
       jumped += jumps[shaftStart[s] + (e - e0)];
     }
     interior[s] = Math.min(diagramPoints, Math.floor(DIAGRAM_INTERIOR_BUDGET / Math.max(1, loaded)));
@@ -360,6 +395,9 @@ export function recoverShafts(
   const segPhiTo = ws.f64(nSegments);
   const totalTwist = ws.f64(nShafts);
   const roots = ws.f64(2);
+  const hasTaper = model.shafts.some((sh) => sh.segments.some((sg) => sg.taper));
+  const segRate = ws.f64(hasTaper ? nSegments : 0).fill(Number.NaN);
+  const segPeak = ws.f64(hasTaper ? nSegments : 0);
 
   for (let s = 0; s < nShafts; s++) {
     const shaft = model.shafts[s];
@@ -379,6 +417,54 @@ export function recoverShafts(
     for (let k = 0; k < shaft.segments.length; k++) segAt[g0 + k] = shaft.segments[k].z0;
     let phiMin = Infinity;
     let phiMax = -Infinity;
+    /** An element of a tapered segment: exact T, φ, τ inside; the peaks of τ and twist rate wherever they lie. */
+    const taperElement = (sg: ResolvedSegment, taper: ResolvedTaper, g: number, d: number, e: number, next: number): number => {
+      n = next;
+      const h = z[d + 1] - z[d];
+      const t1 = elemT1[e];
+      const t2 = elemT2[e];
+      const dt = t2 - t1;
+      const loaded = t1 !== 0 || t2 !== 0;
+      const T1 = TL[e];
+      const T2 = TR[e];
+      const { state, input } = taperElementState(sg, taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
+      if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
+      if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
+      if (loaded && dt !== 0) {
+        const x = (-t1 * h) / dt;
+        if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
+      }
+      if (state.peak.shear > segPeak[g]) {
+        segPeak[g] = state.peak.shear;
+        segAt[g] = z[d] + state.peak.z;
+      }
+      const rate = taperTwistRatePeak(input, taper.G, state, t1, t2).rate;
+      if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
+      for (const p of [phi[d], phi[d + 1]]) {
+        if (p < phiMin) phiMin = p;
+        if (p > phiMax) phiMax = p;
+      }
+      if (loaded) {
+        const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+        for (let r = 0; r < nr; r++) {
+          const x = roots[r];
+          if (x > 0 && x < h) {
+            const p = state.rotationAt(x);
+            if (p < phiMin) phiMin = p;
+            if (p > phiMax) phiMax = p;
+          }
+        }
+      }
+      const tauA = (T1 * input.dA) / 2 / polarMomentAt(input, 0);
+      if (n === diagStart[s] || (jumps[d] && (dT[n - 1] !== T1 || dTau[n - 1] !== tauA))) point(z[d], T1, phi[d], tauA);
+      for (let m = 1; m <= nInterior; m++) {
+        const x = (h * m) / (nInterior + 1);
+        const T = elementTorque(T1, t1, dt, h, x);
+        point(z[d] + x, T, state.rotationAt(x), state.shearAt(x));
+      }
+      point(z[d + 1], T2, phi[d + 1], (T2 * input.dB) / 2 / polarMomentAt(input, h));
+      return n;
+    };
     for (let e = e0; e < e0 + elemN; e++) {
       const d = first + (e - e0);
       const k = elemSegment[e];
@@ -393,6 +479,10 @@ export function recoverShafts(
       const T2 = TR[e];
       const gj = sg.rigidity;
       const c = sg.shearFactor;
+      if (sg.taper) {
+        n = taperElement(sg, sg.taper, g, d, e, n);
+        continue;
+      }
       if (Math.abs(T1) > segMax[g]) {
         segMax[g] = Math.abs(T1);
         segAt[g] = z[d];
@@ -454,6 +544,11 @@ export function recoverShafts(
     for (const sg of model.shafts[s].segments) {
       segTwist[g] = segPhiTo[g] - segPhiFrom[g];
       const maxAbs = segMax[g];
+      if (sg.taper) {
+        layerMaxShear[layerBase[g]] = segPeak[g];
+        g++;
+        continue;
+      }
       for (let j = 0; j < sg.layers.length; j++) {
         const l = sg.layers[j];
         layerMaxShear[layerBase[g] + j] = (l.G * l.rOuter * maxAbs) / sg.rigidity;
@@ -461,7 +556,7 @@ export function recoverShafts(
       g++;
     }
   }
-  return { segBase, segMaxAbs: segMax, segAt, segTwist, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
+  return { segBase, segMaxAbs: segMax, segAt, segTwist, segRate, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
 }
 
 /** Interior diagram points per shaft at most. */
@@ -501,7 +596,7 @@ export const MAX_LISTED_CHECKS = 10_000;
  * million-segment model has a million checks; the table wants the worst).
  * Candidates are gathered in typed arrays; `listed` orders those shown.
  */
-export function buildChecks(model: ResolvedModel, cols: ShaftColumns, ws: Workspace): CheckColumns {
+export function buildChecks(model: ResolvedModel, cols: ShaftColumns, ws: Workspace, raisers?: RaiserColumns): CheckColumns {
   const { twistRate, totalTwist } = model.limits;
   const { segBase, layerBase, layerMaxShear, segMaxAbs } = cols;
   let n = 0;
@@ -512,6 +607,12 @@ export function buildChecks(model: ResolvedModel, cols: ShaftColumns, ws: Worksp
     }
     if (totalTwist !== null) n++;
   }
+  const raiserMaterial = (i: number) => {
+    const r = model.raisers[i];
+    const layers = model.shafts[r.shaft].segments[raisers ? raisers.segment[i] : 0].layers;
+    return layers[layers.length - 1];
+  };
+  if (raisers) for (let i = 0; i < model.raisers.length; i++) if (raiserMaterial(i).allowableShear !== null) n++;
   const kind = ws.u8(n);
   const shaftIx = ws.i32(n);
   const segIx = ws.i32(n);
@@ -536,7 +637,7 @@ export function buildChecks(model: ResolvedModel, cols: ShaftColumns, ws: Worksp
         kind[k] = 1;
         shaftIx[k] = s;
         segIx[k] = index;
-        value[k] = segMaxAbs[g] / seg.rigidity;
+        value[k] = seg.taper ? cols.segRate[g] : segMaxAbs[g] / seg.rigidity;
         limit[k++] = twistRate;
       }
     });
@@ -547,6 +648,18 @@ export function buildChecks(model: ResolvedModel, cols: ShaftColumns, ws: Worksp
       limit[k++] = totalTwist;
     }
   });
+  // Local peaks at stress raisers (kind 3; `segment` holds the raiser's index).
+  if (raisers) {
+    for (let i = 0; i < model.raisers.length; i++) {
+      const allowable = raiserMaterial(i).allowableShear;
+      if (allowable === null) continue;
+      kind[k] = 3;
+      shaftIx[k] = model.raisers[i].shaft;
+      segIx[k] = i;
+      value[k] = raisers.peak[i];
+      limit[k++] = allowable;
+    }
+  }
   const util = ws.f64(n);
   for (let m = 0; m < n; m++) util[m] = value[m] / limit[m];
   // Threshold of the worst MAX_LISTED_CHECKS by a native numeric sort of a copy.

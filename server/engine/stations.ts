@@ -2,8 +2,8 @@
  * Stations: the points along each shaft where the solution is sampled exactly.
  *
  * Every segment end, support, point torque, end of a distributed torque, gear,
- * coupling and disc becomes a station; consecutive stations of a shaft bound an
- * element of uniform section and linear distributed torque. Each station has
+ * coupling, disc and stress raiser becomes a station; consecutive stations of a shaft bound an
+ * element of one segment (uniform, or a sub-taper of a tapered one) and linear distributed torque. Each station has
  * one rotation unknown (a "dof"), numbered shaft by shaft, z ascending.
  */
 import type { ResolvedModel } from './normalise.js';
@@ -44,6 +44,7 @@ export function buildStations(model: ResolvedModel, ws: Workspace): StationLayou
     for (const p of model.supports) visit(p.shaft, p.z);
     for (const p of model.torques) visit(p.shaft, p.z);
     for (const p of model.discs) visit(p.shaft, p.z);
+    for (const p of model.raisers) visit(p.shaft, p.z);
     for (const d of model.distributed) {
       visit(d.shaft, d.from);
       visit(d.shaft, d.to);

@@ -208,8 +208,9 @@ function loadMoment(t: TaperInput, ta: number, tb: number, z: number): number {
 }
 
 /** Consistent nodal loads of t(z) = ta + (tb − ta)·z/L (N·m/m): f_a = ∫ t(1 − N), f_b = ∫ t N, N·m. */
-export function consistentLoads(t: TaperInput, ta: number, tb: number): { readonly fa: number; readonly fb: number } {
-  const F = inverseMomentIntegral(t, t.length);
+export function consistentLoads(t: TaperInput, ta: number, tb: number, FL?: number): { readonly fa: number; readonly fb: number } {
+  // FL: F(L) when the caller has it already (G / stiffness), to save an integral.
+  const F = FL ?? inverseMomentIntegral(t, t.length);
   const fa = loadMoment(t, ta, tb, t.length) / F;
   return { fa, fb: loadIntegral(t.length, ta, tb, t.length) - fa };
 }
@@ -238,7 +239,15 @@ export function taperState(t: TaperInput, G: number, phiA: number, phiB: number,
   const FL = inverseMomentIntegral(t, L);
   const k = G / FL;
   const fa = loadMoment(t, ta, tb, L) / FL;
-  const T0 = k * (phiB - phiA) + fa;
+  return taperStateFromTorque(t, G, phiA, phiB, k * (phiB - phiA) + fa, ta, tb);
+}
+
+/**
+ * The same state from T(0+) (N·m) when the caller has it already (the element's end torque of
+ * the recovery): nothing is integrated until a rotation inside is asked for.
+ */
+export function taperStateFromTorque(t: TaperInput, G: number, phiA: number, phiB: number, T0: number, ta = 0, tb = 0): TaperState {
+  const L = t.length;
   const torqueAt = (z: number): number => T0 - loadIntegral(L, ta, tb, z);
   const shearAt = (z: number): number => (torqueAt(z) * outerDiameterAt(t, z)) / 2 / polarMomentAt(t, z);
   const rotationAt = (z: number): number => {

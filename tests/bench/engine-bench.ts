@@ -43,6 +43,27 @@ export function chainModel(stations: number): Json {
   };
 }
 
+/**
+ * The chain of `chainModel` with every segment tapered (solid 40 → 36 mm and back, hollow
+ * 50/30 → 46/28 mm and back), so each element is a taper with its exact stiffness, consistent
+ * loads of the distributed torque and exact peak stress.
+ */
+export function taperedChainModel(stations: number): Json {
+  const m = chainModel(stations);
+  const segs = m.shafts as Array<{ segments: Array<Record<string, unknown>> }>;
+  segs[0].segments.forEach((seg, k) => {
+    const solid = seg.section === 'a';
+    const flip = k % 4 < 2;
+    seg.section = solid ? (flip ? 'a' : 'a2') : flip ? 'b' : 'b2';
+    seg.sectionEnd = solid ? (flip ? 'a2' : 'a') : flip ? 'b2' : 'b';
+  });
+  return {
+    ...m,
+    name: `Benchmark tapered chain (invented), ${stations} stations`,
+    sections: [...sections, { id: 'a2', shape: 'solid', d: 0.036 }, { id: 'b2', shape: 'hollow', d: 0.046, di: 0.028 }],
+  };
+}
+
 /** One shaft of n stations made of up to 1,000 segments: most stations come from point torques. */
 export function chainOfLoadsModel(stations: number): Json {
   const segs = Math.min(1000, Math.floor(stations / 10));
@@ -196,6 +217,7 @@ function main(): void {
     ].join('  '),
   );
   for (const n of sizes) console.log(bench('chain', chainModel, n + 1, n >= 1e6 ? 3 : 5));
+  for (const n of sizes.filter((x) => x <= 1e5)) console.log(bench('tapered chain', taperedChainModel, n + 1, 5));
   for (const n of sizes) console.log(bench('loaded chain', chainOfLoadsModel, n + 1, n >= 1e6 ? 3 : 5));
   for (const n of sizes) console.log(bench('gear tree', gearTreeModel, n, n >= 1e6 ? 3 : 5));
 

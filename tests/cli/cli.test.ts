@@ -113,15 +113,50 @@ describe('shaftnet solve', () => {
     expect(table).toContain('J [mm4]');
     expect(table).toContain('GJ [N*m2]');
     expect(table).toContain('k [N*m/rad]');
-    expect(row(table).slice(2).map(Number)).toEqual([J * 1e12, GJ, GJ / 0.25].map((v) => Number(v.toPrecision(4))));
+    // Ip = J and Wt = J/r for a round section of one material (r = 20 mm).
+    expect(row(table).slice(2).map(Number)).toEqual([J * 1e12, GJ, GJ / 0.25, J * 1e12, (J / 0.02) * 1e9].map((v) => Number(v.toPrecision(4))));
     // US: 1 in = 0.0254 m and 1 lbf = 0.45359237 kg × 9.80665 m/s², exactly.
     const us = formatReport(model, s, 'us');
     const usTable = us.slice(us.indexOf('Segment stiffness'));
     const lbf = 0.45359237 * 9.80665;
     expect(usTable).toContain('J [in4]');
     expect(row(usTable).slice(2).map(Number)).toEqual(
-      [J / 0.0254 ** 4, GJ / (lbf * 0.0254 ** 2), GJ / 0.25 / (lbf * 0.0254)].map((v) => Number(v.toPrecision(4))),
+      [J / 0.0254 ** 4, GJ / (lbf * 0.0254 ** 2), GJ / 0.25 / (lbf * 0.0254), J / 0.0254 ** 4, J / 0.02 / 0.0254 ** 3].map((v) => Number(v.toPrecision(4))),
     );
+  });
+
+  it('tables give a taper J and GJ at both ends and its exact k, a rectangle its Ip and Wt, and the stress raisers as local peaks', async () => {
+    const path = new URL('../../server/demos/tapered-bar-shoulder.json', import.meta.url).pathname;
+    const model = JSON.parse(readFileSync(path, 'utf8'));
+    const s = solveModel(model);
+    const r = await run(['solve', path]);
+    expect(r.code).toBe(0);
+    const lines = r.out.split('\n');
+    const cells = (start: string, from = 0) => lines.slice(from).find((l) => l.trimStart().startsWith(start))!.trim().split(/\s+/);
+    const props = lines.findIndex((l) => l.startsWith('Segment stiffness and section properties'));
+    expect(props).toBeGreaterThan(0);
+    const p4 = (v: number) => Number(v.toPrecision(4));
+    const [taper, , link] = s.shafts[0].segments;
+    // Values read back from the solution: mm4, N*m2, N*m/rad, mm4, mm3 (the table's SI display units).
+    expect(cells('main[0]', props).slice(2, 5).map(Number)).toEqual([taper.torsionConstant * 1e12, taper.torsionalRigidity, taper.stiffness].map(p4));
+    expect(cells('end', props).slice(1, 4)).toEqual(['d45', String(p4((taper.torsionConstantEnd as number) * 1e12)), String(p4(taper.torsionalRigidityEnd as number))]);
+    expect(cells('main[2]', props).slice(5, 7).map(Number)).toEqual([(link.polarMoment as number) * 1e12, (link.torsionalModulus as number) * 1e9].map(p4));
+    const raisers = lines.findIndex((l) => l.startsWith('Stress raisers: local peaks'));
+    expect(raisers).toBeGreaterThan(0);
+    for (const x of s.stressRaisers ?? []) {
+      const row = cells(`${x.id} (${x.kind})`, raisers);
+      // "F1 (shoulder)" is two cells; then shaft, z [mm], Kts, nominal, local peak, allowable [MPa], util.
+      expect(row[2]).toBe(x.shaft);
+      expect(row.slice(3, 9).map(Number)).toEqual([
+        p4(x.z * 1e3),
+        Number(x.factor.toPrecision(3)),
+        p4(x.nominalShear / 1e6),
+        p4(x.localPeak / 1e6),
+        p4((x.allowableShear as number) / 1e6),
+        Number((x.utilisation as number).toPrecision(3)),
+      ]);
+    }
+    expect(r.out).toMatch(/localPeak +main F1 steel/);
   });
 
   it('--csv prints the station table of the presentation module, one row per station', async () => {

@@ -721,3 +721,168 @@ describe('sparse and dense solvers agree', () => {
     x.gearMeshes.forEach((g, i) => expect(Math.abs(g.force - y.gearMeshes[i].force), g.gearMesh).toBeLessThanOrEqual((1e-10 * tScale) / g.radiusA));
   });
 });
+
+// ---------------------------------------------------------------------------
+// The same properties with non-circular sections, tapered segments and stress raisers
+// (randomModel's `shapes` option). Tolerances as above: round-off allowances, common practice, no source.
+
+const withShapes: RandomModelOptions = { shapes: true };
+
+/** The middle section of a tapered segment cut at `first` from its start: diameters interpolated linearly. */
+function taperMiddle(model: Model, seg: Model['shafts'][number]['segments'][number], first: number, id: string): Model['sections'][number] {
+  const a = model.sections.find((s) => s.id === seg.section);
+  const b = model.sections.find((s) => s.id === seg.sectionEnd);
+  if (!a || !b) throw new Error('taper without its sections');
+  const f = first / (seg.length as number);
+  const lerp = (x: number, y: number) => x + (y - x) * f;
+  return a.shape === 'hollow'
+    ? { id, shape: 'hollow', d: lerp(a.d as number, b.d as number), di: lerp(a.di as number, b.di as number) }
+    : { id, shape: 'solid', d: lerp(a.d as number, b.d as number) };
+}
+
+describe('with new shapes, tapers and stress raisers', () => {
+  it('the generator makes systems that solve, with every shape, both kinds of taper and both kinds of raiser among them', () => {
+    const seen = { rectangle: 0, ellipse: 0, rectangularTube: 0, thinOpen: 0, custom: 0, solidTaper: 0, hollowTaper: 0, shoulder: 0, factor: 0 };
+    for (const [name, model] of systems(11000, 120, withShapes)) {
+      const sol = solveModel(model);
+      expect(sol.format, name).toBe('shaftnet-solution/1');
+      for (const shaft of model.shafts) {
+        for (const seg of shaft.segments) {
+          const sec = model.sections.find((s) => s.id === seg.section);
+          if (seg.sectionEnd !== undefined) sec?.shape === 'hollow' ? seen.hollowTaper++ : seen.solidTaper++;
+          else if (sec && sec.shape in seen) seen[sec.shape as keyof typeof seen]++;
+        }
+      }
+      for (const r of model.stressRaisers ?? []) seen[r.kind]++;
+      expect(sol.stressRaisers?.length ?? 0, name).toBe((model.stressRaisers ?? []).length);
+    }
+    for (const [what, count] of Object.entries(seen)) expect(count, what).toBeGreaterThan(5);
+  });
+
+  it.each(systems(12000, 120, withShapes))('%s: equilibrium of every shaft', (_name, model) => {
+    const sol = solveModel(model);
+    const loads = pointLoads(model, sol);
+    const scale = torqueScale(model, sol);
+    for (const shaft of model.shafts) {
+      const sum =
+        loads.filter((p) => p.shaft === shaft.id).reduce((s, p) => s + p.torque, 0) +
+        distributedOn(model, shaft.id).reduce((s, d) => s + resultant(d), 0);
+      expect(Math.abs(sum), `shaft ${shaft.id}`).toBeLessThanOrEqual(1e-9 * scale);
+    }
+    expect(sol.equilibrium.maxResidual).toBeLessThanOrEqual(1e-9 * scale);
+  });
+
+  it.each(seeds(13000, 60))('seed %i: Maxwell–Betti reciprocity', (seed) => {
+    const base = randomModel(seed, { loads: false, imposed: false, shapes: true });
+    const rng = new Rng(seed + 1);
+    const fixed = (base.supports ?? []).filter((s) => s.kind === 'fixed').map((s) => ({ shaft: s.shaft, z: si(s.at, 'length') }));
+    const candidates: Array<{ shaft: string; z: number }> = [];
+    for (const shaft of base.shafts) {
+      for (const span of segmentSpans(base, shaft.id)) {
+        candidates.push({ shaft: shaft.id, z: span.to }, { shaft: shaft.id, z: Math.round(((span.from + span.to) / 2) * 10000) / 10000 });
+      }
+    }
+    const free = candidates.filter((c) => !fixed.some((f) => f.shaft === c.shaft && Math.abs(f.z - c.z) <= Z_TOL));
+    const i = rng.pick(free);
+    const j = rng.pick(free);
+    const load = (unit: { shaft: string; z: number }, other: { shaft: string; z: number }): Model => ({
+      ...base,
+      torques: [
+        { id: 'unit', shaft: unit.shaft, at: unit.z, torque: 1 },
+        { id: 'zero', shaft: other.shaft, at: other.z, torque: 0 },
+      ],
+    });
+    const a = solveModel(load(i, j));
+    const b = solveModel(load(j, i));
+    const fii = rotationAt(a, i.shaft, i.z);
+    const fjj = rotationAt(b, j.shaft, j.z);
+    expect(fii).toBeGreaterThan(0);
+    expect(fjj).toBeGreaterThan(0);
+    expect(Math.abs(rotationAt(b, i.shaft, i.z) - rotationAt(a, j.shaft, j.z))).toBeLessThanOrEqual(1e-10 * Math.max(fii, fjj));
+  });
+
+  it.each(seeds(14000, 60))('seed %i: superposition and homogeneity', (seed) => {
+    const model = randomModel(seed, { imposed: false, shapes: true });
+    const rng = new Rng(seed + 7);
+    const inA = new Set<string>();
+    for (const t of [...(model.torques ?? []), ...(model.distributedTorques ?? [])]) if (rng.chance(0.5)) inA.add(t.id);
+    const only = (keep: (id: string) => boolean, factor = 1): Model => ({
+      ...model,
+      torques: (model.torques ?? []).filter((t) => keep(t.id)).map((t) => (t.torque !== undefined ? { ...t, torque: factor * (t.torque as number) } : { ...t, power: factor * (t.power as number) })),
+      distributedTorques: (model.distributedTorques ?? [])
+        .filter((d) => keep(d.id))
+        .map((d) => ({ ...d, start: factor * (d.start as number), end: factor * (d.end as number) })),
+    });
+    const points = structuralPoints(model);
+    const both = linearParts(solveModel(model), points);
+    const a = linearParts(solveModel(only((id) => inA.has(id))), points);
+    const b = linearParts(solveModel(only((id) => !inA.has(id))), points);
+    const sum = (x: Map<string, number>, y: Map<string, number>) => new Map([...x].map(([k, v]) => [k, v + (y.get(k) as number)]));
+    expectSameMaps(sum(a.rotation, b.rotation), both.rotation, 1e-10, 'rotation');
+    expectSameMaps(sum(a.torque, b.torque), both.torque, 1e-10, 'torque');
+    const c = -2.5;
+    const scaled = linearParts(solveModel(only(() => true, c)), points);
+    expectSameMaps(scaled.rotation, new Map([...both.rotation].map(([k, v]) => [k, c * v])), 1e-10, 'scaled rotation');
+    expectSameMaps(scaled.torque, new Map([...both.torque].map(([k, v]) => [k, c * v])), 1e-10, 'scaled torque');
+  });
+
+  it.each(seeds(15000, 80))('seed %i: splitting a segment (a taper into two sub-tapers) changes nothing at the original stations', (seed) => {
+    const model = randomModel(seed, withShapes);
+    const rng = new Rng(seed + 3);
+    const original = solveModel(model);
+    // Prefer a tapered segment when the model has one.
+    const tapered = model.shafts.flatMap((s, k) => s.segments.map((g, j) => [k, j, g.sectionEnd !== undefined] as const)).filter((x) => x[2]);
+    const [k, j] = tapered.length > 0 ? rng.pick(tapered) : [rng.int(0, model.shafts.length - 1), 0];
+    const shaft = model.shafts[k];
+    const span = segmentSpans(model, shaft.id)[j];
+    const taken = shaftResult(original, shaft.id).stations.map((s) => s.z);
+    let cut = NaN;
+    for (let tries = 0; tries < 100 && !(cut > 0); tries++) {
+      const z = Math.round(rng.range(span.from, span.to) * 10000) / 10000;
+      if (taken.every((t) => Math.abs(t - z) >= MIN_GAP / 2)) cut = z;
+    }
+    expect(cut, 'found a place to cut').toBeGreaterThan(0);
+    const seg = shaft.segments[j];
+    const first = cut - span.from;
+    const split = structuredClone(model);
+    if (seg.sectionEnd === undefined) {
+      split.shafts[k].segments.splice(j, 1, { ...seg, length: first }, { ...seg, length: (seg.length as number) - first });
+    } else {
+      const mid = taperMiddle(model, seg, first, 'cutSection');
+      split.sections.push(mid);
+      split.shafts[k].segments.splice(j, 1, { ...seg, length: first, sectionEnd: mid.id }, { ...seg, section: mid.id, length: (seg.length as number) - first });
+    }
+    const after = solveModel(split);
+    const points = original.shafts.flatMap((s) => s.stations.map((st) => ({ shaft: s.id, z: st.z })));
+    expectSameMaps(linearParts(after, points).rotation, linearParts(original, points).rotation, 1e-10, 'rotation');
+    expectSameMaps(linearParts(after, points).torque, linearParts(original, points).torque, 1e-10, 'torque');
+    // The peak stress and twist of the whole are those of its two pieces.
+    const before = shaftResult(original, shaft.id).segments[j];
+    const pieces = shaftResult(after, shaft.id).segments.slice(j, j + 2);
+    const peak = Math.max(...pieces.map((p) => p.layers[p.layers.length - 1].maxShear));
+    // Scale: the largest stress in the system (a shaft that carries nothing has round-off stresses of it).
+    const stressScale = Math.max(TINY, ...original.shafts.flatMap((s) => s.segments.flatMap((g) => g.layers.map((l) => l.maxShear))));
+    expect(Math.abs(peak - before.layers[before.layers.length - 1].maxShear)).toBeLessThanOrEqual(1e-10 * stressScale);
+    expect(Math.abs(pieces[0].twist + pieces[1].twist - before.twist)).toBeLessThanOrEqual(1e-10 * rotationScale(original));
+  });
+
+  it.each(systems(16000, 80, { shafts: [1, 8], shapes: true }))('%s: sparse and dense solvers agree', (_name, model) => {
+    const x = solveModel(model);
+    const y = solveModel(model, { solver: 'dense' });
+    const points = x.shafts.flatMap((s) => s.stations.map((st) => ({ shaft: s.id, z: st.z })));
+    expectSameMaps(linearParts(y, points).rotation, linearParts(x, points).rotation, 1e-10, 'rotation');
+    expectSameMaps(linearParts(y, points).torque, linearParts(x, points).torque, 1e-10, 'torque');
+    // Scale: the largest local peak or layer stress of the system.
+    const stressScale = Math.max(TINY, ...(x.stressRaisers ?? []).map((r) => r.localPeak), ...x.shafts.flatMap((s) => s.segments.flatMap((g) => g.layers.map((l) => l.maxShear))));
+    (x.stressRaisers ?? []).forEach((r, i) => expect(Math.abs(r.localPeak - (y.stressRaisers ?? [])[i].localPeak), r.id).toBeLessThanOrEqual(1e-10 * stressScale));
+  });
+
+  it.each(seeds(17000, 40))('seed %i: unit strings equal SI numbers for the new fields', (seed) => {
+    const model = randomModel(seed, withShapes);
+    const x = solveModel(model);
+    const y = solveModel(withUnitStrings(model, seed + 11));
+    expect(y.shafts.map((s) => s.stations.length)).toEqual(x.shafts.map((s) => s.stations.length));
+    const points = x.shafts.flatMap((s) => s.stations.map((st) => ({ shaft: s.id, z: st.z })));
+    expectSameMaps(linearParts(y, points).rotation, linearParts(x, points).rotation, 1e-12, 'rotation');
+  });
+});

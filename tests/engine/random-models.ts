@@ -92,6 +92,12 @@ export interface RandomModelOptions {
   rigidChance?: number;
   /** Layered sections in the pool (default true). */
   layered?: boolean;
+  /**
+   * Non-circular sections (rectangle, ellipse, rectangularTube, thinOpen, custom) in the pool,
+   * tapered segments (solid–solid, hollow–hollow) and stress raisers (default false: the draws
+   * of a model without them are unchanged).
+   */
+  shapes?: boolean;
 }
 
 /** Smallest distance between two distinct stations of a generated shaft, m (keeps K well conditioned). */
@@ -118,6 +124,7 @@ export function randomModel(seed: number, options: RandomModelOptions = {}): Mod
   const loops = options.loops ?? 'sometimes';
   const rigidChance = options.rigidChance ?? 0.3;
   const layered = options.layered ?? true;
+  const shapes = options.shapes ?? false;
 
   // Materials: G directly, or E with nu (G = E / 2(1 + nu)).
   const materials: Material[] = [];
@@ -157,6 +164,35 @@ export function randomModel(seed: number, options: RandomModelOptions = {}): Mod
     }
   }
 
+  if (shapes) {
+    // One of each non-circular shape (sizes in m; J and Wt of custom in m⁴ and m³), and taper ends.
+    const w = () => rng.range(0.02, 0.07);
+    sections.push({ id: 'rect', shape: 'rectangle', width: w(), height: w() });
+    sections.push({ id: 'oval', shape: 'ellipse', width: w(), height: w() });
+    const bw = rng.range(0.05, 0.09);
+    const bh = rng.range(0.04, 0.08);
+    sections.push({ id: 'box', shape: 'rectangularTube', width: bw, height: bh, wall: rng.range(0.002, 0.006) });
+    sections.push({
+      id: 'chan',
+      shape: 'thinOpen',
+      walls: [
+        { length: rng.range(0.06, 0.1), thickness: rng.range(0.004, 0.008) },
+        { length: rng.range(0.03, 0.06), thickness: rng.range(0.003, 0.006) },
+      ],
+    });
+    sections.push({ id: 'cat', shape: 'custom', torsionConstant: rng.range(1e-7, 1e-6), torsionalModulus: rng.range(5e-6, 3e-5) });
+    sections.push({ id: 'taperSolid', shape: 'solid', d: rng.range(0.025, 0.06) });
+    const d = rng.range(0.04, 0.07);
+    sections.push({ id: 'taperHollow', shape: 'hollow', d, di: d * rng.range(0.3, 0.7) });
+  }
+  /** A tapered segment from `section` to the pool's taper end of the same kind, sometimes. */
+  const maybeTaper = (section: Section): string | undefined => {
+    if (!shapes || !rng.chance(0.5)) return undefined;
+    if (section.shape === 'solid' && section.id !== 'taperSolid') return 'taperSolid';
+    if (section.shape === 'hollow' && section.id !== 'taperHollow') return 'taperHollow';
+    return undefined;
+  };
+
   // Shafts: segment lengths on a 1 mm grid so that boundaries keep their spacing.
   const shafts: Shaft[] = [];
   const plans: ShaftPlan[] = [];
@@ -168,10 +204,13 @@ export function randomModel(seed: number, options: RandomModelOptions = {}): Mod
     for (let j = 0, n = rng.int(1, maxSegments); j < n; j++) {
       const length = rng.int(40, 300) / 1000; // m
       const section = rng.pick(sections);
+      const sectionEnd = maybeTaper(section);
       segments.push(
         section.shape === 'layered'
           ? { length, section: section.id }
-          : { length, section: section.id, material: rng.pick(materials).id },
+          : sectionEnd === undefined
+            ? { length, section: section.id, material: rng.pick(materials).id }
+            : { length, section: section.id, sectionEnd, material: rng.pick(materials).id },
       );
       z += length;
       stations.push(z);
@@ -341,7 +380,39 @@ export function randomModel(seed: number, options: RandomModelOptions = {}): Mod
     model.discs = [{ id: 'disc0', shaft: plan.id, at: place(plan, false, 0.3), inertia: rng.range(0.01, 1) }];
   }
   if (rng.chance(0.3)) model.limits = { twistRate: rng.range(0.002, 0.02), totalTwist: rng.range(0.005, 0.05) };
+  if (shapes) model.stressRaisers = randomRaisers(model, plans, rng, (plan) => place(plan, false, 0.3));
   return model;
+}
+
+/** Round outer diameters either side of each inner segment boundary of a shaft (NaN where not round), m. */
+function roundEnds(model: Model, shaft: Shaft): Array<{ z: number; left: number; right: number }> {
+  const d = (id: string | undefined) => {
+    const sec = model.sections.find((x) => x.id === id);
+    return sec && (sec.shape === 'solid' || sec.shape === 'hollow') ? (sec.d as number) : Number.NaN;
+  };
+  const out: Array<{ z: number; left: number; right: number }> = [];
+  let z = 0;
+  shaft.segments.forEach((seg, j) => {
+    z += seg.length as number;
+    const next = shaft.segments[j + 1];
+    if (next) out.push({ z, left: d(seg.sectionEnd ?? seg.section), right: d(next.section) });
+  });
+  return out;
+}
+
+/** A shoulder at each boundary with a diameter step (fillet inside the fit's range), and a keyseat factor or two. */
+function randomRaisers(model: Model, plans: ShaftPlan[], rng: Rng, place: (plan: ShaftPlan) => number): NonNullable<Model['stressRaisers']> {
+  const out: NonNullable<Model['stressRaisers']> = [];
+  model.shafts.forEach((shaft, k) => {
+    for (const b of roundEnds(model, shaft)) {
+      if (!(Number.isFinite(b.left) && Number.isFinite(b.right)) || Math.abs(b.left - b.right) < 1e-4 || !rng.chance(0.7)) continue;
+      const h = Math.abs(b.left - b.right) / 2;
+      // h/r in [0.5, 3.5], inside the fit's 0.25 … 4 (server/engine/stress-raisers.ts).
+      out.push({ id: `F${out.length}`, shaft: shaft.id, at: b.z, kind: 'shoulder', fillet: h / rng.range(0.5, 3.5) });
+    }
+    if (rng.chance(0.5)) out.push({ id: `K${out.length}`, shaft: shaft.id, at: place(plans[k]), kind: 'factor', factor: rng.range(1, 3), note: 'keyseat' });
+  });
+  return out;
 }
 
 // ---------------------------------------------------------------------------
@@ -357,6 +428,17 @@ export const QUANTITY_FIELDS: ReadonlyArray<readonly [string, QuantityKind]> = [
   ['sections/*/d', 'length'],
   ['sections/*/di', 'length'],
   ['sections/*/layers/*/d', 'length'],
+  ['sections/*/width', 'length'],
+  ['sections/*/height', 'length'],
+  ['sections/*/wall', 'length'],
+  ['sections/*/walls/*/length', 'length'],
+  ['sections/*/walls/*/thickness', 'length'],
+  ['sections/*/polarMoment', 'areaMoment'],
+  ['sections/*/torsionConstant', 'areaMoment'],
+  ['sections/*/torsionalModulus', 'sectionModulus'],
+  ['sections/*/plasticTorqueModulus', 'sectionModulus'],
+  ['stressRaisers/*/at', 'length'],
+  ['stressRaisers/*/fillet', 'length'],
   ['shafts/*/segments/*/length', 'length'],
   ['supports/*/at', 'length'],
   ['supports/*/rotation', 'angle'],
