@@ -254,3 +254,52 @@ export function sectionProperties(solution: Solution | null, id: string, section
   }
   return null;
 }
+
+// ---------------------------------------------------------------------------
+// Side view of a shaft (the schematic)
+
+/** One segment as the side view draws it, m: from z0 to z1, its outer and hollow heights at both ends. */
+export interface ProfileSegment {
+  index: number;
+  z0: number;
+  z1: number;
+  shape: string;
+  /** Outer height at z0 and at z1 (equal unless tapered). */
+  outer0: number;
+  outer1: number;
+  /** Height of the hollow (bore or tube inside) at z0 and z1; 0 when solid. */
+  inner0: number;
+  inner1: number;
+  /** Ring diameters of a layered section, inside out (else the outer height alone). */
+  rings: number[];
+  /** True when the segment has an end section (`sectionEnd`). */
+  tapered: boolean;
+}
+
+/**
+ * The side view of one shaft's segments: each from its start section to its end
+ * section (a taper varies linearly between them). A negative or unreadable length
+ * draws as nothing; an unknown section as height 0.
+ */
+export function shaftProfile(segments: ReadonlyArray<Readonly<Record<string, unknown>>>, sections: readonly SectionLike[]): ProfileSegment[] {
+  const byId = new Map(sections.map((s) => [s.id, s]));
+  let z = 0;
+  return segments.map((seg, index) => {
+    const L = len(seg.length);
+    const a = sideView(byId.get(seg.section as string));
+    const tapered = typeof seg.sectionEnd === 'string' && seg.sectionEnd !== '';
+    const b = tapered ? sideView(byId.get(seg.sectionEnd as string)) : a;
+    const shape = String(byId.get(seg.section as string)?.shape ?? 'solid');
+    const out: ProfileSegment = { index, z0: z, z1: z + L, shape, outer0: a.outer, outer1: b.outer, inner0: a.inner, inner1: b.inner, rings: a.rings, tapered };
+    z += L;
+    return out;
+  });
+}
+
+/** Outer height of a shaft's side view at z, m (linear inside a taper; the last segment past the end). */
+export function outerAt(profile: readonly ProfileSegment[], z: number): number {
+  const s = profile.find((p) => z >= p.z0 - 1e-12 && z <= p.z1 + 1e-12) ?? profile[profile.length - 1];
+  if (!s) return 0;
+  const t = s.z1 > s.z0 ? Math.min(1, Math.max(0, (z - s.z0) / (s.z1 - s.z0))) : 0;
+  return s.outer0 + t * (s.outer1 - s.outer0);
+}
