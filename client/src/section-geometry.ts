@@ -47,7 +47,7 @@ export function sectionUnit(kind: SectionKind, system: UnitSystem): string {
   return SECTION_UNITS[kind].display[system];
 }
 
-const NUMBER_UNIT = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*([A-Za-z][A-Za-z0-9^]*)?\s*$/;
+const NUMBER_UNIT = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*([A-Za-z][A-Za-z0-9^*/·]*)?\s*$/;
 
 /** A stored section property (a number in SI, or "<n> <unit>") in SI, or null when it cannot be read. */
 export function readSectionQuantity(stored: unknown, kind: SectionKind): number | null {
@@ -176,8 +176,9 @@ export function outlineBox(o: Outline): { width: number; height: number } {
       return { width: o.width, height: o.height };
     case 'open': {
       if (o.walls.length === 0) return { width: 0, height: 0 };
-      const xs = o.walls.flatMap((w) => [w.x0 - w.t / 2, w.x1 + w.t / 2, w.x0 + w.t / 2, w.x1 - w.t / 2]);
-      const ys = o.walls.flatMap((w) => [w.y0 - w.t / 2, w.y1 + w.t / 2, w.y0 + w.t / 2, w.y1 - w.t / 2]);
+      // A wall's thickness widens it across its centre line only (walls meet on their centre lines).
+      const xs = o.walls.flatMap((w) => (w.x0 === w.x1 ? [w.x0 - w.t / 2, w.x0 + w.t / 2] : [w.x0, w.x1]));
+      const ys = o.walls.flatMap((w) => (w.y0 === w.y1 ? [w.y0 - w.t / 2, w.y0 + w.t / 2] : [w.y0, w.y1]));
       return { width: Math.max(...xs) - Math.min(...xs), height: Math.max(...ys) - Math.min(...ys) };
     }
     case 'custom':
