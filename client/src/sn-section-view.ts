@@ -2,9 +2,9 @@ import { LitElement, css, html, nothing, svg, type SVGTemplateResult } from 'lit
 import { type Outline, type SectionLike, type SectionProperties, outlineBox, sectionOutline, sectionToDisplay, sectionUnit } from './section-geometry.js';
 import { type UnitSystem, formatNumber, formatQuantity, formatValue, prettyUnit, displayUnit } from './units.js';
 
-const VW = 160; // px, viewBox width of the drawing
-const VH = 120; // px, viewBox height
-const PAD = 14; // px around the outline, room for the scale bar
+const VW = 130; // px, viewBox width of the drawing
+const VH = 100; // px, viewBox height
+const PAD = 12; // px around the outline, room for the scale bar
 
 /**
  * One cross-section drawn to scale (its own scale, given by a bar under it), with
@@ -15,7 +15,7 @@ const PAD = 14; // px around the outline, room for the scale bar
 export class SnSectionView extends LitElement {
   static override styles = css`
     :host { display: inline-flex; gap: 8px; align-items: flex-start; border: 1px solid #dcd7cd; border-radius: 4px; padding: 4px 8px 4px 4px; background: #fff; }
-    svg { width: 160px; height: 120px; flex: none; font-family: system-ui, sans-serif; }
+    svg { width: 130px; height: 100px; flex: none; font-family: system-ui, sans-serif; }
     .note { font-size: 9px; fill: #6b665e; }
     dl { margin: 0; font-size: 12px; display: grid; grid-template-columns: auto auto; gap: 1px 8px; align-content: start; }
     dt { color: #4a5258; }
@@ -66,8 +66,8 @@ export class SnSectionView extends LitElement {
           ? svg`<g data-scale=${bar}><line x1="6" x2=${6 + bar * s} y1=${VH - 6} y2=${VH - 6} stroke="#1f2326" stroke-width="1.5" />
               <text class="note" x=${10 + bar * s} y=${VH - 3}>${formatQuantity(bar, 'length', this.system, 3)}</text></g>`
           : nothing}
-        ${o.kind === 'custom' ? svg`<text class="note" x=${cx} y="10" text-anchor="middle">drawn as a round of radius J/Wt</text>` : nothing}
-        ${o.kind === 'open' ? svg`<text class="note" x=${cx} y="10" text-anchor="middle">walls drawn at right angles</text>` : nothing}
+        ${o.kind === 'custom' ? svg`<text class="note" x=${cx} y="10" text-anchor="middle">a round, r = J/Wt</text>` : nothing}
+        ${o.kind === 'open' ? svg`<text class="note" x=${cx} y="10" text-anchor="middle">walls at right angles</text>` : nothing}
       </svg>
       <div>
         <h5>${sec.id} <span class="muted">${sec.shape}</span></h5>
