@@ -5,7 +5,6 @@
  * mark on a shaft's shear diagram.
  */
 import type { CheckResult, Solution } from '../../shared-types/solution.js';
-import type { FieldKind } from './units.js';
 import type { PlotPeak } from './sn-plot.js';
 import { valueAt } from './diagram-readout.js';
 
@@ -27,17 +26,8 @@ export interface RaiserResult {
   note?: string;
 }
 
-export const CHECK_KIND: Record<AnyCheck['kind'], { label: string; kind: FieldKind }> = {
-  shear: { label: 'Shear stress', kind: 'stress' },
-  twistRate: { label: 'Twist rate', kind: 'twistRate' },
-  totalTwist: { label: 'Total twist', kind: 'angle' },
-  localPeak: { label: 'Local peak', kind: 'stress' },
-};
-
-/** How a check names itself in the table: "Local peak at F1" for a stress raiser's. */
-export function checkLabel(c: { kind: string; raiser?: string }): string {
-  const k = CHECK_KIND[c.kind as AnyCheck['kind']];
-  const label = k ? k.label : c.kind;
+/** How a check names itself in the table, from its kind's label: "Local peak at F1" for a stress raiser's. */
+export function checkLabel(c: { kind: string; raiser?: string }, label: string): string {
   return c.kind === 'localPeak' && c.raiser ? `${label} at ${c.raiser}` : label;
 }
 

@@ -5,7 +5,7 @@ import type { SelectDetail } from './sn-table.js';
 import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, formatValue, prettyUnit } from './units.js';
 import type { CursorDetail } from './sn-plot.js';
 import type { SectionLike } from './section-geometry.js';
-import { type AnyCheck, CHECK_KIND, checkLabel, raisersOf, shaftPeaks } from './raiser-results.js';
+import { type AnyCheck, checkLabel, raisersOf, shaftPeaks } from './raiser-results.js';
 import { valueAt } from './diagram-readout.js';
 import './sn-plot.js';
 import './sn-segment-table.js';
@@ -13,6 +13,13 @@ import './sn-station-table.js';
 
 /** Where the results stand against the model on screen. */
 export type ResultState = 'none' | 'fresh' | 'stale' | 'solving' | 'invalid' | 'failed';
+
+const CHECK_KIND: Record<AnyCheck['kind'], { label: string; kind: FieldKind }> = {
+  shear: { label: 'Shear stress', kind: 'stress' },
+  twistRate: { label: 'Twist rate', kind: 'twistRate' },
+  totalTwist: { label: 'Total twist', kind: 'angle' },
+  localPeak: { label: 'Local peak', kind: 'stress' },
+};
 
 /** Checks listed before "Show all": the worst ones. */
 const CHECKS_SHOWN = 12;
@@ -227,7 +234,7 @@ export class SnResults extends LitElement {
             return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'}>
               <td>${c.shaft}</td><td>${c.segment === undefined ? '—' : c.segment + 1}</td>
               <td>${c.layer === undefined ? '—' : `${c.layer + 1}${c.material ? ` (${c.material})` : ''}`}</td>
-              <td>${checkLabel(c)}</td>
+              <td>${checkLabel(c, k.label)}</td>
               <td class="num value-of">${formatValue(c.value, k.kind, this.system, 3)} of ${formatValue(c.limit, k.kind, this.system, 3)} ${this.unit(k.kind)}</td>
               <td class="num"><span class="barbox" aria-hidden="true"><span class="bar ${over ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
               <td class="status ${over ? 'fail' : 'ok'}">${over ? html`<span aria-hidden="true">⚠ </span>EXCEEDS by ${formatNumber((u - 1) * 100, 3)} %` : 'ok'}</td>

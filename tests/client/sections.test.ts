@@ -236,9 +236,9 @@ describe('stress raisers in the results', () => {
   } as unknown as Solution;
 
   it('names a local-peak check by its raiser and the others as before', () => {
-    expect(checkLabel({ kind: 'localPeak', raiser: 'F1' })).toBe('Local peak at F1');
-    expect(checkLabel({ kind: 'shear' })).toBe('Shear stress');
-    expect(checkLabel({ kind: 'twistRate' })).toBe('Twist rate');
+    expect(checkLabel({ kind: 'localPeak', raiser: 'F1' }, 'Local peak')).toBe('Local peak at F1');
+    expect(checkLabel({ kind: 'shear' }, 'Shear stress')).toBe('Shear stress');
+    expect(checkLabel({ kind: 'localPeak' }, 'Local peak')).toBe('Local peak');
   });
 
   it('marks the local peak on the side of the signed nominal curve, with its magnitude', () => {
