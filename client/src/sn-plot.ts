@@ -141,7 +141,11 @@ export class SnPlot extends LitElement {
       const y = Y(py[k]);
       const onCurve = valueAt(this.z, this.values, p.z);
       const yc = onCurve === null ? Y(0) : Y(toDisplay(onCurve, this.kind, this.system));
-      const right = x < PW * 0.6;
+      // The label goes away from the governing point's own label where there is room (about 160 px of text).
+      const gx = mi >= 0 && mi < xs.length ? X(xs[mi]) : null;
+      const roomLeft = x - ML >= 160;
+      const roomRight = PW - MR - x >= 160;
+      const right = gx === null ? x < PW * 0.6 : gx > x ? !roomLeft : roomRight;
       return svg`<g class="peak" data-z=${p.z} data-value=${p.value}>
         <line x1=${x} x2=${x} y1=${yc} y2=${y} stroke="#8c1d18" stroke-width="1.2" stroke-dasharray="2 2"/>
         <path d="M${x} ${y - 6} l5 6 l-5 6 l-5 -6 Z" fill="#fff" stroke="#8c1d18" stroke-width="1.6"/>
