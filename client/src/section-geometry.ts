@@ -241,19 +241,30 @@ export function segmentProperties(seg: SegmentWithShape, end: boolean, endSectio
   return { J, Ip: J, Wt: r > 0 ? J / r : null };
 }
 
-/** The properties of a section from the first segment of the solution that uses it (at its start or as a taper's end), or null. */
-export function sectionProperties(solution: Solution | null, id: string, sections: readonly SectionLike[]): SectionProperties | null {
-  if (!solution) return null;
+/**
+ * The properties of every section that a segment uses, by id, from the first
+ * segment of the solution that uses it (at its start, or as a taper's end):
+ * one pass over the segments, whatever the number of sections.
+ */
+export function sectionPropertiesById(solution: Solution | null, sections: readonly SectionLike[]): Map<string, SectionProperties> {
+  const out = new Map<string, SectionProperties>();
+  if (!solution) return out;
+  const byId = new Map(sections.map((s) => [s.id, s]));
   for (const sh of solution.shafts) {
     for (const seg of sh.segments as SegmentWithShape[]) {
       const where = `${sh.id}, segment ${seg.index + 1}`;
-      if (seg.section === id) return { ...segmentProperties(seg, false), from: where };
-      if (seg.sectionEnd === id) {
-        return { ...segmentProperties(seg, true, sections.find((s) => s.id === id)), from: `${where} (its end)` };
+      if (!out.has(seg.section)) out.set(seg.section, { ...segmentProperties(seg, false), from: where });
+      if (seg.sectionEnd !== undefined && !out.has(seg.sectionEnd)) {
+        out.set(seg.sectionEnd, { ...segmentProperties(seg, true, byId.get(seg.sectionEnd)), from: `${where} (its end)` });
       }
     }
   }
-  return null;
+  return out;
+}
+
+/** The properties of one section (see `sectionPropertiesById`), or null when no segment uses it. */
+export function sectionProperties(solution: Solution | null, id: string, sections: readonly SectionLike[]): SectionProperties | null {
+  return sectionPropertiesById(solution, sections).get(id) ?? null;
 }
 
 // ---------------------------------------------------------------------------

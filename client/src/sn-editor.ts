@@ -2,7 +2,7 @@ import { LitElement, css, html, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
 import type { Solution } from '../../shared-types/solution.js';
 import { type EditModel, stressRaisersOf } from './model-edits.js';
-import { SECTION_SHAPES, type SectionLike, sectionProperties } from './section-geometry.js';
+import { SECTION_SHAPES, type SectionLike, type SectionProperties, sectionPropertiesById } from './section-geometry.js';
 import { type Column, type EditDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
 import './sn-table.js';
@@ -102,7 +102,7 @@ export class SnEditor extends LitElement {
       </details>
       ${this.section('Materials', 'materials', 'material', m.materials as Row[], materialColumns(), 'G directly, or E with Poisson’s ratio ν. Allowable shear drives the checks.')}
       ${this.section('Sections', 'sections', 'section', m.sections as Row[], sectionColumns(), 'Each section’s card below holds the sizes of its shape, its drawing to scale and its properties. Layered sections list bonded layers inside out; open sections their walls.', html`
-        <div class="cards">${m.sections.map((s, i) => this.sectionCard(s as unknown as SectionLike, i, m.sections as unknown as SectionLike[], materials))}</div>`)}
+        <div class="cards">${this.sectionCards(m.sections as unknown as SectionLike[], materials)}</div>`)}
       ${this.section('Shafts', 'shafts', 'shaft', m.shafts.map((s) => ({ id: s.id, name: s.name })), shaftColumns(), 'Each shaft runs along its own z from 0; segments follow one another.', html`
         ${m.shafts.map(
           (s, i) => html`<div class="sub">
@@ -162,8 +162,13 @@ export class SnEditor extends LitElement {
     for (const t of this.renderRoot.querySelectorAll('sn-table')) t.revealSelected();
   }
 
+  private sectionCards(sections: SectionLike[], materials: string[]) {
+    const props = sectionPropertiesById(this.solution, sections);
+    return sections.map((s, i) => this.sectionCard(s, i, props.get(String(s.id ?? '')) ?? null, materials));
+  }
+
   /** A section's card: the fields of its shape, its layers or walls, and its drawing with properties. */
-  private sectionCard(s: SectionLike, i: number, all: SectionLike[], materials: string[]) {
+  private sectionCard(s: SectionLike, i: number, props: SectionProperties | null, materials: string[]) {
     const cols = shapeColumns(String(s.shape ?? ''));
     return html`<div class="card" data-section-card=${s.id ?? ''}>
       <div class="fields">
@@ -175,7 +180,7 @@ export class SnEditor extends LitElement {
         ${s.shape === 'layered' ? html`<div class="sub"><h4>Layers of ${s.id}</h4>${this.table(`/sections/${i}/layers`, 'layer', (s.layers ?? []) as Row[], layerColumns(materials))}</div>` : nothing}
         ${s.shape === 'thinOpen' ? html`<div class="sub"><h4>Walls of ${s.id}</h4>${this.table(`/sections/${i}/walls`, 'wall', (s.walls ?? []) as Row[], wallColumns())}</div>` : nothing}
       </div>
-      <sn-section-view .section=${s} .properties=${sectionProperties(this.solution, String(s.id ?? ''), all)} .system=${this.system} ?solved=${this.solution !== null}></sn-section-view>
+      <sn-section-view .section=${s} .properties=${props} .system=${this.system} ?solved=${this.solution !== null}></sn-section-view>
     </div>`;
   }
 

@@ -674,7 +674,7 @@ describe.runIf(hasBrowser)('web client in Chromium against the real server', () 
     else expect(Number(jText)).toBeCloseTo((Math.PI * 40 ** 4) / 32, -1);
     // Stations: the table lists every station of the shaft.
     await shaft.locator('sn-station-table summary').click();
-    expect(await shaft.locator('sn-station-table table.stations tbody tr').count()).toBe(input.stations.length);
+    await expect.poll(() => shaft.locator('sn-station-table table.stations tbody tr').count()).toBe(input.stations.length);
     // Checks: "value of allowed unit", then an over-limit row with a look of its own.
     expect(await page.locator('sn-results table.checks tbody tr').first().locator('td.value-of').innerText()).toMatch(/^-?[\d.e-]+ of [\d.e-]+ (MPa|deg\/m|deg)$/);
     const allow = page.locator('sn-editor input[data-pointer="/materials/0/allowableShear"]');
