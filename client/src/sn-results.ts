@@ -255,7 +255,7 @@ export class SnResults extends LitElement {
     return html`<h3>Stress raisers: local peaks</h3>
       <table class="raisers">
         <thead><tr><th>Raiser</th><th>Shaft</th><th>At z [${this.unit('length')}]</th><th>Kind</th><th title="Stress concentration factor in torsion">Kts</th>
-          <th>Nominal τ [${st}]</th><th>Local peak [${st}]</th><th>Allowed [${st}]</th><th>Utilisation</th></tr></thead>
+          <th>Nominal τ [${st}]</th><th>Local peak of allowed [${st}]</th><th>Utilisation</th></tr></thead>
         <tbody>
           ${rows.map((r) => {
             const over = r.utilisation !== null && r.utilisation > 1;
@@ -264,8 +264,7 @@ export class SnResults extends LitElement {
               <td>${r.kind}${r.note ? html` <span class="muted">(${r.note})</span>` : nothing}</td>
               <td class="num" data-factor=${r.factor}>${formatNumber(r.factor, 3)}</td>
               <td class="num">${formatValue(Math.abs(r.nominalShear), 'stress', this.system, 4)}</td>
-              <td class="num" data-local=${r.localPeak}>${formatValue(r.localPeak, 'stress', this.system, 4)}</td>
-              <td class="num">${formatValue(r.allowableShear, 'stress', this.system, 3)}</td>
+              <td class="num" data-local=${r.localPeak}>${formatValue(r.localPeak, 'stress', this.system, 4)}${r.allowableShear === null ? '' : ` of ${formatValue(r.allowableShear, 'stress', this.system, 3)}`}</td>
               <td class="num ${over ? 'fail' : ''}">${r.utilisation === null ? '—' : html`${over ? html`<span aria-hidden="true">⚠ </span>` : nothing}${formatNumber(r.utilisation * 100, 3)} %`}</td>
             </tr>`;
           })}
