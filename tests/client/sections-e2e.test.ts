@@ -149,7 +149,8 @@ describe.runIf(hasBrowser)('sections, tapers and stress raisers in Chromium agai
       headers: { 'content-type': 'application/json' },
       body: JSON.stringify({ model: MODEL, author: 'E2E', message: 'sections' }),
     });
-    expect(saved.status).toBe(201);
+    // Refused (400) by a server without issue 10's engine: this suite runs once that work is merged.
+    expect(saved.status, `the server refused the model (${await saved.clone().text()}): it needs the engine of issue 10`).toBe(201);
     const { id } = (await saved.json()) as { id: string };
     page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
     page.on('console', (msg) => {
