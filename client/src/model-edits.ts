@@ -7,6 +7,7 @@
 import type { Model } from '../../shared-types/model.js';
 import { isProblem, readQuantity } from '../../shared-types/quantity.js';
 import { readablePointer } from '../../shared-types/present.js';
+import { SHAPE_FIELDS } from './section-geometry.js';
 
 /** A model as the editor holds it: the contract's shape, values as typed. */
 export type EditModel = Model;
@@ -21,7 +22,24 @@ export type ListName =
   | 'distributedTorques'
   | 'gearMeshes'
   | 'couplings'
-  | 'discs';
+  | 'discs'
+  | 'stressRaisers';
+
+/** A stress raiser of the model format (issue 10): declared here until the shared model type has it. */
+export interface StressRaiserRow {
+  id: string;
+  shaft: string;
+  at: unknown;
+  kind: 'shoulder' | 'factor';
+  fillet?: unknown;
+  factor?: number;
+  note?: string;
+}
+
+/** The stress raisers of a model (none when it has no list). */
+export function stressRaisersOf(model: EditModel): StressRaiserRow[] {
+  return ((model as { stressRaisers?: StressRaiserRow[] }).stressRaisers ?? []) as StressRaiserRow[];
+}
 
 type Json = unknown;
 type Key = string | number;
@@ -97,11 +115,12 @@ const ID_PREFIX: Record<ListName, string> = {
   gearMeshes: 'G',
   couplings: 'C',
   discs: 'D',
+  stressRaisers: 'K',
 };
 
 /** A new row for a list, with a fresh id and values that reference existing items. */
 export function newRow(model: EditModel, list: ListName): Record<string, Json> {
-  const id = nextId(ID_PREFIX[list], idsOf(model[list]));
+  const id = nextId(ID_PREFIX[list], idsOf((model as Record<string, unknown>)[list]));
   const shaft = model.shafts[0]?.id ?? '';
   const shaft2 = model.shafts[1]?.id ?? shaft;
   switch (list) {
@@ -123,6 +142,45 @@ export function newRow(model: EditModel, list: ListName): Record<string, Json> {
       return { id, a: { shaft, at: 0 }, b: { shaft: shaft2, at: 0 } };
     case 'discs':
       return { id, shaft, at: 0, inertia: '0.1 kg*m2' };
+    case 'stressRaisers':
+      return { id, shaft, at: firstBoundary(model), kind: 'factor', factor: 2 };
+  }
+}
+
+/** Where a new stress raiser goes: the first segment boundary of the first shaft (a shoulder's place), else z = 0. */
+function firstBoundary(model: EditModel): string | number {
+  const segs = model.shafts[0]?.segments ?? [];
+  if (segs.length < 2) return 0;
+  const z = readQuantity(segs[0].length, 'length');
+  return isProblem(z) ? 0 : mmText(z);
+}
+
+/** A new wall of an open thin-walled section. */
+export function newWall(): Record<string, Json> {
+  return { length: '40 mm', thickness: '4 mm' };
+}
+
+/** The fields a section of each shape starts with (the first size of the model format's examples; invented). */
+export function sectionDefaults(shape: string, firstMaterial: string): Record<string, Json> {
+  switch (shape) {
+    case 'solid':
+      return { d: '40 mm' };
+    case 'hollow':
+      return { d: '50 mm', di: '30 mm' };
+    case 'layered':
+      return { layers: [{ d: '40 mm', material: firstMaterial }] };
+    case 'rectangle':
+      return { width: '60 mm', height: '20 mm' };
+    case 'ellipse':
+      return { width: '60 mm', height: '40 mm' };
+    case 'rectangularTube':
+      return { width: '80 mm', height: '60 mm', wall: '4 mm' };
+    case 'thinOpen':
+      return { walls: [{ length: '40 mm', thickness: '4 mm' }, { length: '80 mm', thickness: '5 mm' }, { length: '40 mm', thickness: '4 mm' }] };
+    case 'custom':
+      return { torsionConstant: '2.1e5 mm4', torsionalModulus: '1.1e4 mm3' };
+    default:
+      return {};
   }
 }
 
@@ -203,6 +261,7 @@ export function rowFor(model: EditModel, listPointer: string): Json {
   if (keys.length === 1) return newRow(model, keys[0] as ListName);
   if (keys[0] === 'shafts' && keys[2] === 'segments') return newSegment(model);
   if (keys[0] === 'sections' && keys[2] === 'layers') return newLayer(model, keys[1] as number);
+  if (keys[0] === 'sections' && keys[2] === 'walls') return newWall();
   throw new Error(`no rows at ${listPointer}`);
 }
 
@@ -217,8 +276,12 @@ const REFERENCES: Record<'shafts' | 'sections' | 'materials', Array<(m: EditMode
     (m, a, b) => renameIn(m, 'gearMeshes', ['b', 'shaft'], a, b),
     (m, a, b) => renameIn(m, 'couplings', ['a', 'shaft'], a, b),
     (m, a, b) => renameIn(m, 'couplings', ['b', 'shaft'], a, b),
+    (m, a, b) => renameIn(m, 'stressRaisers', ['shaft'], a, b),
   ],
-  sections: [(m, a, b) => mapSegments(m, (s) => (s.section === a ? { ...s, section: b } : s))],
+  sections: [
+    (m, a, b) => mapSegments(m, (s) => (s.section === a ? { ...s, section: b } : s)),
+    (m, a, b) => mapSegments(m, (s) => ((s as { sectionEnd?: string }).sectionEnd === a ? ({ ...s, sectionEnd: b } as typeof s) : s)),
+  ],
   materials: [
     (m, a, b) => mapSegments(m, (s) => (s.material === a ? { ...s, material: b } : s)),
     (m, a, b) => ({
@@ -233,7 +296,7 @@ const REFERENCES: Record<'shafts' | 'sections' | 'materials', Array<(m: EditMode
 };
 
 function renameIn(m: EditModel, list: ListName, path: string[], from: string, to: string): EditModel {
-  const rows = m[list] as Json[] | undefined;
+  const rows = (m as Record<string, unknown>)[list] as Json[] | undefined;
   if (!rows) return m;
   let out = m;
   rows.forEach((row, i) => {
@@ -251,7 +314,9 @@ function mapSegments(m: EditModel, f: (s: Model['shafts'][number]['segments'][nu
  * (undefined removes it), and keeps the model coherent where one field implies
  * others:
  * - renaming a shaft, section or material id renames the references to it;
- * - a section's shape brings or drops its bore and layers;
+ * - a section's shape brings the fields of the new shape and drops those of the old
+ *   (between round shapes the outer diameter and bore are kept);
+ * - a stress raiser's kind brings or drops its fillet and factor;
  * - a support's kind brings or drops its stiffness and rotation;
  * - the virtual fields `@form` (point torque: "torque" | "power"),
  *   `@elastic` (material: "G" | "E") and `@sizing` (gear mesh: "radius" | "teeth")
@@ -285,8 +350,22 @@ export function applyEdit(model: EditModel, pointer: string, value: Json): EditM
     const { module: _m, ...rest } = row;
     return setIn(model, [list, index], { ...rest, a: { ...ra, radius: a.radius ?? '40 mm' }, b: { ...rb, radius: b.radius ?? '80 mm' } });
   }
+  if (keys.length === 3 && field === 'kind' && list === 'stressRaisers' && row) {
+    const { fillet, factor, ...rest } = row;
+    if (value === 'shoulder') return setIn(model, [list, index], { ...rest, kind: 'shoulder', fillet: fillet ?? '1 mm' });
+    return setIn(model, [list, index], { ...rest, kind: 'factor', factor: factor ?? 2 });
+  }
+  if (keys.length === 3 && field === 'shape' && list === 'sections' && row && !['solid', 'hollow', 'layered'].includes(value as string)) {
+    const rest = Object.fromEntries(Object.entries(row).filter(([k]) => !(SHAPE_FIELDS as readonly string[]).includes(k)));
+    return setIn(model, [list, index], { ...rest, shape: value, ...sectionDefaults(value as string, model.materials[0]?.id ?? '') });
+  }
   if (keys.length === 3 && field === 'shape' && list === 'sections' && row) {
-    const { d, di, layers, ...rest } = row;
+    const { d: d0, di: di0, layers, ...all } = row;
+    const rest = Object.fromEntries(Object.entries(all).filter(([k]) => !(SHAPE_FIELDS as readonly string[]).includes(k)));
+    // A size carries over only between round shapes.
+    const round = ['solid', 'hollow', 'layered'].includes(row.shape as string);
+    const d = round ? d0 : undefined;
+    const di = round ? di0 : undefined;
     if (value === 'solid') return setIn(model, [list, index], { ...rest, shape: 'solid', d: d ?? '40 mm' });
     if (value === 'hollow') return setIn(model, [list, index], { ...rest, shape: 'hollow', d: d ?? '50 mm', di: di ?? '30 mm' });
     const firstMat = model.materials[0]?.id ?? '';

@@ -135,7 +135,7 @@ export class SnApp extends LitElement {
               <div class="card editor-card">
                 <h2>Model</h2>
                 <sn-editor .model=${m} .system=${this.system} .errors=${marks.messages} .selected=${this.selected}
-                  .flagged=${marks.rows} .notes=${this.notes}></sn-editor>
+                  .flagged=${marks.rows} .notes=${this.notes} .solution=${this.solver.solution}></sn-editor>
               </div>
             </div>
             <div class="col">

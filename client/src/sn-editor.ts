@@ -1,16 +1,20 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
-import type { EditModel } from './model-edits.js';
+import type { Solution } from '../../shared-types/solution.js';
+import { type EditModel, stressRaisersOf } from './model-edits.js';
+import { SECTION_SHAPES, type SectionLike, type SectionProperties, sectionPropertiesById } from './section-geometry.js';
 import { type Column, type EditDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
 import './sn-table.js';
+import './sn-section-view.js';
 
 type Row = Record<string, unknown>;
 
 /**
  * The model editor: a table per list of the contract, sub-tables for the
- * segments of each shaft and the layers of each layered section, and the
- * model's name, notes and limits. Edits go up as events; the model comes down.
+ * segments of each shaft, and the model's name, notes and limits. Each section
+ * has a card: the fields of its shape (with the layers or walls it lists), its
+ * drawing to scale and its properties from the solution. Edits go up as events; the model comes down.
  * `focusPointer` shows and focuses the field a problem names.
  *
  * @fires sn-edit - bubbled from the tables, and for the name and notes
@@ -28,6 +32,10 @@ export class SnEditor extends LitElement {
     .hint { color: #6b665e; font-size: 12px; margin: 2px 0 6px; }
     .sub { margin: 8px 0 4px 14px; }
     .sub h4 { margin: 0 0 2px; font-size: 12px; font-weight: 600; color: #4a5258; }
+    .cards { display: flex; flex-direction: column; gap: 6px; margin: 8px 0 4px; }
+    .card { display: flex; flex-wrap: wrap; gap: 8px; align-items: flex-start; border-left: 3px solid #dcd7cd; padding-left: 6px; }
+    .card .fields { min-width: 0; max-width: 100%; }
+    .card h4 { margin: 0 0 2px; font-size: 12px; font-weight: 600; color: #4a5258; }
     label.field { display: grid; grid-template-columns: 4.5em 1fr; gap: 6px; align-items: start; margin: 4px 0; font-size: 13px; }
     input.name, textarea { font: inherit; font-size: 13px; padding: 3px 5px; border: 1px solid #c8c4bb; border-radius: 3px; width: 100%; box-sizing: border-box; }
     textarea { min-height: 3.2em; resize: vertical; }
@@ -42,6 +50,7 @@ export class SnEditor extends LitElement {
     selected: { type: String },
     flagged: { attribute: false },
     notes: { attribute: false },
+    solution: { attribute: false },
   };
 
   declare model: EditModel | null;
@@ -52,6 +61,8 @@ export class SnEditor extends LitElement {
   declare flagged: readonly string[];
   /** Notes shown under rows, by row pointer (e.g. what a gear mesh's new sizing did). */
   declare notes: Readonly<Record<string, string>>;
+  /** The latest solution, for the section properties (J, Ip, Wt) beside each section's drawing. */
+  declare solution: Solution | null;
 
   constructor() {
     super();
@@ -61,6 +72,7 @@ export class SnEditor extends LitElement {
     this.selected = '';
     this.flagged = [];
     this.notes = {};
+    this.solution = null;
   }
 
   override render() {
@@ -89,15 +101,8 @@ export class SnEditor extends LitElement {
         </label>
       </details>
       ${this.section('Materials', 'materials', 'material', m.materials as Row[], materialColumns(), 'G directly, or E with Poisson’s ratio ν. Allowable shear drives the checks.')}
-      ${this.section('Sections', 'sections', 'section', m.sections as Row[], sectionColumns(), 'Layered sections list bonded layers inside out, one row each.', html`
-        ${m.sections.map((s, i) =>
-          s.shape === 'layered'
-            ? html`<div class="sub">
-                <h4>Layers of ${s.id}</h4>
-                ${this.table(`/sections/${i}/layers`, 'layer', (s.layers ?? []) as Row[], layerColumns(materials))}
-              </div>`
-            : nothing,
-        )}`)}
+      ${this.section('Sections', 'sections', 'section', m.sections as Row[], sectionColumns(), 'Each section’s card below holds the sizes of its shape, its drawing to scale and its properties. Layered sections list bonded layers inside out; open sections their walls.', html`
+        <div class="cards">${this.sectionCards(m.sections as unknown as SectionLike[], materials)}</div>`)}
       ${this.section('Shafts', 'shafts', 'shaft', m.shafts.map((s) => ({ id: s.id, name: s.name })), shaftColumns(), 'Each shaft runs along its own z from 0; segments follow one another.', html`
         ${m.shafts.map(
           (s, i) => html`<div class="sub">
@@ -111,6 +116,7 @@ export class SnEditor extends LitElement {
       ${this.section('Gear meshes', 'gearMeshes', 'gear mesh', (m.gearMeshes ?? []) as Row[], gearColumns(shafts), 'Pitch radius, or teeth with the mesh module. Blank stiffness = rigid. Opposite: external pair; same: internal, belt or chain.')}
       ${this.section('Couplings', 'couplings', 'coupling', (m.couplings ?? []) as Row[], couplingColumns(shafts), 'Blank stiffness = rigid. Misfit: angular mismatch at assembly.')}
       ${this.section('Discs', 'discs', 'disc', (m.discs ?? []) as Row[], discColumns(shafts), 'Mass inertia, drawn on the schematic (kept for modal analysis).')}
+      ${this.section('Stress raisers', 'stressRaisers', 'stress raiser', stressRaisersOf(m) as unknown as Row[], raiserColumns(shafts), 'A shoulder (at a diameter step: its factor from the fillet radius) or a factor you give (keyseat, cross hole). The local peak is checked beside the nominal stress.')}
       <details open>
         <summary>Limits</summary>
         <p class="hint">Optional: twist per length and total twist, checked on every shaft.</p>
@@ -154,6 +160,28 @@ export class SnEditor extends LitElement {
   /** Scrolls the selected row into view in whichever table holds it. */
   revealSelected(): void {
     for (const t of this.renderRoot.querySelectorAll('sn-table')) t.revealSelected();
+  }
+
+  private sectionCards(sections: SectionLike[], materials: string[]) {
+    const props = sectionPropertiesById(this.solution, sections);
+    return sections.map((s, i) => this.sectionCard(s, i, props.get(String(s.id ?? '')) ?? null, materials));
+  }
+
+  /** A section's card: the fields of its shape, its layers or walls, and its drawing with properties. */
+  private sectionCard(s: SectionLike, i: number, props: SectionProperties | null, materials: string[]) {
+    const cols = shapeColumns(String(s.shape ?? ''));
+    return html`<div class="card" data-section-card=${s.id ?? ''}>
+      <div class="fields">
+        <h4>${s.id} (${s.shape})</h4>
+        ${cols.length
+          ? html`<sn-table .rows=${[s as Row]} .columns=${cols} pointer=${`/sections/${i}`} single noun="section ${s.id ?? i + 1}"
+              .system=${this.system} .errors=${this.errors} .selected=${this.selected}></sn-table>`
+          : nothing}
+        ${s.shape === 'layered' ? html`<div class="sub"><h4>Layers of ${s.id}</h4>${this.table(`/sections/${i}/layers`, 'layer', (s.layers ?? []) as Row[], layerColumns(materials))}</div>` : nothing}
+        ${s.shape === 'thinOpen' ? html`<div class="sub"><h4>Walls of ${s.id}</h4>${this.table(`/sections/${i}/walls`, 'wall', (s.walls ?? []) as Row[], wallColumns())}</div>` : nothing}
+      </div>
+      <sn-section-view .section=${s} .properties=${props} .system=${this.system} ?solved=${this.solution !== null}></sn-section-view>
+    </div>`;
   }
 
   private section(title: string, list: string, noun: string, rows: Row[], columns: Column[], hint: string, extra: unknown = nothing) {
@@ -202,10 +230,59 @@ function materialColumns(): Column[] {
 function sectionColumns(): Column[] {
   return [
     { key: 'id', label: 'Id', type: 'text', width: 7 },
-    { key: 'shape', label: 'Shape', type: 'select', options: ['solid', 'hollow', 'layered'] },
-    { key: 'd', label: 'Outer d', type: 'quantity', kind: 'length', enabled: (r) => r.shape !== 'layered' },
-    { key: 'di', label: 'Bore di', type: 'quantity', kind: 'length', enabled: (r) => r.shape !== 'solid' },
-    { key: 'name', label: 'Name', type: 'text', width: 12 },
+    { key: 'shape', label: 'Shape', type: 'select', options: SECTION_SHAPES, hint: 'Its sizes are in the section’s card below' },
+    { key: 'name', label: 'Name', type: 'text', width: 14 },
+  ];
+}
+
+/** The fields of each section shape (the model format's "More section shapes"). */
+export function shapeColumns(shape: string): Column[] {
+  const q = (key: string, label: string, hint?: string): Column => ({ key, label, type: 'quantity', kind: 'length', width: 6, hint });
+  const am = (key: string, label: string, hint: string): Column => ({ key, label, type: 'quantity', kind: 'areaMoment', width: 8, hint });
+  const sm = (key: string, label: string, hint: string): Column => ({ key, label, type: 'quantity', kind: 'sectionModulus', width: 8, hint });
+  switch (shape) {
+    case 'solid':
+      return [q('d', 'Outer d')];
+    case 'hollow':
+      return [q('d', 'Outer d'), q('di', 'Bore di')];
+    case 'layered':
+      return [q('di', 'Bore di', 'Optional: a bore inside the first layer')];
+    case 'rectangle':
+      return [q('width', 'Width'), q('height', 'Height')];
+    case 'ellipse':
+      return [q('width', 'Width', 'Full axis'), q('height', 'Height', 'Full axis')];
+    case 'rectangularTube':
+      return [q('width', 'Width', 'Outside'), q('height', 'Height', 'Outside'), q('wall', 'Wall')];
+    case 'thinOpen':
+      return [am('polarMoment', 'Ip', 'Polar moment of area: needed only for rotary inertia')];
+    case 'custom':
+      return [
+        am('torsionConstant', 'J', 'Torsion constant: sets the stiffness'),
+        sm('torsionalModulus', 'Wt', 'Torsional modulus: τmax = T / Wt'),
+        am('polarMoment', 'Ip', 'Optional polar moment of area (rotary inertia)'),
+        sm('plasticTorqueModulus', 'Plastic', 'Optional: fully plastic torque = τ yield × this'),
+      ];
+    default:
+      return [];
+  }
+}
+
+function wallColumns(): Column[] {
+  return [
+    { key: 'length', label: 'Length', type: 'quantity', kind: 'length', width: 6, hint: 'Along the wall’s centre line' },
+    { key: 'thickness', label: 'Thickness', type: 'quantity', kind: 'length', width: 6 },
+  ];
+}
+
+function raiserColumns(shafts: string[]): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 5 },
+    { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
+    { key: 'at', label: 'At z', type: 'quantity', kind: 'length', width: 6 },
+    { key: 'kind', label: 'Kind', type: 'select', options: ['shoulder', 'factor'] },
+    { key: 'fillet', label: 'Fillet r', type: 'quantity', kind: 'length', enabled: (r) => r.kind === 'shoulder', width: 5, hint: 'Fillet radius of the shoulder' },
+    { key: 'factor', label: 'Kts', type: 'number', enabled: (r) => r.kind === 'factor', width: 4, hint: 'Stress concentration factor in torsion' },
+    { key: 'note', label: 'Note', type: 'text', width: 12 },
   ];
 }
 
@@ -227,6 +304,7 @@ function segmentColumns(sections: string[], materials: string[]): Column[] {
   return [
     { key: 'length', label: 'Length', type: 'quantity', kind: 'length' },
     { key: 'section', label: 'Section', type: 'select', options: sections },
+    { key: 'sectionEnd', label: 'End section', type: 'select', options: sections, blank: '(uniform)', hint: 'Give one to taper the segment linearly to it' },
     { key: 'material', label: 'Material', type: 'select', options: materials, blank: '(per layer)' },
   ];
 }

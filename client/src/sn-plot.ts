@@ -20,13 +20,17 @@ export function niceTicks(lo: number, hi: number, count = 5): number[] {
   return out;
 }
 
+/** A local value marked on a diagram beside its curve (a stress raiser's local peak), SI. */
+export interface PlotPeak { z: number; value: number; label: string }
+
 /** Detail of `sn-cursor`: the z (m) to read the diagrams at, or null to stop reading. */
 export interface CursorDetail { z: number | null }
 
 /**
  * A diagram of one quantity along a shaft's z: a line through the given points
  * (two points at one z draw a jump), shaded to zero, with the governing point
- * marked and labelled. Values come in SI and are shown in the system's units.
+ * marked and labelled, and any local peaks (a stress raiser's) marked by a
+ * diamond on a stem from the curve, labelled "local peak". Values come in SI and are shown in the system's units.
  * A cursor (a vertical line with the value) follows the pointer, or ← → Home End
  * when the diagram has the focus; the parent reads all diagrams of a shaft at it.
  *
@@ -54,6 +58,7 @@ export class SnPlot extends LitElement {
     markIndex: { type: Number },
     breaks: { attribute: false },
     cursor: { attribute: false },
+    peaks: { attribute: false },
   };
 
   declare z: readonly number[];
@@ -69,6 +74,8 @@ export class SnPlot extends LitElement {
   declare breaks: readonly number[];
   /** z (m) of the reading cursor, or null. */
   declare cursor: number | null;
+  /** Local peaks to mark beside the curve (they widen the value axis to fit). */
+  declare peaks: readonly PlotPeak[];
 
   constructor() {
     super();
@@ -81,6 +88,7 @@ export class SnPlot extends LitElement {
     this.markIndex = -1;
     this.breaks = [];
     this.cursor = null;
+    this.peaks = [];
   }
 
   override render() {
@@ -89,8 +97,9 @@ export class SnPlot extends LitElement {
     const ys = this.values.map((v) => toDisplay(v, this.kind, this.system));
     const x0 = Math.min(...xs);
     const x1 = Math.max(...xs, x0 + 1e-12);
-    let y0 = Math.min(0, ...ys);
-    let y1 = Math.max(0, ...ys);
+    const py = this.peaks.map((p) => toDisplay(p.value, this.kind, this.system));
+    let y0 = Math.min(0, ...ys, ...py);
+    let y1 = Math.max(0, ...ys, ...py);
     if (y1 - y0 < 1e-12 * Math.max(1, Math.abs(y1))) {
       y0 -= 1;
       y1 += 1;
@@ -127,6 +136,22 @@ export class SnPlot extends LitElement {
             </text>
           </g>`
         : nothing;
+    const peaks = this.peaks.map((p, k) => {
+      const x = X(toDisplay(p.z, 'length', this.system));
+      const y = Y(py[k]);
+      const onCurve = valueAt(this.z, this.values, p.z);
+      const yc = onCurve === null ? Y(0) : Y(toDisplay(onCurve, this.kind, this.system));
+      // The label goes away from the governing point's own label where there is room (about 160 px of text).
+      const gx = mi >= 0 && mi < xs.length ? X(xs[mi]) : null;
+      const roomLeft = x - ML >= 160;
+      const roomRight = PW - MR - x >= 160;
+      const right = gx === null ? x < PW * 0.6 : gx > x ? !roomLeft : roomRight;
+      return svg`<g class="peak" data-z=${p.z} data-value=${p.value}>
+        <line x1=${x} x2=${x} y1=${yc} y2=${y} stroke="#8c1d18" stroke-width="1.2" stroke-dasharray="2 2"/>
+        <path d="M${x} ${y - 6} l5 6 l-5 6 l-5 -6 Z" fill="#fff" stroke="#8c1d18" stroke-width="1.6"/>
+        <text class="mark" x=${right ? x + 8 : x - 8} y=${y < MT + 14 ? y + 14 : y - 4} text-anchor=${right ? 'start' : 'end'} fill="#8c1d18">${p.label}: ${formatQuantity(p.value, this.kind, this.system, 3)}</text>
+      </g>`;
+    });
     return html`<svg viewBox="0 0 ${PW} ${PH}" role="img" tabindex="0"
       aria-label=${`${this.label}; pointer or arrow keys read the value at any z`}
       @pointermove=${this.onPointer} @pointerleave=${this.onLeave} @keydown=${this.onKey} @blur=${this.onLeave}>
@@ -139,7 +164,7 @@ export class SnPlot extends LitElement {
       <polygon points=${area} fill=${this.color} fill-opacity="0.13" />
       <line x1=${ML} x2=${PW - MR} y1=${Y(0)} y2=${Y(0)} stroke="#6b665e" />
       <polyline points=${pts} fill="none" stroke=${this.color} stroke-width="1.8" stroke-linejoin="round" />
-      ${mark} ${cursor}
+      ${mark} ${peaks} ${cursor}
     </svg>`;
   }
 

@@ -1,9 +1,11 @@
 import { LitElement, css, html, nothing } from 'lit';
-import type { CheckResult, Solution } from '../../shared-types/solution.js';
+import type { Solution } from '../../shared-types/solution.js';
 import type { EditModel } from './model-edits.js';
 import type { SelectDetail } from './sn-table.js';
 import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, formatValue, prettyUnit } from './units.js';
 import type { CursorDetail } from './sn-plot.js';
+import type { SectionLike } from './section-geometry.js';
+import { type AnyCheck, checkLabel, raisersOf, shaftPeaks } from './raiser-results.js';
 import { valueAt } from './diagram-readout.js';
 import './sn-plot.js';
 import './sn-segment-table.js';
@@ -12,7 +14,7 @@ import './sn-station-table.js';
 /** Where the results stand against the model on screen. */
 export type ResultState = 'none' | 'fresh' | 'stale' | 'solving' | 'invalid' | 'failed';
 
-const CHECK_KIND: Record<CheckResult['kind'], { label: string; kind: FieldKind }> = {
+const CHECK_KIND: Record<AnyCheck['kind'], { label: string; kind: FieldKind }> = {
   shear: { label: 'Shear stress', kind: 'stress' },
   twistRate: { label: 'Twist rate', kind: 'twistRate' },
   totalTwist: { label: 'Total twist', kind: 'angle' },
@@ -121,12 +123,12 @@ export class SnResults extends LitElement {
     return html`${this.banner()}
       ${s
         ? html`<div class="body ${this.state === 'fresh' ? '' : 'dim'}" data-state=${this.state}>
-            ${s.warnings.map((w) => html`<div class="warn">⚠ ${w.message}</div>`)} ${this.reactions(s)} ${this.connections(s)}
+            ${s.warnings.map((w) => html`<div class="warn" data-warning=${w.code}>⚠ ${w.message}</div>`)} ${this.reactions(s)} ${this.connections(s)}
             <p class="muted" data-residual=${s.equilibrium.maxResidual}>
               Equilibrium: largest residual of Σ torques on a shaft = ${formatValue(s.equilibrium.maxResidual, 'torque', this.system, 3)}
               ${prettyUnit(displayUnit('torque', this.system))}.
             </p>
-            ${this.checks(s)} ${s.shafts.map((sh) => this.shaftPlots(sh))}
+            ${this.checks(s)} ${this.raisers(s)} ${s.shafts.map((sh) => this.shaftPlots(sh))}
           </div>`
         : nothing}`;
   }
@@ -217,7 +219,7 @@ export class SnResults extends LitElement {
   }
 
   private checks(s: Solution) {
-    const sorted = [...s.checks].sort((a, b) => b.utilisation - a.utilisation);
+    const sorted = [...(s.checks as AnyCheck[])].sort((a, b) => b.utilisation - a.utilisation);
     // The worst ones first; the rest on request (a long shaft has a check per segment and layer).
     const rows = this.allChecks ? sorted : sorted.slice(0, CHECKS_SHOWN);
     if (rows.length === 0) return html`<h3>Checks</h3><p class="muted">No checks: give materials an allowable shear stress, or set limits.</p>`;
@@ -226,13 +228,13 @@ export class SnResults extends LitElement {
         <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value of allowed</th><th>Utilisation</th><th>Status</th></tr></thead>
         <tbody>
           ${rows.map((c) => {
-            const k = CHECK_KIND[c.kind];
+            const k = CHECK_KIND[c.kind] ?? { label: c.kind, kind: 'stress' };
             const u = c.utilisation;
             const over = !c.pass;
             return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'}>
               <td>${c.shaft}</td><td>${c.segment === undefined ? '—' : c.segment + 1}</td>
               <td>${c.layer === undefined ? '—' : `${c.layer + 1}${c.material ? ` (${c.material})` : ''}`}</td>
-              <td>${k.label}</td>
+              <td>${checkLabel(c, k.label)}</td>
               <td class="num value-of">${formatValue(c.value, k.kind, this.system, 3)} of ${formatValue(c.limit, k.kind, this.system, 3)} ${this.unit(k.kind)}</td>
               <td class="num"><span class="barbox" aria-hidden="true"><span class="bar ${over ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
               <td class="status ${over ? 'fail' : 'ok'}">${over ? html`<span aria-hidden="true">⚠ </span>EXCEEDS by ${formatNumber((u - 1) * 100, 3)} %` : 'ok'}</td>
@@ -243,6 +245,31 @@ export class SnResults extends LitElement {
       ${sorted.length > rows.length
         ? html`<button class="more" @click=${() => (this.allChecks = true)}>Show all ${sorted.length} checks</button>`
         : nothing}`;
+  }
+
+  /** The stress raisers: factor, nominal and local peak stress, and the check against the allowable. */
+  private raisers(s: Solution) {
+    const rows = raisersOf(s);
+    if (rows.length === 0) return nothing;
+    const st = this.unit('stress');
+    return html`<h3>Stress raisers: local peaks</h3>
+      <table class="raisers">
+        <thead><tr><th>Raiser</th><th>Shaft</th><th>At z [${this.unit('length')}]</th><th>Kind</th><th title="Stress concentration factor in torsion">Kts</th>
+          <th>Nominal τ [${st}]</th><th>Local peak of allowed [${st}]</th><th>Utilisation</th></tr></thead>
+        <tbody>
+          ${rows.map((r) => {
+            const over = r.utilisation !== null && r.utilisation > 1;
+            return html`<tr data-raiser=${r.id} class=${over ? 'over' : ''}>
+              <td>${r.id}</td><td>${r.shaft}</td><td class="num">${formatValue(r.z, 'length', this.system, 4)}</td>
+              <td>${r.kind}${r.note ? html` <span class="muted">(${r.note})</span>` : nothing}</td>
+              <td class="num" data-factor=${r.factor}>${formatNumber(r.factor, 3)}</td>
+              <td class="num">${formatValue(Math.abs(r.nominalShear), 'stress', this.system, 4)}</td>
+              <td class="num" data-local=${r.localPeak}>${formatValue(r.localPeak, 'stress', this.system, 4)}${r.allowableShear === null ? '' : ` of ${formatValue(r.allowableShear, 'stress', this.system, 3)}`}</td>
+              <td class="num ${over ? 'fail' : ''}">${r.utilisation === null ? '—' : html`${over ? html`<span aria-hidden="true">⚠ </span>` : nothing}${formatNumber(r.utilisation * 100, 3)} %`}</td>
+            </tr>`;
+          })}
+        </tbody>
+      </table>`;
   }
 
   private shaftPlots(sh: Solution['shafts'][number]) {
@@ -257,12 +284,13 @@ export class SnResults extends LitElement {
       <h4>${sh.name ? `${sh.name} (${sh.id})` : sh.id}
         <span class="muted">— length ${formatValue(sh.length, 'length', this.system)} ${this.unit('length')}, largest relative twist
         ${formatValue(sh.totalTwist, 'angle', this.system, 4)} ${this.unit('angle')}</span></h4>
-      <sn-segment-table .shaft=${sh} .system=${this.system}></sn-segment-table>
+      <sn-segment-table .shaft=${sh} .system=${this.system} .sections=${(this.model?.sections ?? []) as unknown as SectionLike[]}></sn-segment-table>
       ${this.readout(sh, cz)}
       <div class="plots" @sn-cursor=${onCursor}>
         <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label="Internal torque T" color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks} .cursor=${cz}></sn-plot>
         <sn-plot .z=${d.z} .values=${d.rotation} kind="angle" .system=${this.system} label="Rotation φ" color="#2f7d5b" .markIndex=${peakIndex(d.rotation)} .breaks=${breaks} .cursor=${cz}></sn-plot>
-        <sn-plot .z=${d.z} .values=${d.shear} kind="stress" .system=${this.system} label="Peak shear τ" color="#b3261e" .markIndex=${peakIndex(d.shear)} .breaks=${breaks} .cursor=${cz}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.shear} kind="stress" .system=${this.system} label="Peak shear τ" color="#b3261e" .markIndex=${peakIndex(d.shear)} .breaks=${breaks} .cursor=${cz}
+          .peaks=${shaftPeaks(this.solution, sh.id)}></sn-plot>
       </div>
       <sn-station-table .shaft=${sh} .system=${this.system}></sn-station-table>
     </div>`;

@@ -1,5 +1,6 @@
 import { LitElement, css, html, nothing, svg, type SVGTemplateResult } from 'lit';
-import type { EditModel } from './model-edits.js';
+import { type EditModel, stressRaisersOf } from './model-edits.js';
+import { type ProfileSegment, type SectionLike, outerAt, shaftProfile } from './section-geometry.js';
 import { type UnitSystem, formatQuantity, storedToSI } from './units.js';
 import type { SelectDetail } from './sn-table.js';
 
@@ -13,14 +14,15 @@ interface ShaftGeom {
   id: string;
   name: string;
   length: number; // m
-  segs: Array<{ z0: number; z1: number; outer: number; inner: number; layers: number[]; shape: string; index: number }>;
+  segs: ProfileSegment[];
   y: number; // px, axis
 }
 
 /**
- * A to-scale side view of every shaft: lengths and diameters to one scale
- * (diameters exaggerated, and said so, when the shafts are very slender), with
- * supports, point and distributed torques, discs, gears and couplings, and the
+ * A to-scale side view of every shaft: lengths and diameters (a section's
+ * height) to one scale (diameters exaggerated, and said so, when the shafts are
+ * very slender), tapered segments drawn tapered, with supports, point and
+ * distributed torques, discs, gears, couplings and stress raisers, and the
  * meshes and couplings drawn as links between shafts. Clicking an item selects
  * it; the selected item comes down as a pointer and is highlighted.
  *
@@ -67,7 +69,7 @@ export class SnSchematic extends LitElement {
     const geoms = this.geometry(m);
     const maxLen = Math.max(1e-9, ...geoms.map((g) => g.length));
     const sx = (W - LEFT - RIGHT) / maxLen; // px per m of length
-    const maxD = Math.max(1e-9, ...geoms.flatMap((g) => g.segs.map((s) => s.outer)));
+    const maxD = Math.max(1e-9, ...geoms.flatMap((g) => g.segs.map((s) => Math.max(s.outer0, s.outer1))));
     let sd = sx; // px per m of diameter: the same scale as lengths when it fits
     let scaleNote = 'Lengths and diameters to one scale.';
     if (maxD * sd > 70) {
@@ -90,10 +92,7 @@ export class SnSchematic extends LitElement {
       const z = storedToSI(q, 'length');
       return g && z !== null ? { g, x: X(z), z } : null;
     };
-    const halfD = (g: ShaftGeom, z: number) => {
-      const s = g.segs.find((s) => z >= s.z0 - 1e-12 && z <= s.z1 + 1e-12) ?? g.segs[g.segs.length - 1];
-      return s ? (s.outer * sd) / 2 : 6;
-    };
+    const halfD = (g: ShaftGeom, z: number) => (g.segs.length ? (outerAt(g.segs, z) * sd) / 2 : 6);
     const isSel = (p: string) => this.selected !== '' && (this.selected === p || this.selected.startsWith(p + '/'));
     const parts: SVGTemplateResult[] = [];
     const gears: SVGTemplateResult[] = []; // drawn over the shafts
@@ -152,11 +151,18 @@ export class SnSchematic extends LitElement {
         const w = Math.max(1, (s.z1 - s.z0) * sx);
         const sel = this.selected === p;
         const fills = ['#b9c3c9', '#d9b77e', '#9fb8a6', '#c7a3a3'];
-        const rings = s.shape === 'layered' && s.layers.length ? [...s.layers].reverse() : [s.outer];
-        parts.push(svg`<g class="item" data-pointer=${p} @click=${(e: Event) => { e.stopPropagation(); this.pick(p); }}>
-          ${rings.map((d, k) => svg`<rect x=${x0} y=${g.y - (d * sd) / 2} width=${w} height=${d * sd}
-              fill=${fills[(rings.length - 1 - k) % fills.length]} stroke=${flagged ? '#b3261e' : '#4a5258'} stroke-width=${k === 0 ? 1.2 : 0.6} class=${sel && k === 0 ? 'sel' : ''}/>`)}
-          ${s.inner > 0 ? svg`<rect x=${x0} y=${g.y - (s.inner * sd) / 2} width=${w} height=${s.inner * sd} fill="#f4f2ee" stroke="#4a5258" stroke-width="0.6" stroke-dasharray="3 2"/>` : nothing}
+        const stroke = flagged ? '#b3261e' : '#4a5258';
+        // A band from height h0 at x0 to h1 at x0 + w, centred on the axis (a rectangle unless tapered).
+        const band = (h0: number, h1: number) =>
+          `M${x0} ${g.y - (h0 * sd) / 2} L${x0 + w} ${g.y - (h1 * sd) / 2} L${x0 + w} ${g.y + (h1 * sd) / 2} L${x0} ${g.y + (h0 * sd) / 2} Z`;
+        const rings = s.shape === 'layered' && s.rings.length ? [...s.rings].sort((a, b) => b - a) : [s.outer0];
+        parts.push(svg`<g class="item" data-pointer=${p} data-tapered=${s.tapered ? 'true' : 'false'} @click=${(e: Event) => { e.stopPropagation(); this.pick(p); }}>
+          ${s.tapered
+            ? svg`<path d=${band(s.outer0, s.outer1)} fill=${fills[0]} stroke=${stroke} stroke-width="1.2" class=${sel ? 'sel' : ''}/>`
+            : rings.map((d, k) => svg`<path d=${band(d, d)}
+              fill=${fills[(rings.length - 1 - k) % fills.length]} stroke=${stroke} stroke-width=${k === 0 ? 1.2 : 0.6} class=${sel && k === 0 ? 'sel' : ''}/>`)}
+          ${s.inner0 > 0 || s.inner1 > 0 ? svg`<path d=${band(s.inner0, s.inner1)} fill="#f4f2ee" stroke="#4a5258" stroke-width="0.6" stroke-dasharray="3 2"/>` : nothing}
+          ${s.tapered && w > 40 ? svg`<text class="note" x=${x0 + w / 2} y=${g.y + 4} text-anchor="middle">taper</text>` : nothing}
         </g>`);
       }
     }
@@ -237,6 +243,20 @@ export class SnSchematic extends LitElement {
       </g>`);
     });
 
+    // Stress raisers: a notch mark (a triangle pointing at the surface) under the shaft, with its id and what it is.
+    stressRaisersOf(m).forEach((r, i) => {
+      const p = `/stressRaisers/${i}`;
+      const a = at(r.shaft, r.at);
+      if (!a) return;
+      const yb = a.g.y + halfD(a.g, a.z);
+      const what = r.kind === 'shoulder' ? `fillet ${r.fillet === undefined ? '?' : formatQuantity(storedToSI(r.fillet, 'length'), 'length', this.system, 3)}` : `Kts ${r.factor ?? '?'}`;
+      parts.push(svg`<g class="item raiser" data-pointer=${p} data-raiser=${r.id} @click=${() => this.pick(p)}>
+        <path d="M${a.x} ${yb + 1} l-6 10 l12 0 Z" fill="#fff" stroke="#8c1d18" stroke-width="1.6" class=${isSel(p) ? 'sel' : ''}/>
+        <line x1=${a.x} x2=${a.x} y1=${a.g.y - halfD(a.g, a.z)} y2=${yb} stroke="#8c1d18" stroke-width="1" stroke-dasharray="1 2"/>
+        <text class="label ${isSel(p) ? 'seltext' : ''}" x=${a.x + 8} y=${yb + 20}>${r.id} ${what}</text>
+      </g>`);
+    });
+
     const bar = scaleBar(maxLen);
     return html`<svg viewBox="0 0 ${W} ${height}" role="img" aria-label="Schematic of the shafts, to scale">
       <defs>
@@ -258,22 +278,10 @@ export class SnSchematic extends LitElement {
   }
 
   private geometry(m: EditModel): ShaftGeom[] {
-    const secs = new Map(m.sections.map((s) => [s.id, s]));
+    const sections = m.sections as unknown as SectionLike[];
     return m.shafts.map((sh, index) => {
-      let z = 0;
-      const segs = sh.segments.map((seg, i) => {
-        const len = Math.max(0, storedToSI(seg.length, 'length') ?? 0);
-        const sec = secs.get(seg.section);
-        // A negative or unreadable size (the server names it) is drawn as nothing, never as a negative rectangle.
-        const size = (q: unknown) => Math.max(0, storedToSI(q, 'length') ?? 0);
-        const layers = (sec?.layers ?? []).map((l) => size(l.d));
-        const outer = sec?.shape === 'layered' ? Math.max(0, ...layers) : size(sec?.d);
-        const inner = sec?.shape === 'solid' ? 0 : Math.min(size(sec?.di), outer);
-        const out = { z0: z, z1: z + len, outer, inner, layers, shape: sec?.shape ?? 'solid', index: i };
-        z += len;
-        return out;
-      });
-      return { index, id: sh.id, name: sh.name ?? '', length: z, segs, y: 0 };
+      const segs = shaftProfile(sh.segments as unknown as Array<Record<string, unknown>>, sections);
+      return { index, id: sh.id, name: sh.name ?? '', length: segs.length ? segs[segs.length - 1].z1 : 0, segs, y: 0 };
     });
   }
 

@@ -1,6 +1,22 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
-import { type FieldKind, type UnitSystem, displayUnit, inputText, parseInput, parsePlainNumber, prettyUnit } from './units.js';
+import { type FieldKind, type ParsedInput, type UnitSystem, displayUnit, inputText, parseInput, parsePlainNumber, prettyUnit } from './units.js';
+import { type SectionKind, isSectionKind, parseSectionInput, sectionInputText, sectionUnit } from './section-geometry.js';
+
+/** What a quantity column holds: a kind of the presentation module, or a section property (m⁴, m³). */
+export type ColumnKind = FieldKind | SectionKind;
+
+function unitOf(kind: ColumnKind, system: UnitSystem): string {
+  return isSectionKind(kind) ? sectionUnit(kind, system) : displayUnit(kind, system);
+}
+
+function textOf(value: unknown, kind: ColumnKind, system: UnitSystem): string {
+  return isSectionKind(kind) ? sectionInputText(value, kind, system) : inputText(value, kind, system);
+}
+
+function parseOf(text: string, kind: ColumnKind, system: UnitSystem): ParsedInput {
+  return isSectionKind(kind) ? parseSectionInput(text, kind, system) : parseInput(text, kind, system);
+}
 
 /** One column of an editable table. */
 export interface Column {
@@ -9,7 +25,7 @@ export interface Column {
   readonly label: string;
   readonly type: 'text' | 'quantity' | 'number' | 'integer' | 'select';
   /** For quantities: what the field holds (sets the unit shown and how a plain number is read). */
-  readonly kind?: FieldKind;
+  readonly kind?: ColumnKind;
   /** For selects: the values offered. */
   readonly options?: readonly string[];
   /** For selects of an optional field: the label of "none". */
@@ -186,7 +202,7 @@ export class SnTable extends LitElement {
 
   private header(c: Column) {
     if (c.type !== 'quantity' || !c.kind) return c.label;
-    return html`${c.label} <span style="font-weight:400">[${prettyUnit(displayUnit(c.kind, this.system))}]</span>`;
+    return html`${c.label} <span style="font-weight:400">[${prettyUnit(unitOf(c.kind, this.system))}]</span>`;
   }
 
   private rowPointer(i: number): string {
@@ -239,7 +255,7 @@ export class SnTable extends LitElement {
     }
     let text: string;
     if (this.typing.has(ptr)) text = this.typing.get(ptr) as string;
-    else if (c.type === 'quantity' && c.kind) text = inputText(value, c.kind, this.system);
+    else if (c.type === 'quantity' && c.kind) text = textOf(value, c.kind, this.system);
     else text = value === undefined || value === null ? '' : String(value);
     const title = c.type === 'quantity' && typeof value === 'string' ? `stored as "${value}"` : '';
     return html`<input
@@ -263,7 +279,7 @@ export class SnTable extends LitElement {
   }
 
   private parse(text: string, c: Column): unknown {
-    if (c.type === 'quantity' && c.kind) return parseInput(text, c.kind, this.system).value;
+    if (c.type === 'quantity' && c.kind) return parseOf(text, c.kind, this.system).value;
     if (c.type === 'number') return parsePlainNumber(text, false).value;
     if (c.type === 'integer') return parsePlainNumber(text, true).value;
     return text.trim() === '' && c.key !== 'id' ? undefined : text.trim();
@@ -283,7 +299,7 @@ export class SnTable extends LitElement {
   private draft(input: HTMLInputElement, c: Column, ptr: string): void {
     this.typing.set(ptr, input.value);
     let parsed: { value: unknown; problem?: string } | null = null;
-    if (c.type === 'quantity' && c.kind) parsed = parseInput(input.value, c.kind, this.system);
+    if (c.type === 'quantity' && c.kind) parsed = parseOf(input.value, c.kind, this.system);
     else if (c.type === 'number' || c.type === 'integer') parsed = parsePlainNumber(input.value, c.type === 'integer');
     if (!parsed || parsed.problem || parsed.value === undefined) return;
     this.emit<DraftDetail>('sn-draft', { pointer: ptr, value: parsed.value });
