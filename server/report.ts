@@ -15,10 +15,10 @@ import {
   type UnitSystem,
   formatNumber,
   readablePointer,
+  stationShear,
   toDisplay,
 } from '../shared-types/present.js';
 import type { Solved } from './engine/index.js';
-import { stationShearFactor } from './engine/taper-element.js';
 
 function table(head: string[], rows: string[][]): string {
   const widths = head.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
@@ -228,38 +228,26 @@ export function formatIssue(issue: ModelIssue, model?: unknown): string {
 /**
  * The station columns of a finished solve, read from the engine's columns
  * without an object per station. Valid only inside `withSolved`'s callback,
- * like the columns themselves. The shear at a station is |T| times the
- * section's shear factor (largest G·r_outer / ΣGJ over its layers; of a taper,
- * r(z)/J(z) at the station) of the element on each side, the larger of the two.
+ * like the columns themselves. The shear at a station is read from the shaft's
+ * diagram by the presentation module's rule (`stationShear`), as for a solution object.
  */
 export function solvedStationColumns(sv: Solved): StationColumns {
   const { model, layout, rec } = sv;
-  const { z, shaftStart, elemSegment } = layout;
-  const { phi, TL, TR } = rec;
+  const { z, shaftStart } = layout;
+  const { phi, TL, TR, diagStart, diagCount, dZ, dTau } = rec;
   const n = layout.dofCount;
   const torqueLeft = new Float64Array(n);
   const torqueRight = new Float64Array(n);
   const shear = new Float64Array(n);
   for (let s = 0; s < model.shafts.length; s++) {
-    const segments = model.shafts[s].segments;
     const first = shaftStart[s];
     const last = shaftStart[s + 1] - 1;
-    let leftShear = 0;
     for (let d = first; d <= last; d++) {
-      let tl = Number.NaN;
-      let tr = Number.NaN;
-      let rightShear = 0;
-      if (d > first) tl = TR[d - 1 - s];
-      if (d < last) {
-        const e = d - s; // elements are numbered like stations, one fewer per shaft
-        tr = TL[e];
-        rightShear = Math.abs(tr) * stationShearFactor(segments[elemSegment[e]], z[d]);
-      }
-      torqueLeft[d] = tl;
-      torqueRight[d] = tr;
-      shear[d] = Math.max(leftShear, rightShear);
-      leftShear = d < last ? Math.abs(TR[d - s]) * stationShearFactor(segments[elemSegment[d - s]], z[d + 1]) : 0;
+      // Elements are numbered like stations, one fewer per shaft.
+      torqueLeft[d] = d > first ? TR[d - 1 - s] : Number.NaN;
+      torqueRight[d] = d < last ? TL[d - s] : Number.NaN;
     }
+    stationShear(z, first, last + 1, dZ, dTau, diagStart[s], diagStart[s] + diagCount[s], shear);
   }
   return {
     shafts: model.shafts.map((sh) => sh.id),

@@ -199,8 +199,8 @@ export function formatQuantity(si: number | null | undefined, kind: FieldKind, s
 
 /** What the results are and are not: every report, printout and results view carries these. */
 export const CAUTIONS: readonly string[] = [
-  'Linear-elastic Saint-Venant torsion of circular sections: no yielding, no warping, no buckling, no dynamics.',
-  'No stress concentration (shoulders, keyways, splines, grooves, press fits) and no fatigue unless you modelled them, e.g. through a reduced allowable stress: the stresses are nominal.',
+  'Linear-elastic Saint-Venant torsion with free warping: no yielding, no buckling, no dynamics. Restrained warping of non-circular (above all open) sections is not modelled; tubes and open sections use thin-wall theory.',
+  'Stress concentration only where you modelled it (stress raisers: shoulder fillets by a published fit, other features by your factor) and no fatigue: every other stress shown is nominal.',
   'Results must be checked by a qualified engineer against the codes and standards that apply where the machine is built and used.',
 ];
 
@@ -385,10 +385,35 @@ export function stationCsv(solution: Solution, system: UnitSystem): string {
 }
 
 /**
- * The station columns of a solution object. The shear at a station comes from
- * the segment on each side: every layer's τ is proportional to T in a uniform
- * segment, so its peak |τ| over the layers is |T| · (largest layer maxShear) /
- * maxAbsTorque of that segment.
+ * The shear column of stations `from` … `to − 1` (z sorted) from their shaft's diagram
+ * points `dFrom` … `dTo − 1` (z sorted, a point at every station, two where T or τ jumps):
+ * the largest |τ| among the points at each station's z, written into `shear`. One rule for
+ * the solution object and the engine's columns, so both CSVs agree to the digit.
+ */
+export function stationShear(
+  z: ArrayLike<number>,
+  from: number,
+  to: number,
+  dz: ArrayLike<number>,
+  dtau: ArrayLike<number>,
+  dFrom: number,
+  dTo: number,
+  shear: Float64Array,
+): void {
+  let p = dFrom;
+  for (let d = from; d < to; d++) {
+    while (p < dTo && dz[p] < z[d]) p++;
+    let peak = 0;
+    for (let q = p; q < dTo && dz[q] === z[d]; q++) peak = Math.max(peak, Math.abs(dtau[q]));
+    shear[d] = peak;
+  }
+}
+
+/**
+ * The station columns of a solution object. The shear at a station is read from
+ * the shaft's diagram, which has a point at every station (two where T or τ
+ * jumps): the largest |τ| among the points at the station's z, so it is the
+ * engine's own value on both sides, along tapers too.
  */
 export function stationColumns(solution: Solution): StationColumns {
   let n = 0;
@@ -402,31 +427,14 @@ export function stationColumns(solution: Solution): StationColumns {
   let d = 0;
   solution.shafts.forEach((sh, s) => {
     start[s] = d;
-    const factors = sh.segments.map((seg) => {
-      let peak = 0;
-      for (const l of seg.layers) peak = Math.max(peak, l.maxShear);
-      return seg.maxAbsTorque > 0 ? peak / seg.maxAbsTorque : 0;
-    });
-    const stations = sh.stations;
-    let k = 0; // segment of the element that starts at the current station
-    let leftFactor = 0;
-    for (let i = 0; i < stations.length; i++, d++) {
-      const st = stations[i];
+    for (const st of sh.stations) {
       z[d] = st.z;
       rotation[d] = st.rotation;
       torqueLeft[d] = st.torqueLeft ?? Number.NaN;
       torqueRight[d] = st.torqueRight ?? Number.NaN;
-      let rightFactor = 0;
-      if (i + 1 < stations.length) {
-        const mid = 0.5 * (st.z + stations[i + 1].z);
-        while (k + 1 < sh.segments.length && sh.segments[k].to <= mid) k++;
-        rightFactor = factors[k] ?? 0;
-      }
-      const left = st.torqueLeft === null ? 0 : Math.abs(st.torqueLeft) * leftFactor;
-      const right = st.torqueRight === null ? 0 : Math.abs(st.torqueRight) * rightFactor;
-      shear[d] = Math.max(left, right);
-      leftFactor = rightFactor;
+      d++;
     }
+    stationShear(z, start[s], d, sh.diagram.z, sh.diagram.shear, 0, sh.diagram.z.length, shear);
   });
   start[solution.shafts.length] = d;
   return { shafts: solution.shafts.map((sh) => sh.id), start, z, rotation, torqueLeft, torqueRight, shear };

@@ -342,6 +342,11 @@ export type ShaftColumns = Pick<
   | 'dTau'
 >;
 
+/** True when τ may jump between segments a and b of one shaft (T continuous): a different section factor, or a taper. */
+function sectionChanges(segments: readonly ResolvedSegment[], a: number, b: number): boolean {
+  return a !== b && (segments[a].shearFactor !== segments[b].shearFactor || segments[a].taper !== undefined || segments[b].taper !== undefined);
+}
+
 /** Per segment, per layer and per shaft extremes, and the diagrams, of every shaft. */
 export function recoverShafts(
   model: ResolvedModel,
@@ -377,7 +382,8 @@ export function recoverShafts(
     for (let e = e0; e < e0 + elemN; e++) {
       // A taper's τ curves even under a constant torque: its elements get interior points too.
       if (elemT1[e] !== 0 || elemT2[e] !== 0 || segs[elemSegment[e]].taper) loaded++;
-      jumped += jumps[shaftStart[s] + (e - e0)];
+      // τ jumps where the section changes even where T does not: a segment boundary may take a second point too.
+      jumped += jumps[shaftStart[s] + (e - e0)] | (e > e0 && sectionChanges(segs, elemSegment[e - 1], elemSegment[e]) ? 1 : 0);
     }
     interior[s] = Math.min(diagramPoints, Math.floor(DIAGRAM_INTERIOR_BUDGET / Math.max(1, loaded)));
     // First point, a second point at each jump, interior points, and the right end of each element.
@@ -417,6 +423,8 @@ export function recoverShafts(
     for (let k = 0; k < shaft.segments.length; k++) segAt[g0 + k] = shaft.segments[k].z0;
     let phiMin = Infinity;
     let phiMax = -Infinity;
+    /** True when element e is the first of a segment after another segment of this shaft. */
+    const startsSegment = (e: number): boolean => e > e0 && sectionChanges(shaft.segments, elemSegment[e - 1], elemSegment[e]);
     /** An element of a tapered segment: exact T, φ, τ inside; the peaks of τ and twist rate wherever they lie. */
     const taperElement = (sg: ResolvedSegment, taper: ResolvedTaper, g: number, d: number, e: number, next: number): number => {
       n = next;
@@ -456,7 +464,7 @@ export function recoverShafts(
         }
       }
       const tauA = (T1 * input.dA) / 2 / polarMomentAt(input, 0);
-      if (n === diagStart[s] || (jumps[d] && (dT[n - 1] !== T1 || dTau[n - 1] !== tauA))) point(z[d], T1, phi[d], tauA);
+      if (n === diagStart[s] || ((jumps[d] || startsSegment(e)) && (dT[n - 1] !== T1 || dTau[n - 1] !== tauA))) point(z[d], T1, phi[d], tauA);
       for (let m = 1; m <= nInterior; m++) {
         const x = (h * m) / (nInterior + 1);
         const T = elementTorque(T1, t1, dt, h, x);
@@ -495,8 +503,9 @@ export function recoverShafts(
       if (phi[d] > phiMax) phiMax = phi[d];
       if (phi[d + 1] < phiMin) phiMin = phi[d + 1];
       if (phi[d + 1] > phiMax) phiMax = phi[d + 1];
-      // A second point at the same z draws a jump; elsewhere T is continuous (up to round-off).
-      if (n === diagStart[s] || (jumps[d] && dT[n - 1] !== T1)) point(z[d], T1, phi[d], c * T1);
+      // A second point at the same z draws a jump (of T where a torque acts, of τ where the section
+      // changes); elsewhere T and τ are continuous (up to round-off).
+      if (n === diagStart[s] || ((jumps[d] || startsSegment(e)) && (dT[n - 1] !== T1 || dTau[n - 1] !== c * T1))) point(z[d], T1, phi[d], c * T1);
       if (t1 !== 0 || t2 !== 0) {
         const dt = t2 - t1;
         // Interior extreme of T where t(s) = 0.

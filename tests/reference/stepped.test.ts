@@ -4,6 +4,7 @@
  * of the two sides.
  */
 import { describe, expect, it } from 'vitest';
+import { stationColumns } from '../../shared-types/present.js';
 import {
   IN,
   LBF_IN,
@@ -213,5 +214,41 @@ describe('three-segment stepped shaft in US units, torque inside the middle segm
     expectClose(segment(sol, 's', 1).maxAbsTorque, Math.max(TL, TR));
     expectClose(layer(segment(sol, 's', 1), 'alu').maxShear, (Math.max(TL, TR) * IN) / jHollow(2 * IN, 1.25 * IN));
     expectClose(layer(segment(sol, 's', 2), 'bronze').maxShear, (TR * 0.5 * IN) / jSolid(1 * IN));
+  });
+});
+
+describe('the shear diagram and the station table jump where the diameter steps', () => {
+  // A cantilever of d = 40 mm then d = 30 mm (steel, G = 80 GPa), 0.3 m each, with 200 N·m at its free end:
+  // T = 200 N·m all along, τ = 16 T / (π d³) on each side of the step (solid round bar, closed form).
+  const T = 200;
+  const sol = solve(
+    model('Stepped cantilever (invented)', {
+      materials: [{ id: 'steel', G: 80e9 }],
+      sections: [
+        { id: 'd40', shape: 'solid', d: 0.04 },
+        { id: 'd30', shape: 'solid', d: 0.03 },
+      ],
+      shafts: [{ id: 's', segments: [{ length: 0.3, section: 'd40', material: 'steel' }, { length: 0.3, section: 'd30', material: 'steel' }] }],
+      supports: [{ id: 'A', shaft: 's', at: 0, kind: 'fixed' }],
+      torques: [{ id: 'T', shaft: 's', at: 0.6, torque: T }],
+    }),
+  );
+  const tau = (d: number) => (16 * T) / (Math.PI * d ** 3);
+
+  it('has two points at the step, τ of the larger then of the smaller diameter', () => {
+    const dg = sol.shafts[0].diagram;
+    const at = dg.z.flatMap((z, i) => (z === 0.3 ? [i] : []));
+    expect(at.length).toBe(2);
+    expectClose(dg.shear[at[0]], tau(0.04), 1e-12);
+    expectClose(dg.shear[at[1]], tau(0.03), 1e-12);
+    expectClose(dg.torque[at[0]], T, 1e-12);
+    expectClose(dg.torque[at[1]], T, 1e-12);
+  });
+
+  it('gives the station at the step the larger stress, that of the smaller diameter, in the CSV', () => {
+    const cols = stationColumns(sol);
+    const d = Array.from(cols.z).indexOf(0.3);
+    expectClose(cols.shear[d], tau(0.03), 1e-12);
+    expectClose(cols.shear[0], tau(0.04), 1e-12);
   });
 });
