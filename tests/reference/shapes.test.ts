@@ -7,10 +7,12 @@ import { describe, expect, it } from 'vitest';
 import { rectangleCoefficients, sectionProperties } from '../../server/engine/shapes.js';
 import { expectClose, expectPublished } from './helpers.js';
 
-// Appendix II, "It and Wt formulas for different types of cross-sectional shapes of members in
-// torsion", https://www.scribd.com/doc/149903883/Anexa-bmom: rectangle h × b (h ≥ b), It = k·h·b³,
-// Wt = k1·h·b², printed to three decimals. The same coefficients are the table of Timoshenko &
-// Goodier, Theory of Elasticity, torsion of rectangular bars (from memory).
+// The coefficients of Saint-Venant's solution for rectangular bars as tabulated by Timoshenko &
+// Goodier (Theory of Elasticity, torsion of rectangular bars) and reproduced in Beer & Johnston,
+// Mechanics of Materials, Table 3.1 (c1 = k1, c2 = k) — both recalled from memory; the copy
+// consulted for the digits is "Appendix II, It and Wt formulas for different types of
+// cross-sectional shapes of members in torsion", https://www.scribd.com/doc/149903883/Anexa-bmom:
+// rectangle h × b (h ≥ b), It = k·h·b³, Wt = k1·h·b², printed to three decimals.
 const APPENDIX_II_RECTANGLE: readonly { hb: number; k: number; k1: number }[] = [
   { hb: 1.0, k: 0.141, k1: 0.208 },
   { hb: 1.5, k: 0.196, k1: 0.231 },
