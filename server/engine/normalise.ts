@@ -308,8 +308,11 @@ class Resolver {
       return [];
     }
     const used = new Set<number>([...torques.map((t) => t.caseIndex), ...distributed.map((d) => d.caseIndex)]);
+    // A load whose case is missing or unknown is named already: which case it meant is not known.
+    const allNamed = !used.has(-1);
     cases.forEach((c, k) => {
-      if (!used.has(k)) this.issue('SN_LOAD_CASE', pointer('loadCases', k), `load case "${c.id}" has no loads: give it a torque or a distributed torque, or remove it`);
+      // A repeated id is named as such (uniqueIds), not again as a case with no loads.
+      if (allNamed && !used.has(k) && cases.findIndex((d) => d.id === c.id) === k) this.issue('SN_LOAD_CASE', pointer('loadCases', k), `load case "${c.id}" has no loads: give it a torque or a distributed torque, or remove it`);
     });
     const given = this.m.combinations;
     if (given === undefined) return cases.map((c, k) => ({ id: c.id, ...(c.name === undefined ? {} : { name: c.name }), factors: cases.map((_, j) => (j === k ? 1 : 0)) }));
@@ -319,7 +322,7 @@ class Resolver {
         const ptr = pointer('combinations', i, 'factors', caseId);
         const k = cases.findIndex((c) => c.id === caseId);
         if (k < 0) this.issue('SN_UNRESOLVED', ptr, `no load case "${caseId}"`);
-        else if (!Number.isFinite(f)) this.issue('SN_LOAD_CASE', ptr, `a factor must be a finite number (got ${String(f)})`);
+        else if (!Number.isFinite(f)) this.issue('SN_NOT_FINITE', ptr, `a factor must be a finite number (got ${String(f)})`);
         else factors[k] = f;
       }
       return { id: cmb.id, ...(cmb.name === undefined ? {} : { name: cmb.name }), factors };
