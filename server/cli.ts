@@ -2,7 +2,7 @@
 /**
  * The command line.
  *
- *   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense]
+ *   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense] [--combination ID]
  *   shaftnet demo [--units si|us] [--json | --csv]
  *   shaftnet serve [server options]        (see server/http/API.md)
  *
@@ -15,17 +15,20 @@ import { dirname, join } from 'node:path';
 import { ModelError } from '../shared-types/errors.js';
 import { UNIT_SYSTEMS, isUnitSystem, writeStationCsv, type UnitSystem } from '../shared-types/present.js';
 import { normaliseModel, solveModel, solveModelJson, withSolved } from './engine/index.js';
-import { formatIssue, formatReport, solvedStationColumns } from './report.js';
+import { formatCombinationsReport, formatIssue, formatReport, solvedStationColumns } from './report.js';
 
 const USAGE = `usage:
-  shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense]
+  shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense] [--combination ID]
   shaftnet demo [--units si|us] [--json | --csv]
   shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
 
   --units si|us   tables and CSV in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
   --json          print the solution object (SI units, compact JSON) instead of tables
   --csv           print the station table as CSV (units named in its header)
-  --dense         solve with the dense reference solver (small models only)`;
+  --dense         solve with the dense reference solver (small models only)
+  --combination ID  a model with load cases: that combination's full tables (and its
+                  stations in --csv, the single-state fields of --json); without it the
+                  tables show every combination and the envelope, --csv and --json the first`;
 
 /** Where the shipped demo models live, from src or from dist. */
 export function demoDirectory(): string {
@@ -47,6 +50,7 @@ interface SolveArgs {
   units: UnitSystem;
   output: 'tables' | 'json' | 'csv';
   dense: boolean;
+  combination?: string;
 }
 
 function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
@@ -60,6 +64,11 @@ function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
     } else if (a === '--json') out.output = 'json';
     else if (a === '--csv') out.output = 'csv';
     else if (a === '--dense') out.dense = true;
+    else if (a === '--combination' || a.startsWith('--combination=')) {
+      const v = a === '--combination' ? args[++k] : a.slice(14);
+      if (!v) throw new UsageError('--combination takes the id of a combination');
+      out.combination = v;
+    }
     else if (a.startsWith('-')) throw new UsageError(`unknown option ${a}`);
     else if (out.file === null) out.file = a;
     else throw new UsageError(`one model file at a time (got ${out.file} and ${a})`);
@@ -104,9 +113,11 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       err(`${path}: not valid JSON (${(e as Error).message})`);
       return 2;
     }
-    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const) };
+    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const), combination: args.combination };
     if (args.output === 'tables') {
-      out(formatReport(model as { name?: string }, solveModel(model, options), args.units));
+      const solution = solveModel(model, options);
+      const all = solution.combinations !== undefined && args.combination === undefined;
+      out((all ? formatCombinationsReport : formatReport)(model as { name?: string }, solution, args.units));
       return 0;
     }
     // JSON and CSV are written from the solve's columns, in pieces: no object per station, and a

@@ -36,6 +36,10 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
   const deg = (rad: number) => show(rad, 'angle');
   const out: string[] = [];
   out.push(`${s.name || model.name || 'model'}  (${s.stats.stations} stations, ${s.stats.unknowns} unknowns)`, '');
+  if (s.combination !== undefined) {
+    const c = s.combinations?.find((x) => x.id === s.combination);
+    out.push(`Load combination ${s.combination}${c?.name ? ` (${c.name})` : ''}: the tables below are its results`, '');
+  }
   out.push('Reactions (torque the support puts on the shaft)');
   out.push(
     table(
@@ -127,6 +131,74 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
     );
   }
   out.push(`Equilibrium: largest |sum of torques| on a shaft = ${formatNumber(s.equilibrium.maxResidual, 2)} N*m`);
+  for (const w of s.warnings) out.push(`warning ${w.code}: ${w.message}`);
+  out.push('', ...CAUTIONS.map((c) => `Caution: ${c}`));
+  return out.join('\n');
+}
+
+/**
+ * A model with load cases: per combination its reactions, segment peaks and checks, then the
+ * envelope (extreme reactions, worst segment torque and layer stress, each with the combination
+ * that governs). One combination's full tables: `formatReport` of a solve showing it.
+ */
+export function formatCombinationsReport(model: { name?: string }, s: Solution, units: UnitSystem): string {
+  const u = DISPLAY_UNITS[units];
+  const show = (si: number, kind: FieldKind, sig = 4) => formatNumber(toDisplay(si, kind, units), sig);
+  const T = (nm: number) => show(nm, 'torque');
+  const S = (pa: number) => show(pa, 'stress');
+  const util = (x: number | null) => (x === null ? '-' : formatNumber(x, 3));
+  const combos = s.combinations ?? [];
+  const out: string[] = [];
+  out.push(
+    `${s.name || model.name || 'model'}  (${s.stats.stations} stations, ${combos.length} load combinations; one combination's full tables: --combination ID)`,
+    '',
+  );
+  for (const c of combos) {
+    out.push(`Combination ${c.id}${c.name ? ` (${c.name})` : ''}  (equilibrium: largest |sum of torques| on a shaft = ${formatNumber(c.equilibrium.maxResidual, 2)} N*m)`);
+    out.push(table(['support', `torque [${u.torque}]`], c.reactions.map((r) => [r.support, T(r.torque)])));
+    const rows: string[][] = [];
+    for (const g of c.segments) {
+      g.layers.forEach((l, k) => {
+        rows.push([k === 0 ? `${g.shaft}[${g.index}]` : '', k === 0 ? T(g.maxAbsTorque) : '', l.material, S(l.maxShear), util(l.utilisation), k === 0 ? show(g.twist, 'angle') : '']);
+      });
+    }
+    out.push(table(['segment', `max |T| [${u.torque}]`, 'layer', `max tau [${u.stress}]`, 'util.', `twist [${u.angle}]`], rows));
+    if (c.checks.length > 0) {
+      out.push(
+        table(
+          ['check', 'where', 'utilisation', 'result'],
+          c.checks.map((k) => [
+            k.kind,
+            `${k.shaft}${k.segment === undefined ? '' : `[${k.segment}]`}${k.raiser === undefined ? '' : ` ${k.raiser}`}${k.material ? ` ${k.material}` : ''}`,
+            formatNumber(k.utilisation, 3),
+            k.pass ? 'ok' : 'EXCEEDS',
+          ]),
+        ),
+      );
+    }
+    out.push('');
+  }
+  const env = s.envelope;
+  if (env) {
+    out.push('Envelope over the combinations: extreme reactions');
+    out.push(
+      table(
+        ['support', `min [${u.torque}]`, 'in', `max [${u.torque}]`, 'in'],
+        env.reactions.map((r) => [r.support, T(r.min), r.minCombination, T(r.max), r.maxCombination]),
+      ),
+      '',
+    );
+    out.push('Envelope: worst segment torque and layer stress, with the combination that governs');
+    const rows: string[][] = [];
+    for (const sh of env.shafts) {
+      for (const g of sh.segments) {
+        g.layers.forEach((l, k) => {
+          rows.push([k === 0 ? `${sh.id}[${g.index}]` : '', k === 0 ? T(g.maxAbsTorque) : '', k === 0 ? g.combination : '', l.material, S(l.maxShear), util(l.utilisation), l.combination]);
+        });
+      }
+    }
+    out.push(table(['segment', `max |T| [${u.torque}]`, 'in', 'layer', `max tau [${u.stress}]`, 'util.', 'in'], rows), '');
+  }
   for (const w of s.warnings) out.push(`warning ${w.code}: ${w.message}`);
   out.push('', ...CAUTIONS.map((c) => `Caution: ${c}`));
   return out.join('\n');

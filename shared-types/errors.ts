@@ -32,6 +32,7 @@ export const ERROR_CODES = {
   SN_GEAR_SIZE: { status: 400, summary: 'A gear gives neither radius nor teeth, both, or teeth without the mesh module.' },
   SN_TORQUE_FORM: { status: 400, summary: 'A point torque gives neither "torque" nor "power" with "speed", or both.' },
   SN_RAISER_PLACE: { status: 400, summary: 'A shoulder stress raiser is not at a segment boundary where the diameter steps.' },
+  SN_LOAD_CASE: { status: 400, summary: 'A load names no case while the model has load cases, names one without them, or a load case has no loads.' },
   SN_RANGE_ORDER: { status: 400, summary: 'A distributed torque ends before it starts.' },
   SN_MECHANISM: { status: 422, summary: 'Some shafts are free to spin: no fixed or spring support holds them.' },
   SN_LOOP_MISMATCH: { status: 422, summary: 'Rigid connections close a loop whose offsets or misfits do not add up: no assembly exists.' },

@@ -125,6 +125,8 @@ export const PointTorque = Type.Object(
     id: Id,
     shaft: Ref('shaft'),
     at: Quantity,
+    /** The load case it belongs to: required when the model has loadCases, refused otherwise. */
+    case: Type.Optional(Ref('load case')),
     torque: Type.Optional(Quantity),
     power: Type.Optional(Quantity),
     speed: Type.Optional(Quantity),
@@ -137,6 +139,7 @@ export const DistributedTorque = Type.Object(
   {
     id: Id,
     shaft: Ref('shaft'),
+    case: Type.Optional(Ref('load case')),
     from: Quantity,
     to: Quantity,
     start: Quantity,
@@ -204,6 +207,21 @@ export const StressRaiser = Type.Object(
 );
 export type StressRaiser = Static<typeof StressRaiser>;
 
+/** A named set of loads (point and distributed torques name it by `case`). */
+export const LoadCase = Type.Object({ id: Id, name: Type.Optional(Text(200)) }, strict);
+export type LoadCase = Static<typeof LoadCase>;
+
+/** A combination of load cases: each case's loads times its factor, plus the assembled state. */
+export const Combination = Type.Object(
+  {
+    id: Id,
+    name: Type.Optional(Text(200)),
+    factors: Type.Record(Type.String({ minLength: 1, maxLength: 100 }), Type.Number(), { description: 'Factor by load case id.' }),
+  },
+  strict,
+);
+export type Combination = Static<typeof Combination>;
+
 export const Limits = Type.Object(
   { twistRate: Type.Optional(Quantity), totalTwist: Type.Optional(Quantity) },
   strict,
@@ -226,6 +244,8 @@ export const Model = Type.Object(
     discs: Type.Optional(Type.Array(Disc)),
     stressRaisers: Type.Optional(Type.Array(StressRaiser)),
     limits: Type.Optional(Limits),
+    loadCases: Type.Optional(Type.Array(LoadCase, { minItems: 1 })),
+    combinations: Type.Optional(Type.Array(Combination, { minItems: 1 })),
   },
   { $id: 'Model', additionalProperties: false, description: 'A Shaftnet model, format shaftnet/1.' },
 );

@@ -163,10 +163,64 @@ export const Warning = Type.Object({
 });
 export type Warning = Static<typeof Warning>;
 
+/** One combination's results (a model with load cases): what is not station by station. */
+export const CombinationResult = Type.Object({
+  id: Type.String(),
+  name: Type.Optional(Type.String()),
+  reactions: Type.Array(Type.Object({ support: Type.String(), torque: Num })),
+  gearMeshes: Type.Array(Type.Object({ gearMesh: Type.String(), force: Num, torqueA: Num, torqueB: Num })),
+  couplings: Type.Array(Type.Object({ coupling: Type.String(), torqueA: Num, torqueB: Num })),
+  segments: Type.Array(
+    Type.Object({
+      shaft: Type.String(),
+      index: Type.Integer(),
+      maxAbsTorque: Num,
+      governingZ: Num,
+      maxTwistRate: Num,
+      twist: Num,
+      layers: Type.Array(Type.Object({ material: Type.String(), maxShear: Num, utilisation: NullableNum })),
+    }),
+  ),
+  checks: Type.Array(CheckResult),
+  equilibrium: Type.Object({ maxResidual: Num }),
+});
+export type CombinationResult = Static<typeof CombinationResult>;
+
+/** Extremes over the combinations, with the combination that governs each. */
+export const EnvelopeResult = Type.Object({
+  reactions: Type.Array(Type.Object({ support: Type.String(), min: Num, max: Num, minCombination: Type.String(), maxCombination: Type.String() })),
+  shafts: Type.Array(
+    Type.Object({
+      id: Type.String(),
+      /** In station order; null where a side does not exist (as in `stations`). */
+      stations: Type.Object({
+        z: Type.Array(Num),
+        torqueLeftMin: Type.Array(NullableNum),
+        torqueLeftMax: Type.Array(NullableNum),
+        torqueRightMin: Type.Array(NullableNum),
+        torqueRightMax: Type.Array(NullableNum),
+        rotationMin: Type.Array(Num),
+        rotationMax: Type.Array(Num),
+      }),
+      segments: Type.Array(
+        Type.Object({
+          index: Type.Integer(),
+          maxAbsTorque: Num,
+          combination: Type.String(),
+          layers: Type.Array(Type.Object({ material: Type.String(), maxShear: Num, utilisation: NullableNum, combination: Type.String() })),
+        }),
+      ),
+    }),
+  ),
+});
+export type EnvelopeResult = Static<typeof EnvelopeResult>;
+
 export const Solution = Type.Object(
   {
     format: Type.Literal(SOLUTION_FORMAT),
     name: Type.String(),
+    /** A model with load cases: the id of the combination the single-state fields show. */
+    combination: Type.Optional(Type.String()),
     shafts: Type.Array(ShaftResult),
     reactions: Type.Array(ReactionResult),
     gearMeshes: Type.Array(GearMeshResult),
@@ -180,6 +234,9 @@ export const Solution = Type.Object(
     checks: Type.Array(CheckResult),
     /** Only when the model has stress raisers. */
     stressRaisers: Type.Optional(Type.Array(StressRaiserResult)),
+    /** A model with load cases: every combination's results, and the envelope over them. */
+    combinations: Type.Optional(Type.Array(CombinationResult)),
+    envelope: Type.Optional(EnvelopeResult),
     warnings: Type.Array(Warning),
     stats: Type.Object({
       stations: Type.Integer(),

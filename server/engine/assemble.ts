@@ -164,6 +164,63 @@ export function elasticParts(model: ResolvedModel, layout: StationLayout, ws: Wo
 }
 
 /**
+ * The applied torque at every dof of `model`'s loads (point torques plus consistent distributed
+ * loads from `elemT1`/`elemT2`), with the arithmetic of `elasticParts`: a load combination passes
+ * its factored loads and its own intensities.
+ */
+export function loadVector(model: ResolvedModel, layout: StationLayout, ws: Workspace): Float64Array {
+  const { z, elemLeft, elemSegment, elemT1, elemT2, shaftOf } = layout;
+  const load = ws.f64(layout.dofCount);
+  for (let e = 0; e < elemLeft.length; e++) {
+    const t1 = elemT1[e];
+    const t2 = elemT2[e];
+    if (t1 === 0 && t2 === 0) continue;
+    const left = elemLeft[e];
+    const seg = model.shafts[shaftOf[left]].segments[elemSegment[e]];
+    if (seg.taper) {
+      const f = taperElementLoads(seg, seg.taper, z[left], z[left + 1], t1, t2);
+      load[left] += f.fa;
+      load[left + 1] += f.fb;
+      continue;
+    }
+    const h = z[left + 1] - z[left];
+    load[left] += consistentLeft(h, t1, t2);
+    load[left + 1] += consistentRight(h, t1, t2);
+  }
+  for (const t of model.torques) load[layout.stationAt(t.shaft, t.z)] += t.torque;
+  return load;
+}
+
+/** The right-hand side f of K·x = f for the load vector `load`, with the arithmetic of `reducedSystem`. */
+export function reducedRhs(s: SpringSet, load: Float64Array, red: Reduction, ws: Workspace): Float64Array {
+  const { varOf, alpha, beta } = red;
+  const rhs = ws.f64(red.varCount);
+  const spring = new SpringCursor(s);
+  for (let m = 0; m < s.count; m++) {
+    spring.read(m);
+    const { i, j, p, q } = spring;
+    const u = varOf[i];
+    const v = j >= 0 ? varOf[j] : -1;
+    if (u < 0 && v < 0) continue;
+    const k = s.k[m];
+    const cu = u >= 0 ? p * alpha[i] : 0;
+    const cv = v >= 0 ? q * alpha[j] : 0;
+    const e = spring.c - p * beta[i] - (j >= 0 ? q * beta[j] : 0);
+    if (u >= 0 && u === v) {
+      rhs[u] += k * (cu + cv) * e;
+      continue;
+    }
+    if (u >= 0) rhs[u] += k * cu * e;
+    if (v >= 0) rhs[v] += k * cv * e;
+  }
+  for (let d = 0; d < load.length; d++) {
+    const u = varOf[d];
+    if (u >= 0 && load[d] !== 0) rhs[u] += alpha[d] * load[d];
+  }
+  return rhs;
+}
+
+/**
  * The consistent nodal shares of a linear distributed torque t1 → t2 over an
  * element of length h, ∫ N·t dz, at its left and right end, N·m (recovery
  * recomputes them with the same arithmetic rather than keeping two arrays).

@@ -21,6 +21,8 @@ export interface SolveOptions {
   solver?: 'sparse' | 'dense';
   /** Interior diagram points per element where T(z) is curved (default 8); 0 keeps breakpoints only. */
   diagramPoints?: number;
+  /** A model with load cases: the combination whose results the top-level fields show (default: the first). */
+  combination?: string;
   /**
    * Called after each phase with its duration, ms: 'stations', 'assemble',
    * 'factorise' (with the solve), 'recover' (every result, in columns) and

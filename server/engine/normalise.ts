@@ -85,6 +85,8 @@ export interface ResolvedSupport extends ShaftPoint {
 export interface ResolvedTorque extends ShaftPoint {
   readonly id: string;
   readonly torque: number;
+  /** Index of its load case in `loadCases`, −1 in a model without load cases. */
+  readonly caseIndex: number;
 }
 
 export interface ResolvedDistributed {
@@ -95,6 +97,15 @@ export interface ResolvedDistributed {
   /** t at `from` and at `to`, N·m/m. */
   readonly start: number;
   readonly end: number;
+  /** Index of its load case in `loadCases`, −1 in a model without load cases. */
+  readonly caseIndex: number;
+}
+
+/** A combination: the factor of every load case (by index in `loadCases`, 0 where not named). */
+export interface ResolvedCombination {
+  readonly id: string;
+  readonly name?: string;
+  readonly factors: readonly number[];
 }
 
 export interface ResolvedMesh {
@@ -135,6 +146,9 @@ export interface ResolvedModel {
   /** Cautions found while resolving (thin walls stretched, open sections). */
   readonly warnings: readonly Warning[];
   readonly limits: { readonly twistRate: number | null; readonly totalTwist: number | null };
+  /** Load cases (empty: one load state, as before) and the combinations to solve (each case alone when none are given). */
+  readonly loadCases: ReadonlyArray<{ readonly id: string; readonly name?: string }>;
+  readonly combinations: readonly ResolvedCombination[];
 }
 
 /** Smallest positive normal double: below it numbers lose precision and products underflow. */
@@ -179,7 +193,7 @@ class Resolver {
     this.uniqueIds('materials', m.materials);
     this.uniqueIds('sections', m.sections);
     this.uniqueIds('shafts', m.shafts);
-    for (const list of ['supports', 'torques', 'distributedTorques', 'gearMeshes', 'couplings', 'discs', 'stressRaisers'] as const) {
+    for (const list of ['supports', 'torques', 'distributedTorques', 'gearMeshes', 'couplings', 'discs', 'stressRaisers', 'loadCases', 'combinations'] as const) {
       this.uniqueIds(list, m[list] ?? []);
     }
     m.materials.forEach((mat, i) => this.material(mat, i));
@@ -202,7 +216,7 @@ class Resolver {
     const torques = (m.torques ?? []).map((t, i): ResolvedTorque => {
       const base = pointer('torques', i);
       const at = this.point(t.shaft, t.at, base);
-      return { id: t.id, ...at, torque: this.pointTorque(t, base) };
+      return { id: t.id, ...at, torque: this.pointTorque(t, base), caseIndex: this.caseOf(t.case, base) };
     });
     const distributed = (m.distributedTorques ?? []).map((d, i): ResolvedDistributed => {
       const base = pointer('distributedTorques', i);
@@ -216,6 +230,7 @@ class Resolver {
         to: to.z,
         start: this.q(d.start, 'torquePerLength', base + '/start'),
         end: this.q(d.end, 'torquePerLength', base + '/end'),
+        caseIndex: this.caseOf(d.case, base),
       };
     });
     const meshes = (m.gearMeshes ?? []).map((g, i): ResolvedMesh => {
@@ -263,8 +278,55 @@ class Resolver {
       twistRate: m.limits?.twistRate === undefined ? null : this.positive(m.limits.twistRate, 'twistRate', '/limits/twistRate'),
       totalTwist: m.limits?.totalTwist === undefined ? null : this.positive(m.limits.totalTwist, 'angle', '/limits/totalTwist'),
     };
+    const combinations = this.combinations(torques, distributed);
     if (this.issues.length > 0) throw new ModelError(this.issues);
-    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits };
+    const loadCases = (m.loadCases ?? []).map((c) => (c.name === undefined ? { id: c.id } : { id: c.id, name: c.name }));
+    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits, loadCases, combinations };
+  }
+
+  /** The index of a load's case: −1 without load cases; every load names one when they exist. */
+  private caseOf(name: string | undefined, base: string): number {
+    const cases = this.m.loadCases;
+    if (cases === undefined) {
+      if (name !== undefined) this.issue('SN_LOAD_CASE', base + '/case', `"case" needs "loadCases" in the model (none are defined)`);
+      return -1;
+    }
+    if (name === undefined) {
+      this.issue('SN_LOAD_CASE', base + '/case', 'the model has load cases: every torque and distributed torque names its "case"');
+      return -1;
+    }
+    const k = cases.findIndex((c) => c.id === name);
+    if (k < 0) this.issue('SN_UNRESOLVED', base + '/case', `no load case "${name}"`);
+    return k;
+  }
+
+  /** The combinations to solve: as given, or each load case alone (factor 1); none without load cases. */
+  private combinations(torques: readonly ResolvedTorque[], distributed: readonly ResolvedDistributed[]): ResolvedCombination[] {
+    const cases = this.m.loadCases;
+    if (cases === undefined) {
+      if (this.m.combinations !== undefined) this.issue('SN_LOAD_CASE', '/combinations', '"combinations" need "loadCases" in the model');
+      return [];
+    }
+    const used = new Set<number>([...torques.map((t) => t.caseIndex), ...distributed.map((d) => d.caseIndex)]);
+    // A load whose case is missing or unknown is named already: which case it meant is not known.
+    const allNamed = !used.has(-1);
+    cases.forEach((c, k) => {
+      // A repeated id is named as such (uniqueIds), not again as a case with no loads.
+      if (allNamed && !used.has(k) && cases.findIndex((d) => d.id === c.id) === k) this.issue('SN_LOAD_CASE', pointer('loadCases', k), `load case "${c.id}" has no loads: give it a torque or a distributed torque, or remove it`);
+    });
+    const given = this.m.combinations;
+    if (given === undefined) return cases.map((c, k) => ({ id: c.id, ...(c.name === undefined ? {} : { name: c.name }), factors: cases.map((_, j) => (j === k ? 1 : 0)) }));
+    return given.map((cmb, i) => {
+      const factors = cases.map(() => 0);
+      for (const [caseId, f] of Object.entries(cmb.factors)) {
+        const ptr = pointer('combinations', i, 'factors', caseId);
+        const k = cases.findIndex((c) => c.id === caseId);
+        if (k < 0) this.issue('SN_UNRESOLVED', ptr, `no load case "${caseId}"`);
+        else if (!Number.isFinite(f)) this.issue('SN_NOT_FINITE', ptr, `a factor must be a finite number (got ${String(f)})`);
+        else factors[k] = f;
+      }
+      return { id: cmb.id, ...(cmb.name === undefined ? {} : { name: cmb.name }), factors };
+    });
   }
 
   private issue(code: ErrorCode, ptr: string, message: string): void {

@@ -16,7 +16,9 @@
 import {
   SOLUTION_FORMAT,
   type CheckResult,
+  type CombinationResult,
   type CouplingResult,
+  type EnvelopeResult,
   type Diagram,
   type GearMeshResult,
   type LayerResult,
@@ -31,6 +33,7 @@ import {
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Recovered } from './recover.js';
+import type { CombinationSolved, Envelope } from './combinations.js';
 
 /** A finished solve, in columns. */
 export interface Solved {
@@ -40,6 +43,8 @@ export interface Solved {
   readonly maxResidual: number;
   readonly warnings: readonly Warning[];
   readonly stats: Solution['stats'];
+  /** A model with load cases: the combination shown at the top level, every combination, and the envelope. */
+  readonly cases?: { readonly combination: string; readonly combinations: readonly CombinationSolved[]; readonly envelope: Envelope };
 }
 
 /** The field names of one kind of object, in the order they are written. The first is never left out. */
@@ -80,7 +85,22 @@ function rec<T>(...keys: Array<keyof T & string>): Rec {
 }
 
 // The key order of the solution: written here once, for both writers.
-const SOLUTION = rec<Solution>('format', 'name', 'shafts', 'reactions', 'gearMeshes', 'couplings', 'equilibrium', 'checks', 'stressRaisers', 'warnings', 'stats');
+const SOLUTION = rec<Solution>(
+  'format',
+  'name',
+  'combination',
+  'shafts',
+  'reactions',
+  'gearMeshes',
+  'couplings',
+  'equilibrium',
+  'checks',
+  'stressRaisers',
+  'combinations',
+  'envelope',
+  'warnings',
+  'stats',
+);
 const SHAFT = rec<ShaftResult>('id', 'name', 'length', 'stations', 'segments', 'totalTwist', 'diagram');
 const STATION = rec<Station>('z', 'rotation', 'torqueLeft', 'torqueRight');
 const SEGMENT = rec<SegmentResult>(
@@ -126,6 +146,29 @@ const RAISER = rec<StressRaiserResult>(
 const WARNING = rec<Warning>('code', 'message', 'shafts', 'connections');
 const STATS = rec<Solution['stats']>('stations', 'unknowns', 'factorNonzeros', 'checksEvaluated');
 
+type Item<T extends readonly unknown[]> = T[number];
+const COMBINATION = rec<CombinationResult>('id', 'name', 'reactions', 'gearMeshes', 'couplings', 'segments', 'checks', 'equilibrium');
+const C_REACTION = rec<Item<CombinationResult['reactions']>>('support', 'torque');
+const C_MESH = rec<Item<CombinationResult['gearMeshes']>>('gearMesh', 'force', 'torqueA', 'torqueB');
+const C_COUPLING = rec<Item<CombinationResult['couplings']>>('coupling', 'torqueA', 'torqueB');
+const C_SEGMENT = rec<Item<CombinationResult['segments']>>('shaft', 'index', 'maxAbsTorque', 'governingZ', 'maxTwistRate', 'twist', 'layers');
+const C_LAYER = rec<Item<Item<CombinationResult['segments']>['layers']>>('material', 'maxShear', 'utilisation');
+const C_EQUILIBRIUM = rec<CombinationResult['equilibrium']>('maxResidual');
+const ENVELOPE = rec<EnvelopeResult>('reactions', 'shafts');
+const E_REACTION = rec<Item<EnvelopeResult['reactions']>>('support', 'min', 'max', 'minCombination', 'maxCombination');
+const E_SHAFT = rec<Item<EnvelopeResult['shafts']>>('id', 'stations', 'segments');
+const E_STATIONS = rec<Item<EnvelopeResult['shafts']>['stations']>(
+  'z',
+  'torqueLeftMin',
+  'torqueLeftMax',
+  'torqueRightMin',
+  'torqueRightMax',
+  'rotationMin',
+  'rotationMax',
+);
+const E_SEGMENT = rec<Item<Item<EnvelopeResult['shafts']>['segments']>>('index', 'maxAbsTorque', 'combination', 'layers');
+const E_LAYER = rec<Item<Item<Item<EnvelopeResult['shafts']>['segments']>['layers']>>('material', 'maxShear', 'utilisation', 'combination');
+
 const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist', 'localPeak'] as const;
 
 /**
@@ -156,6 +199,8 @@ function walkSolution(sv: Solved, w: Writer): void {
   w.open(SOLUTION);
   w.str(SOLUTION_FORMAT);
   w.str(model.name);
+  if (sv.cases === undefined) w.absent();
+  else w.str(sv.cases.combination);
   w.list();
   model.shafts.forEach((shaft, s) => {
     w.open(SHAFT);
@@ -289,6 +334,61 @@ function walkSolution(sv: Solved, w: Writer): void {
   });
   w.close();
   w.close();
+  writeChecks(w, model, r);
+  if (r.raisers === undefined) w.absent();
+  else {
+    const rr = r.raisers;
+    w.list();
+    model.raisers.forEach((x, i) => {
+      const seg = model.shafts[x.shaft].segments[rr.segment[i]];
+      const layer = seg.layers[seg.layers.length - 1];
+      w.open(RAISER);
+      w.str(x.id);
+      w.str(model.shafts[x.shaft].id);
+      w.num(x.z);
+      w.str(x.kind);
+      w.num(x.factor);
+      w.num(rr.nominal[i]);
+      w.num(rr.peak[i]);
+      w.str(layer.materialId);
+      w.optNum(layer.allowableShear);
+      w.optNum(layer.allowableShear === null ? null : rr.peak[i] / layer.allowableShear);
+      if (x.note === undefined) w.absent();
+      else w.str(x.note);
+      w.close();
+    });
+    w.close();
+  }
+  if (sv.cases === undefined) {
+    w.absent();
+    w.absent();
+  } else {
+    writeCombinations(w, model, sv.cases.combinations);
+    writeEnvelope(w, sv, sv.cases.envelope);
+  }
+  w.list();
+  for (const x of sv.warnings) {
+    w.open(WARNING);
+    w.str(x.code);
+    w.str(x.message);
+    if (x.shafts === undefined) w.absent();
+    else w.strings(x.shafts);
+    if (x.connections === undefined) w.absent();
+    else w.strings(x.connections);
+    w.close();
+  }
+  w.close();
+  w.open(STATS);
+  w.num(sv.stats.stations);
+  w.num(sv.stats.unknowns);
+  w.num(sv.stats.factorNonzeros);
+  w.num(sv.stats.checksEvaluated);
+  w.close();
+  w.close();
+}
+
+/** The checks of one load state, worst first. */
+function writeChecks(w: Writer, model: ResolvedModel, r: Recovered): void {
   w.list();
   const c = r.checks;
   for (let k = 0; k < c.listed.length; k++) {
@@ -325,47 +425,141 @@ function walkSolution(sv: Solved, w: Writer): void {
     w.close();
   }
   w.close();
-  if (r.raisers === undefined) w.absent();
-  else {
-    const rr = r.raisers;
+}
+
+/** Every combination's results: reactions, connections, segment peaks, checks, equilibrium. */
+function writeCombinations(w: Writer, model: ResolvedModel, combos: readonly CombinationSolved[]): void {
+  w.list();
+  for (const cmb of combos) {
+    const r = cmb.rec;
+    w.open(COMBINATION);
+    w.str(cmb.id);
+    if (cmb.name === undefined) w.absent();
+    else w.str(cmb.name);
     w.list();
-    model.raisers.forEach((x, i) => {
-      const seg = model.shafts[x.shaft].segments[rr.segment[i]];
-      const layer = seg.layers[seg.layers.length - 1];
-      w.open(RAISER);
-      w.str(x.id);
-      w.str(model.shafts[x.shaft].id);
-      w.num(x.z);
-      w.str(x.kind);
-      w.num(x.factor);
-      w.num(rr.nominal[i]);
-      w.num(rr.peak[i]);
-      w.str(layer.materialId);
-      w.optNum(layer.allowableShear);
-      w.optNum(layer.allowableShear === null ? null : rr.peak[i] / layer.allowableShear);
-      if (x.note === undefined) w.absent();
-      else w.str(x.note);
+    for (const x of r.reactions) {
+      w.open(C_REACTION);
+      w.str(x.support);
+      w.num(x.torque);
       w.close();
+    }
+    w.close();
+    w.list();
+    for (const g of r.gearMeshes) {
+      w.open(C_MESH);
+      w.str(g.gearMesh);
+      w.num(g.force);
+      w.num(g.torqueA);
+      w.num(g.torqueB);
+      w.close();
+    }
+    w.close();
+    w.list();
+    for (const c of r.couplings) {
+      w.open(C_COUPLING);
+      w.str(c.coupling);
+      w.num(c.torqueA);
+      w.num(c.torqueB);
+      w.close();
+    }
+    w.close();
+    w.list();
+    model.shafts.forEach((shaft, s) => {
+      shaft.segments.forEach((sg, k) => {
+        const g = r.segBase[s] + k;
+        w.open(C_SEGMENT);
+        w.str(shaft.id);
+        w.num(k);
+        w.num(r.segMaxAbs[g]);
+        w.num(r.segAt[g]);
+        w.num(sg.taper ? r.segRate[g] : r.segMaxAbs[g] / sg.rigidity);
+        w.num(r.segTwist[g]);
+        w.list();
+        sg.layers.forEach((l, j) => {
+          const maxShear = r.layerMaxShear[r.layerBase[g] + j];
+          w.open(C_LAYER);
+          w.str(l.materialId);
+          w.num(maxShear);
+          w.optNum(l.allowableShear === null ? null : maxShear / l.allowableShear);
+          w.close();
+        });
+        w.close();
+        w.close();
+      });
     });
     w.close();
-  }
-  w.list();
-  for (const x of sv.warnings) {
-    w.open(WARNING);
-    w.str(x.code);
-    w.str(x.message);
-    if (x.shafts === undefined) w.absent();
-    else w.strings(x.shafts);
-    if (x.connections === undefined) w.absent();
-    else w.strings(x.connections);
+    writeChecks(w, model, r);
+    w.open(C_EQUILIBRIUM);
+    w.num(cmb.maxResidual);
+    w.close();
     w.close();
   }
   w.close();
-  w.open(STATS);
-  w.num(sv.stats.stations);
-  w.num(sv.stats.unknowns);
-  w.num(sv.stats.factorNonzeros);
-  w.num(sv.stats.checksEvaluated);
+}
+
+/** The envelope over the combinations, with the combination that governs each extreme. */
+function writeEnvelope(w: Writer, sv: Solved, env: Envelope): void {
+  const { model, layout } = sv;
+  const ids = (sv.cases as NonNullable<Solved['cases']>).combinations.map((c) => c.id);
+  const { z, shaftStart } = layout;
+  const side = (a: Float64Array, from: number, to: number) => {
+    w.list();
+    for (let d = from; d <= to; d++) w.optNum(Number.isFinite(a[d]) ? a[d] : null);
+    w.close();
+  };
+  w.open(ENVELOPE);
+  w.list();
+  model.supports.forEach((x, n) => {
+    w.open(E_REACTION);
+    w.str(x.id);
+    w.num(env.reactionMin[n]);
+    w.num(env.reactionMax[n]);
+    w.str(ids[env.reactionMinAt[n]]);
+    w.str(ids[env.reactionMaxAt[n]]);
+    w.close();
+  });
+  w.close();
+  w.list();
+  let g = 0;
+  let l = 0;
+  model.shafts.forEach((shaft, s) => {
+    const first = shaftStart[s];
+    const last = shaftStart[s + 1] - 1;
+    w.open(E_SHAFT);
+    w.str(shaft.id);
+    w.open(E_STATIONS);
+    w.series(z, first, last + 1);
+    side(env.leftMin, first, last);
+    side(env.leftMax, first, last);
+    side(env.rightMin, first, last);
+    side(env.rightMax, first, last);
+    w.series(env.rotationMin, first, last + 1);
+    w.series(env.rotationMax, first, last + 1);
+    w.close();
+    w.list();
+    shaft.segments.forEach((sg, k) => {
+      w.open(E_SEGMENT);
+      w.num(k);
+      w.num(env.segMaxAbs[g]);
+      w.str(ids[env.segCombination[g]]);
+      w.list();
+      for (const layer of sg.layers) {
+        const maxShear = env.layerMaxShear[l];
+        w.open(E_LAYER);
+        w.str(layer.materialId);
+        w.num(maxShear);
+        w.optNum(layer.allowableShear === null ? null : maxShear / layer.allowableShear);
+        w.str(ids[env.layerCombination[l]]);
+        w.close();
+        l++;
+      }
+      w.close();
+      w.close();
+      g++;
+    });
+    w.close();
+    w.close();
+  });
   w.close();
   w.close();
 }

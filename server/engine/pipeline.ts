@@ -13,7 +13,7 @@ import { ModelError } from '../../shared-types/errors.js';
 import type { Warning } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
 import { buildStations, type StationLayout } from './stations.js';
-import { assertNoMechanism, elasticParts, reducedSystem } from './assemble.js';
+import { assertNoMechanism, elasticParts, loadVector, reducedRhs, reducedSystem, type ElasticParts, type ReducedSystem } from './assemble.js';
 import { reduceConstraints, type Reduction } from './constraints.js';
 import { ldlNumeric, ldlSymbolic, SingularMatrixError, toFullCSC, type LdlFactor } from './sparse-solver.js';
 import { solveDense } from './dense-solver.js';
@@ -22,6 +22,7 @@ import { buildChecks, elementTorques, expandRotations, jointTorques, recoverShaf
 import type { Solved } from './output.js';
 import { recoverRaisers } from './raisers.js';
 import type { Workspace } from './workspace.js';
+import { addToEnvelope, combinedLayout, combinedModel, emptyEnvelope, shownCombination, type CombinationSolved } from './combinations.js';
 
 /** The phases of a solve, reported to `onPhase` with their durations. */
 export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'output';
@@ -30,6 +31,8 @@ export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'ou
 export interface PipelineOptions {
   readonly solver?: 'sparse' | 'dense';
   readonly diagramPoints?: number;
+  /** With load cases: the id of the combination the top-level results show (else the first). */
+  readonly combination?: string;
   readonly onPhase?: (phase: SolvePhase, ms: number) => void;
 }
 
@@ -45,6 +48,7 @@ const SMALL_BYTES_PER_STATION = 320;
 
 /** Solves `model` in the workspace's current session; the result's columns live until the session ends. */
 export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws: Workspace): Solved {
+  const shown = shownCombination(model, options.combination);
   const stations = stationEstimate(model);
   ws.reserve(LARGE_BYTES_PER_STATION * stations, SMALL_BYTES_PER_STATION * stations);
   const lap = phaseClock(options.onPhase);
@@ -62,6 +66,7 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   // K·x = f: the entries until the compressed columns are made, the diagonal and f until solved.
   const system = ws.stage(() => reducedSystem(parts.springs, parts.load, reduction, ws));
   lap('assemble');
+  if (model.loadCases.length > 0) return solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap });
 
   const warnings: Warning[] = [];
   let x: Float64Array;
@@ -120,6 +125,111 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
     maxResidual,
     warnings: [...recoveryWarnings(model, reduction), ...model.warnings, ...warnings],
     stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
+  };
+}
+
+/** What the combinations' solve takes over from the assembly. */
+interface Assembled {
+  readonly layout: StationLayout;
+  readonly parts: ElasticParts;
+  readonly reduction: Reduction;
+  readonly system: ReducedSystem;
+  /** Index of the combination the top-level results show. */
+  readonly shown: number;
+  readonly lap: (phase: SolvePhase) => void;
+}
+
+/**
+ * A model with load cases: one factorisation, then per combination its load
+ * vector and right-hand side (the assembled state in it unfactored), its
+ * solve, and every result recovered from its own rotations. The station
+ * columns of every combination but the shown one are given back once they
+ * are in the envelope.
+ */
+function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: Workspace, a: Assembled): Solved {
+  const { layout, parts, reduction, system, shown, lap } = a;
+  const warnings: Warning[] = [];
+  const states = model.combinations.map((c) => {
+    const m = combinedModel(model, c);
+    const lay = combinedLayout(m, layout, ws);
+    return { combination: c, model: m, layout: lay, load: loadVector(m, lay, ws) };
+  });
+  let xs: Float64Array[];
+  let factorNonzeros = 0;
+  if (options.solver === 'dense') {
+    xs = states.map((st) =>
+      illConditionedAsModelError(model, layout, reduction, () => solveDense(system.matrix, reducedRhs(parts.springs, st.load, reduction, ws))),
+    );
+  } else {
+    const csc = ws.stage(() => toFullCSC(system.matrix, ws));
+    ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);
+    const symbolic = ws.stage(() => ldlSymbolic(csc, ws));
+    const factor: LdlFactor = illConditionedAsModelError(model, layout, reduction, () =>
+      ws.stage(() => ldlNumeric(symbolic, csc, system.matrix.diag, ws)),
+    );
+    ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
+    factorNonzeros = symbolic.Lp[symbolic.n];
+    xs = states.map((st) => ws.stage(() => refinedSolve(parts.springs, st.load, reduction, reducedRhs(parts.springs, st.load, reduction, ws), symbolic, factor, ws)));
+    ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
+    if (factor.minPivotRatio < 1e-10) {
+      warnings.push({
+        code: 'SN_STIFFNESS_SPREAD',
+        message: `stiffnesses in the model differ by about ${(1 / factor.minPivotRatio).toExponential(0)}: results may lose ${Math.round(-Math.log10(factor.minPivotRatio))} of their 16 digits`,
+      });
+    }
+  }
+  lap('factorise');
+
+  let segments = 0;
+  let layers = 0;
+  for (const sh of model.shafts) {
+    segments += sh.segments.length;
+    for (const sg of sh.segments) layers += sg.layers.length;
+  }
+  const envelope = emptyEnvelope(layout.dofCount, segments, layers, model.supports.length);
+  const combos: CombinationSolved[] = [];
+  let checksEvaluated = 0;
+  const lost: string[] = [];
+  states.forEach((st, k) => {
+    const phi = ws.stage(() => expandRotations(reduction, xs[k], ws));
+    ws.release(xs[k]);
+    const ends = ws.stage(() => elementTorques(st.model, st.layout, parts.springs, phi, ws));
+    const joints = ws.stage(() => jointTorques(st.model, st.layout, { ...parts, load: st.load }, phi, ws));
+    const shafts = ws.stage(() => recoverShafts(st.model, st.layout, phi, ends, joints.jumps, options.diagramPoints ?? 8, ws));
+    ws.release(joints.jumps);
+    const raisers = model.raisers.length > 0 ? recoverRaisers(st.model, st.layout, ends) : undefined;
+    const checks = ws.stage(() => buildChecks(st.model, shafts, ws, raisers));
+    const rec: Recovered = { phi, ...ends, ...shafts, raisers, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
+    let maxResidual = 0;
+    for (let n = 0; n < rec.residual.length; n++) maxResidual = Math.max(maxResidual, rec.residual[n]);
+    let torqueScale = 0;
+    for (let n = 0; n < rec.segMaxAbs.length; n++) torqueScale = Math.max(torqueScale, rec.segMaxAbs[n]);
+    if (maxResidual > 1e-8 * torqueScale) lost.push(st.combination.id);
+    addToEnvelope(envelope, layout, rec, k);
+    if (k === shown) checksEvaluated = checks.total;
+    // Only the shown combination's stations and diagrams are written: the others' are given back.
+    else ws.release(rec.phi, rec.TL, rec.TR, rec.dZ, rec.dT, rec.dPhi, rec.dTau, st.load, st.layout.elemT1, st.layout.elemT2);
+    const name = st.combination.name;
+    combos.push({ id: st.combination.id, ...(name === undefined ? {} : { name }), rec, maxResidual });
+  });
+  const { springs, load } = parts;
+  ws.release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load, reduction.varOf, reduction.alpha, reduction.beta);
+  lap('recover');
+  if (lost.length > 0) {
+    warnings.push({
+      code: 'SN_PRECISION_LOST',
+      message: `equilibrium holds only loosely in combination${lost.length === 1 ? '' : 's'} ${lost.map((id) => `"${id}"`).join(', ')}: sizes or stiffnesses many orders of magnitude apart cost digits (check the units)`,
+    });
+  }
+  const top = combos[shown];
+  return {
+    model: states[shown].model,
+    layout: states[shown].layout,
+    rec: top.rec,
+    maxResidual: top.maxResidual,
+    warnings: [...recoveryWarnings(model, reduction), ...model.warnings, ...warnings],
+    stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated },
+    cases: { combination: top.id, combinations: combos, envelope },
   };
 }
 

@@ -125,6 +125,21 @@ export function buildStations(model: ResolvedModel, ws: Workspace): StationLayou
     return lo;
   };
 
+  const { elemT1, elemT2 } = distributedIntensities(model, z, elemCount, stationAt, ws);
+  return { dofCount, shaftStart, z, shaftOf, elemLeft, elemSegment, elemT1, elemT2, stationAt };
+}
+
+/**
+ * The distributed torque at the left (elemT1) and right (elemT2) end of every element, N·m/m:
+ * the sum over the model's distributed torques (a load combination passes its factored ones).
+ */
+export function distributedIntensities(
+  model: Pick<ResolvedModel, 'distributed'>,
+  z: Float64Array,
+  elemCount: number,
+  stationAt: StationLayout['stationAt'],
+  ws: Workspace,
+): { elemT1: Float64Array; elemT2: Float64Array } {
   // Element index of a left dof: dof k on shaft s is element k − s.
   const elemT1 = ws.f64(elemCount);
   const elemT2 = ws.f64(elemCount);
@@ -140,7 +155,7 @@ export function buildStations(model: ResolvedModel, ws: Workspace): StationLayou
     }
   }
 
-  return { dofCount, shaftStart, z, shaftOf, elemLeft, elemSegment, elemT1, elemT2, stationAt };
+  return { elemT1, elemT2 };
 }
 
 /** True when a[from … to − 1] never decreases. */

@@ -43,7 +43,7 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
         chunks.push(new Uint8Array(c.buffer, c.byteOffset, c.byteLength));
         transfer.add(c.buffer as ArrayBuffer);
       }
-    }, { workspace });
+    }, { workspace, combination: job.combination });
     return { reply: { id: job.id, ok: true, chunks }, transfer: [...transfer] };
   } catch (err) {
     if (err instanceof HttpError || err instanceof ModelError) {

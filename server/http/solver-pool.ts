@@ -19,9 +19,9 @@ import type { SizeLimits } from './solve-core.js';
 
 /** What the pool sends a worker. */
 export type WorkerJob =
-  | { id: number; kind: 'model'; model: unknown }
+  | { id: number; kind: 'model'; model: unknown; combination?: string }
   | { id: number; kind: 'validate'; model: unknown }
-  | { id: number; kind: 'bytes'; bytes: Uint8Array; limits: SizeLimits };
+  | { id: number; kind: 'bytes'; bytes: Uint8Array; limits: SizeLimits; combination?: string };
 
 /** What a worker answers. */
 export type WorkerReply =
@@ -31,10 +31,10 @@ export type WorkerReply =
 
 /** A job as the caller gives it (the pool numbers it). */
 export type PoolJob =
-  | { kind: 'model'; model: unknown }
+  | { kind: 'model'; model: unknown; combination?: string }
   | { kind: 'validate'; model: unknown }
   /** The raw body: its ArrayBuffer is transferred to the worker (the caller must not use it afterwards). */
-  | { kind: 'bytes'; bytes: Uint8Array; limits: SizeLimits };
+  | { kind: 'bytes'; bytes: Uint8Array; limits: SizeLimits; combination?: string };
 
 export interface SolverPoolOptions {
   /** worker threads */

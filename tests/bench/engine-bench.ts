@@ -6,6 +6,8 @@
  *
  *   npm run bench:engine            all sizes
  *   npm run bench:engine -- --quick up to 1e5
+ *   npm run bench:engine -- --combinations   ten load cases and 1,000 combinations on a
+ *                                             1e4-station gear tree, against one plain solve
  *
  * The models are synthetic and invented for timing only.
  */
@@ -191,7 +193,59 @@ function bench(kind: string, make: (n: number) => Json, n: number, repeats: numb
   ].join('  ');
 }
 
+/** The gear tree of `gearTreeModel` with its torques spread over `cases` load cases and `combos` seeded combinations. */
+export function casedGearTreeModel(stations: number, cases: number, combos: number): Json {
+  const m = gearTreeModel(stations) as Json & { torques: Array<Record<string, unknown>> };
+  m.torques.forEach((t, k) => (t.case = `c${k % cases}`));
+  let seed = 777;
+  const rand = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 4294967296);
+  const ids = Array.from({ length: cases }, (_, k) => `c${k}`);
+  return {
+    ...m,
+    name: `Benchmark gear tree with load cases (invented), ${stations} stations`,
+    loadCases: ids.map((id) => ({ id })),
+    combinations: Array.from({ length: combos }, (_, k) => ({ id: `k${k}`, factors: Object.fromEntries(ids.map((id) => [id, 3 * rand() - 1.5])) })),
+  };
+}
+
+/** Ten cases, 1,000 combinations on a 1e4-station gear tree: total time (solve + JSON with the envelope) against one plain solve. */
+function benchCombinations(): void {
+  console.log(`Engine benchmark, load combinations (node ${process.version})`);
+  console.log(calibrationLine());
+  const stations = 1e4;
+  const plain = normaliseModel(gearTreeModel(stations));
+  const cased = normaliseModel(casedGearTreeModel(stations, 10, 1000));
+  const run = (model: typeof plain) => {
+    const phases: Record<string, number> = {};
+    let chars = 0;
+    const [, ms] = time(() =>
+      withSolved(model, { workspace, onPhase: (p, t) => (phases[p] = (phases[p] ?? 0) + t) }, (sv) => writeSolutionJson(sv, (text) => (chars += text.length))),
+    );
+    return { ms, phases, chars };
+  };
+  const best = (model: typeof plain, repeats: number) => {
+    let b = run(model);
+    for (let r = 1; r < repeats; r++) {
+      gc();
+      const x = run(model);
+      if (x.ms < b.ms) b = x;
+    }
+    return b;
+  };
+  const one = best(plain, 5);
+  const many = best(cased, 3);
+  const fmt = (x: ReturnType<typeof run>) =>
+    `${x.ms.toFixed(0)} ms (factorise+solves ${(x.phases.factorise ?? 0).toFixed(0)}, recover ${(x.phases.recover ?? 0).toFixed(0)}, json ${(x.phases.output ?? 0).toFixed(0)}; ${(x.chars / 1e6).toFixed(1)} MB of JSON)`;
+  console.log(`1e4-station gear tree, one plain solve + JSON: ${fmt(one)}`);
+  console.log(`same, 10 load cases, 1,000 combinations + JSON with the envelope: ${fmt(many)}`);
+  console.log(`ratio: ${(many.ms / one.ms).toFixed(0)}x one plain solve, ${(many.ms / one.ms / 1000).toFixed(2)} plain solves per combination`);
+}
+
 function main(): void {
+  if (process.argv.includes('--combinations')) {
+    benchCombinations();
+    return;
+  }
   const quick = process.argv.includes('--quick');
   const sizes = quick ? [1e3, 1e4, 1e5] : [1e3, 1e4, 1e5, 1e6];
   console.log(`Engine benchmark (node ${process.version}); parse = normalising the JSON, excluded from the solve times`);

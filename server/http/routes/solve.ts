@@ -13,6 +13,7 @@ import { Readable } from 'node:stream';
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import type { FastifyReply } from 'fastify';
 import rateLimit from '@fastify/rate-limit';
+import Type from 'typebox';
 import { Model } from '../../../shared-types/model.js';
 import { Solution, type Solution as SolutionT } from '../../../shared-types/solution.js';
 import { solveModelJson, Workspace } from '../../engine/index.js';
@@ -75,26 +76,34 @@ const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) =
         summary: 'Solve a model',
         description:
           'Answers the solution (SI units). 400 names the field by JSON pointer; 422 names the shafts of a mechanism or the connections of a loop that cannot close; 413 for a model over the size limits.',
+        querystring: Type.Object(
+          {
+            combination: Type.Optional(
+              Type.String({ minLength: 1, maxLength: 100, description: 'A model with load cases: the combination the top-level results show (default: the first).' }),
+            ),
+          },
+        ),
         body: Model,
         response: { 200: Solution, ...errorResponses(400, 401, 413, 422, 429, 503, 504) },
       },
     },
     async (req, reply) => {
       const body: unknown = req.body;
+      const combination = req.query.combination;
       if (body instanceof DeferredBody) {
         // Too large to parse here without stalling other requests: the worker parses, checks and solves.
-        const chunks = await opts.pool.run({ kind: 'bytes', bytes: body.bytes, limits: opts.limits });
+        const chunks = await opts.pool.run({ kind: 'bytes', bytes: body.bytes, limits: opts.limits, combination });
         return sendChunks(reply, chunks ?? []);
       }
       const size = checkSize(body, opts.limits);
       if (size.stations > opts.workerThreshold) {
-        const chunks = await opts.pool.run({ kind: 'model', model: body });
+        const chunks = await opts.pool.run({ kind: 'model', model: body, combination });
         return sendChunks(reply, chunks ?? []);
       }
       // The engine writes the JSON text itself (the text JSON.stringify would give the solution object);
       // Fastify sends a string as it is, so the type provider is told it is the Solution it encodes.
       let text = '';
-      solveModelJson(body, (piece) => (text += piece), { workspace }, Infinity);
+      solveModelJson(body, (piece) => (text += piece), { workspace, combination }, Infinity);
       return reply.type('application/json; charset=utf-8').send(text as unknown as SolutionT);
     },
   );

@@ -1,0 +1,79 @@
+/**
+ * The command line with load cases: tables per combination and the envelope,
+ * `--combination ID` for one combination's full tables, JSON and CSV of the
+ * combination named, and an unknown id refused.
+ */
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { runCli } from '../../server/cli.js';
+import { formatReport } from '../../server/report.js';
+import { solveModel } from '../../server/engine/index.js';
+
+async function run(args: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = '';
+  let err = '';
+  const code = await runCli(args, (s) => (out += s + '\n'), (s) => (err += s + '\n'));
+  return { code, out, err };
+}
+
+/** A cantilever 1 m long: 100 N·m at mid-span (case run), 10 N·m/m over its length (case jam). */
+const model = {
+  format: 'shaftnet/1',
+  name: 'Cantilever with two load cases',
+  materials: [{ id: 'st', G: 80e9, allowableShear: 60e6 }],
+  sections: [{ id: 's', shape: 'solid', d: 0.05 }],
+  shafts: [{ id: 'a', segments: [{ length: 1, section: 's', material: 'st' }] }],
+  supports: [{ id: 'L', shaft: 'a', at: 0, kind: 'fixed' }],
+  loadCases: [{ id: 'run' }, { id: 'jam' }],
+  torques: [{ id: 't1', case: 'run', shaft: 'a', at: 0.5, torque: 100 }],
+  distributedTorques: [{ id: 'd1', case: 'jam', shaft: 'a', from: 0, to: 1, start: 10, end: 10 }],
+  combinations: [
+    { id: 'service', name: 'Service', factors: { run: 1 } },
+    { id: 'peak', factors: { run: 1.5, jam: 2 } },
+  ],
+};
+
+function file(): string {
+  const dir = mkdtempSync(join(tmpdir(), 'shaftnet-cli-cases-'));
+  const path = join(dir, 'model.json');
+  writeFileSync(path, JSON.stringify(model));
+  return path;
+}
+
+describe('shaftnet solve with load cases', () => {
+  it('tables per combination and the envelope (root reactions −100 and −170 N·m: statics of a cantilever)', async () => {
+    const r = await run(['solve', file()]);
+    expect(r.code).toBe(0);
+    expect(r.out).toContain('2 load combinations');
+    expect(r.out).toContain('Combination service (Service)');
+    expect(r.out).toContain('Combination peak');
+    // Reactions in N*m with 4 significant digits: −1.5·100 − 2·10·1 = −170 in "peak".
+    expect(r.out).toMatch(/\nL\s+-100\n/);
+    expect(r.out).toMatch(/\nL\s+-170\n/);
+    expect(r.out).toContain('Envelope over the combinations: extreme reactions');
+    expect(r.out).toMatch(/\nL\s+-170\s+peak\s+-100\s+service\n/);
+    // The segment envelope: the peak |T| at the root is 170 N·m, in "peak".
+    expect(r.out).toMatch(/a\[0\]\s+170\s+peak\s+st/);
+  });
+
+  it('--combination ID prints that combination\'s full tables, as the report of a solve showing it', async () => {
+    const r = await run(['solve', file(), '--combination', 'peak']);
+    expect(r.code).toBe(0);
+    expect(r.out).toBe(formatReport(model, solveModel(model, { combination: 'peak' }), 'si') + '\n');
+    expect(r.out).toContain('Load combination peak: the tables below are its results');
+    const json = await run(['solve', file(), '--json', '--combination=peak']);
+    expect(JSON.parse(json.out).combination).toBe('peak');
+    expect(JSON.parse(json.out).reactions[0].torque).toBeCloseTo(-170, 9);
+  });
+
+  it('an unknown combination exits 2 naming it; a missing id is a usage error', async () => {
+    const r = await run(['solve', file(), '--combination', 'storm']);
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('"storm"');
+    const u = await run(['solve', file(), '--combination']);
+    expect(u.code).toBe(1);
+    expect(u.err).toContain('--combination takes the id of a combination');
+  });
+});
