@@ -27,6 +27,7 @@ import {
   type Station,
   type StressRaiserResult,
   type Warning,
+  type Overload,
 } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
@@ -40,6 +41,8 @@ export interface Solved {
   readonly maxResidual: number;
   readonly warnings: readonly Warning[];
   readonly stats: Solution['stats'];
+  /** Overload factors of the single load state; absent when no material has shearYield. */
+  readonly overload?: Overload;
 }
 
 /** The field names of one kind of object, in the order they are written. The first is never left out. */
@@ -80,7 +83,7 @@ function rec<T>(...keys: Array<keyof T & string>): Rec {
 }
 
 // The key order of the solution: written here once, for both writers.
-const SOLUTION = rec<Solution>('format', 'name', 'shafts', 'reactions', 'gearMeshes', 'couplings', 'equilibrium', 'checks', 'stressRaisers', 'warnings', 'stats');
+const SOLUTION = rec<Solution>('format', 'name', 'shafts', 'reactions', 'gearMeshes', 'couplings', 'equilibrium', 'checks', 'stressRaisers', 'overload', 'warnings', 'stats');
 const SHAFT = rec<ShaftResult>('id', 'name', 'length', 'stations', 'segments', 'totalTwist', 'diagram');
 const STATION = rec<Station>('z', 'rotation', 'torqueLeft', 'torqueRight');
 const SEGMENT = rec<SegmentResult>(
@@ -123,6 +126,9 @@ const RAISER = rec<StressRaiserResult>(
   'utilisation',
   'note',
 );
+const OVERLOAD = rec<Overload>('firstYieldFactor', 'firstYield', 'collapseFactor', 'plasticAt', 'collapse');
+const FIRST_YIELD = rec<NonNullable<Overload['firstYield']>>('shaft', 'z', 'layer');
+const PLASTIC_AT = rec<Overload['plasticAt'][number]>('shaft', 'z');
 const WARNING = rec<Warning>('code', 'message', 'shafts', 'connections');
 const STATS = rec<Solution['stats']>('stations', 'unknowns', 'factorNonzeros', 'checksEvaluated');
 
@@ -349,6 +355,8 @@ function walkSolution(sv: Solved, w: Writer): void {
     });
     w.close();
   }
+  if (sv.overload === undefined) w.absent();
+  else walkOverload(sv.overload, w);
   w.list();
   for (const x of sv.warnings) {
     w.open(WARNING);
@@ -367,6 +375,31 @@ function walkSolution(sv: Solved, w: Writer): void {
   w.num(sv.stats.factorNonzeros);
   w.num(sv.stats.checksEvaluated);
   w.close();
+  w.close();
+}
+
+/** The overload factors (server/engine/overload.ts). */
+function walkOverload(o: Overload, w: Writer): void {
+  w.open(OVERLOAD);
+  w.optNum(o.firstYieldFactor);
+  if (o.firstYield === null) w.optNum(null);
+  else {
+    w.open(FIRST_YIELD);
+    w.str(o.firstYield.shaft);
+    w.optNum(o.firstYield.z);
+    w.str(o.firstYield.layer);
+    w.close();
+  }
+  w.optNum(o.collapseFactor);
+  w.list();
+  for (const p of o.plasticAt) {
+    w.open(PLASTIC_AT);
+    w.str(p.shaft);
+    w.num(p.z);
+    w.close();
+  }
+  w.close();
+  w.str(o.collapse);
   w.close();
 }
 
