@@ -228,7 +228,7 @@ export function overloadOf(
     firstYield = { shaft: model.shafts[shaft].id, z: uniform ? null : z[left] + bestS, layer: bestLayer };
   }
 
-  const collapse = collapseOf(model, layout, lp, warnings);
+  const collapse = collapseOf(model, layout, lp, warnings, loaded);
   return {
     overload: {
       firstYieldFactor: Number.isFinite(best) ? best : null,
@@ -271,6 +271,7 @@ function collapseOf(
   layout: StationLayout,
   lp: LpSolver,
   warnings: Warning[],
+  loaded: (e: number) => boolean,
 ): { factor: number | null; plasticAt: Array<{ shaft: string; z: number }> } {
   const { z, elemLeft, elemSegment, elemT1, elemT2, shaftOf, shaftStart, dofCount } = layout;
   const elemCount = elemLeft.length;
@@ -278,12 +279,22 @@ function collapseOf(
   const tps = new Float64Array(elemCount);
   let tref = 0;
   let unbounded = 0;
+  const noPlastic = new Set<string>();
   for (let e = 0; e < elemCount; e++) {
     const seg = model.shafts[shaftOf[elemLeft[e]]].segments[elemSegment[e]];
     const tp = plasticTorque(seg);
     tps[e] = tp === null ? Infinity : tp;
-    if (tp === null) unbounded++;
+    if (tp === null && loaded(e)) noPlastic.add(`${model.shafts[shaftOf[elemLeft[e]]].id}[${seg.index}] (section "${seg.sectionId}")`);
+    else if (tp === null) unbounded++;
     else tref = Math.max(tref, tp);
+  }
+  if (noPlastic.size > 0) {
+    // A loaded section without a fully plastic torque (an ellipse: the contract gives no formula).
+    warnings.push({
+      code: 'SN_NO_PLASTIC_TORQUE',
+      message: `collapse factor omitted: segment ${[...noPlastic].join(', ')} carries load and its section has no fully plastic torque`,
+    });
+    return { factor: null, plasticAt: [] };
   }
   if (unbounded > 0) {
     warnings.push({

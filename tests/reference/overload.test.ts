@@ -64,6 +64,34 @@ describe('cantilever bar, torque at the free end: yield and fully plastic torque
   });
 });
 
+describe('non-circular sections', () => {
+  const bar = (section: Record<string, unknown>) =>
+    model('Cantilever, non-circular', {
+      materials: [steel],
+      sections: [section],
+      shafts: [{ id: 's', segments: [{ length: '1 m', section: section.id, material: 'steel' }] }],
+      supports: [{ id: 'A', shaft: 's', at: 0, kind: 'fixed' }],
+      torques: [{ id: 'T', shaft: 's', at: '1 m', torque: '100 N*m' }],
+    });
+
+  it('rectangle 20 × 40 mm collapses at T_p = τ_y b² (3h − b)/6', () => {
+    const o = overload(solveModel(bar({ id: 'r', shape: 'rectangle', width: '40 mm', height: '20 mm' }), { lp }));
+    // closed form (contract, "Overload"; the sand-heap fully plastic torque of a rectangle), b = 20 mm, h = 40 mm
+    const b = 0.02;
+    const h = 0.04;
+    expectClose(o.collapseFactor, (TAU_Y * b * b * (3 * h - b)) / 6 / 100);
+  });
+
+  it('ellipse: no fully plastic torque, so the collapse factor is omitted with SN_NO_PLASTIC_TORQUE; first yield stays', () => {
+    const sol = solveModel(bar({ id: 'e', shape: 'ellipse', width: '40 mm', height: '20 mm' }), { lp });
+    const o = overload(sol);
+    expect(o.collapseFactor).toBeNull();
+    expect(sol.warnings.find((w) => w.code === 'SN_NO_PLASTIC_TORQUE')?.message).toContain('"e"');
+    // closed form: τmax = 2T/(π a c²) (ellipse, semi-axes a = 20 mm, c = 10 mm) reaches τ_y
+    expectClose(o.firstYieldFactor, (TAU_Y * Math.PI * 0.02 * 0.01 ** 2) / 2 / 100);
+  });
+});
+
 describe('stepped bar fixed at both ends, one torque at the step', () => {
   // 50 mm over 0.5 m, 40 mm over 1.5 m, 1 kN·m at the step.
   const m = model('Fixed-fixed stepped', {
