@@ -398,19 +398,25 @@ function collapseOf(
   const mu = first.Columns.mu?.Primal ?? 0;
   const factor = mu * lamOf;
 
-  // Plastic places: at ±T_p in this distribution, and still there when pushed away.
-  const valueAt = (c: Candidate) => (first.Columns[`x${c.e}`]?.Primal ?? 0) + c.coef * mu;
-  const plastic: Array<{ shaft: number; z: number }> = [];
+  // Plastic places: the points at ±T_p in this distribution (no other point can be at ±T_p in
+  // every one) form the set R. Minimise Σ_R sign·T at λ*: if every point of R is still at ±T_p in
+  // the minimum, each is in every distribution (a distribution moving one point of R off ±T_p, the
+  // others at most at ±T_p, would have a smaller sum); those that moved are not, leave R, and the
+  // rest is tested again. Each round drops at least one point; most models need one or two rounds.
+  const columns = (a: LpAnswer) => (c: Candidate) => (a.Columns[`x${c.e}`]?.Primal ?? 0) + c.coef * mu;
   const muFixed = ` mu = ${num(mu)}`;
-  for (const c of candidates) {
-    const v = valueAt(c);
-    if (Math.abs(v) < c.tp * (1 - 1e-7)) continue;
-    const sense = Math.sign(v);
-    const push = lp.solve(body(`Minimize\n obj:${terms([[sense, `x${c.e}`]])}`, muFixed));
-    if (push.Status !== 'Optimal') continue;
-    const least = sense * (push.Columns[`x${c.e}`]?.Primal ?? 0) + sense * c.coef * mu;
-    if (least >= c.tp * (1 - 1e-6)) plastic.push({ shaft: c.shaft, z: c.z });
+  let tight = candidates.map((c) => ({ c, sense: Math.sign(columns(first)(c)) })).filter((t) => Math.abs(columns(first)(t.c)) >= t.c.tp * (1 - 1e-7));
+  while (tight.length > 0) {
+    const coef = new Map<string, number>();
+    for (const t of tight) coef.set(`x${t.c.e}`, (coef.get(`x${t.c.e}`) ?? 0) + t.sense);
+    const push = lp.solve(body(`Minimize\n obj:${terms([...coef.entries()].map(([n, c]) => [c, n] as const))}`, muFixed));
+    if (push.Status !== 'Optimal') throw new Error(`plastic places LP: ${push.Status}`);
+    const at = columns(push);
+    const kept = tight.filter((t) => t.sense * at(t.c) >= t.c.tp * (1 - 1e-6));
+    if (kept.length === tight.length) break;
+    tight = kept;
   }
+  const plastic = tight.map((t) => ({ shaft: t.c.shaft, z: t.c.z }));
   plastic.sort((p, q) => p.shaft - q.shaft || p.z - q.z);
   const plasticAt: Array<{ shaft: string; z: number }> = [];
   for (const p of plastic) {
