@@ -21,8 +21,8 @@
  * Plastic places (binding reading): the points at full plastic torque in EVERY collapse
  * distribution. The feasible distributions at λ* form a convex set, so T at a point ranges over an
  * interval; the point is plastic in all of them when that interval is the single value ±T_p. A
- * point that is not at ±T_p in one optimal distribution cannot be; each point that is gets one more
- * LP at λ* that pushes T there away from ±T_p.
+ * point that is not at ±T_p in one optimal distribution cannot be; those that are are pushed away
+ * from ±T_p together by LPs at λ* (see `collapseOf`), usually one or two.
  *
  * Pure: the LP solver (HiGHS compiled to WebAssembly) is loaded by the caller (`loadLpSolver`) and
  * passed in; nothing here is kept between calls.
