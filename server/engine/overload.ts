@@ -229,6 +229,10 @@ export function overloadOf(
   }
 
   const collapse = collapseOf(model, layout, lp, warnings, loaded);
+  if (!Number.isFinite(best) && collapse.factor !== null) {
+    // Collapse without yield cannot happen: digits were lost on the way.
+    warnings.push({ code: 'SN_OVERLOAD_NUMERICS', message: 'first yield factor omitted: no layer reaches its yield stress in finite numbers' });
+  }
   return {
     overload: {
       firstYieldFactor: Number.isFinite(best) ? best : null,
@@ -392,11 +396,24 @@ function collapseOf(
   const body = (objective: string, muBound: string) =>
     `${objective}\nSubject To\n${lines.join('\n')}\nBounds\n${bounds.join('\n')}\n${muBound}\nEnd\n`;
 
-  const first = lp.solve(body('Maximize\n obj: + 1 mu', ' mu >= 0'));
+  const numerics = (what: string) => {
+    warnings.push({ code: 'SN_OVERLOAD_NUMERICS', message: `collapse factor omitted: ${what} (sizes or loads many orders of magnitude apart?)` });
+    return { factor: null, plasticAt: [] };
+  };
+  // HiGHS throws on text it cannot read (a number that overflowed): an LP that ended "Error".
+  const solve = (text: string): LpAnswer => {
+    try {
+      return lp.solve(text);
+    } catch {
+      return { Status: 'Error', ObjectiveValue: NaN, Columns: {} };
+    }
+  };
+  const first = solve(body('Maximize\n obj: + 1 mu', ' mu >= 0'));
   if (/unbounded/i.test(first.Status)) return { factor: null, plasticAt: [] };
-  if (first.Status !== 'Optimal') throw new Error(`collapse LP: ${first.Status}`);
+  if (first.Status !== 'Optimal') return numerics(`the linear program ended "${first.Status}"`);
   const mu = first.Columns.mu?.Primal ?? 0;
   const factor = mu * lamOf;
+  if (!Number.isFinite(factor) || !(factor > 0)) return numerics(`the factor came out as ${factor}`);
 
   // Plastic places: the points at ±T_p in this distribution (no other point can be at ±T_p in
   // every one) form the set R. Minimise Σ_R sign·T at λ*: if every point of R is still at ±T_p in
@@ -409,8 +426,11 @@ function collapseOf(
   while (tight.length > 0) {
     const coef = new Map<string, number>();
     for (const t of tight) coef.set(`x${t.c.e}`, (coef.get(`x${t.c.e}`) ?? 0) + t.sense);
-    const push = lp.solve(body(`Minimize\n obj:${terms([...coef.entries()].map(([n, c]) => [c, n] as const))}`, muFixed));
-    if (push.Status !== 'Optimal') throw new Error(`plastic places LP: ${push.Status}`);
+    const push = solve(body(`Minimize\n obj:${terms([...coef.entries()].map(([n, c]) => [c, n] as const))}`, muFixed));
+    if (push.Status !== 'Optimal') {
+      warnings.push({ code: 'SN_OVERLOAD_NUMERICS', message: `plastic places omitted: the linear program ended "${push.Status}"` });
+      return { factor, plasticAt: [] };
+    }
     const at = columns(push);
     const kept = tight.filter((t) => t.sense * at(t.c) >= t.c.tp * (1 - 1e-6));
     if (kept.length === tight.length) break;
