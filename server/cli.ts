@@ -14,7 +14,7 @@ import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 import { ModelError } from '../shared-types/errors.js';
 import { UNIT_SYSTEMS, isUnitSystem, writeStationCsv, type UnitSystem } from '../shared-types/present.js';
-import { normaliseModel, solveModel, solveModelJson, withSolved } from './engine/index.js';
+import { loadLpSolver, normaliseModel, solveModel, solveModelJson, withSolved } from './engine/index.js';
 import { formatCombinationsReport, formatIssue, formatReport, solvedStationColumns } from './report.js';
 
 const USAGE = `usage:
@@ -113,7 +113,7 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       err(`${path}: not valid JSON (${(e as Error).message})`);
       return 2;
     }
-    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const), combination: args.combination };
+    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const), combination: args.combination, lp: await loadLpSolver() };
     if (args.output === 'tables') {
       const solution = solveModel(model, options);
       const all = solution.combinations !== undefined && args.combination === undefined;

@@ -163,6 +163,22 @@ export const Warning = Type.Object({
 });
 export type Warning = Static<typeof Warning>;
 
+/**
+ * Overload factors (contract, "Overload"): the factor on the loads, the assembled state held, at
+ * first yield and at plastic collapse (lower-bound theorem, an LP), and where.
+ */
+export const Overload = Type.Object({
+  firstYieldFactor: Type.Union([Num, Type.Null()]),
+  /** z is null where a whole segment reaches yield at once (uniform torque). */
+  firstYield: Type.Union([Type.Object({ shaft: Type.String(), z: Type.Union([Num, Type.Null()]), layer: Type.String() }), Type.Null()]),
+  collapseFactor: Type.Union([Num, Type.Null()]),
+  /** Places at full plastic torque in every collapse distribution. */
+  plasticAt: Type.Array(Type.Object({ shaft: Type.String(), z: Num })),
+  /** 'none' (collapseFactor null) when no collapse mechanism exists, or the factors are omitted (a warning says why). */
+  collapse: Type.Union([Type.Literal('mechanism'), Type.Literal('none')]),
+});
+export type Overload = Static<typeof Overload>;
+
 /** One combination's results (a model with load cases): what is not station by station. */
 export const CombinationResult = Type.Object({
   id: Type.String(),
@@ -234,6 +250,8 @@ export const Solution = Type.Object(
     checks: Type.Array(CheckResult),
     /** Only when the model has stress raisers. */
     stressRaisers: Type.Optional(Type.Array(StressRaiserResult)),
+    /** Only when some material has shearYield. */
+    overload: Type.Optional(Overload),
     /** A model with load cases: every combination's results, and the envelope over them. */
     combinations: Type.Optional(Type.Array(CombinationResult)),
     envelope: Type.Optional(EnvelopeResult),

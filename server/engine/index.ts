@@ -8,12 +8,14 @@ import { solvePipeline, type SolvePhase } from './pipeline.js';
 import { toSolution, writeSolutionJson, type Solved } from './output.js';
 import { assertFiniteResults } from './finite-guard.js';
 import { Workspace } from './workspace.js';
+import { withOverload, type LpSolver } from './overload.js';
 
 export { normaliseModel } from './normalise.js';
 export type { ResolvedModel } from './normalise.js';
 export type { Solved } from './output.js';
 export type { SolvePhase } from './pipeline.js';
 export { Workspace } from './workspace.js';
+export { loadLpSolver, type LpSolver } from './overload.js';
 
 /** Options of a solve. */
 export interface SolveOptions {
@@ -35,6 +37,11 @@ export interface SolveOptions {
    * (a solve inside another's output), the solve makes its own.
    */
   workspace?: Workspace;
+  /**
+   * A loaded LP solver (`await loadLpSolver()`, once per process): with it, and some material with
+   * shearYield, the solution has `overload` (first yield and plastic collapse factors).
+   */
+  lp?: LpSolver;
 }
 
 /** Solves a model (raw JSON, units as typed). Throws ModelError for a model it cannot solve. */
@@ -64,7 +71,7 @@ export function solveModelJson(model: unknown, sink: (text: string) => void, opt
 export function withSolved<T>(model: ResolvedModel, options: SolveOptions, use: (solved: Solved) => T): T {
   const ws = options.workspace && !options.workspace.busy ? options.workspace : new Workspace();
   return ws.session(() => {
-    const solved = solvePipeline(model, options, ws);
+    const solved = withOverload(solvePipeline(model, options, ws), options.lp, options);
     assertFiniteResults(solved);
     const t0 = options.onPhase ? performance.now() : 0;
     const answer = use(solved);

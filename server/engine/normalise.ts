@@ -32,7 +32,7 @@ export interface ResolvedSegment {
   /** max over layers of G·r_outer / ΣGJ: τ_peak = factor · |T|, 1/m³. */
   readonly shearFactor: number;
   /** A section of the non-circular shapes: its polar moment (m⁴, null if not given) and modulus Wt (m³). */
-  readonly shape?: { readonly polarMoment: number | null; readonly torsionalModulus: number };
+  readonly shape?: { readonly polarMoment: number | null; readonly torsionalModulus: number; readonly plasticModulus?: number | null };
   /** A tapered segment (`layers`, `rigidity` and `shearFactor` are then those at its start). */
   readonly taper?: ResolvedTaper;
 }
@@ -424,7 +424,7 @@ class Resolver {
         layers = this.sectionLayers(si, seg.material, sp);
       }
       const props = si === undefined ? undefined : this.shapeProps.get(si);
-      const shape = props === undefined ? undefined : { polarMoment: props.polarMoment, torsionalModulus: props.torsionalModulus };
+      const shape = props === undefined ? undefined : { polarMoment: props.polarMoment, torsionalModulus: props.torsionalModulus, plasticModulus: props.plasticModulus };
       const taper = seg.sectionEnd === undefined ? undefined : this.taper(seg.sectionEnd, si, layers, seg.material, length, sp);
       const rigidity = layers.reduce((sum, l) => sum + l.G * l.J, 0);
       const shearFactor = layers.reduce((mx, l) => Math.max(mx, l.G * l.rOuter), 0) / rigidity;

@@ -29,6 +29,7 @@ import {
   type Station,
   type StressRaiserResult,
   type Warning,
+  type Overload,
 } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
@@ -43,6 +44,8 @@ export interface Solved {
   readonly maxResidual: number;
   readonly warnings: readonly Warning[];
   readonly stats: Solution['stats'];
+  /** Overload factors of the single load state; absent when no material has shearYield. */
+  readonly overload?: Overload;
   /** A model with load cases: the combination shown at the top level, every combination, and the envelope. */
   readonly cases?: { readonly combination: string; readonly combinations: readonly CombinationSolved[]; readonly envelope: Envelope };
 }
@@ -96,6 +99,7 @@ const SOLUTION = rec<Solution>(
   'equilibrium',
   'checks',
   'stressRaisers',
+  'overload',
   'combinations',
   'envelope',
   'warnings',
@@ -143,6 +147,9 @@ const RAISER = rec<StressRaiserResult>(
   'utilisation',
   'note',
 );
+const OVERLOAD = rec<Overload>('firstYieldFactor', 'firstYield', 'collapseFactor', 'plasticAt', 'collapse');
+const FIRST_YIELD = rec<NonNullable<Overload['firstYield']>>('shaft', 'z', 'layer');
+const PLASTIC_AT = rec<Overload['plasticAt'][number]>('shaft', 'z');
 const WARNING = rec<Warning>('code', 'message', 'shafts', 'connections');
 const STATS = rec<Solution['stats']>('stations', 'unknowns', 'factorNonzeros', 'checksEvaluated');
 
@@ -359,6 +366,8 @@ function walkSolution(sv: Solved, w: Writer): void {
     });
     w.close();
   }
+  if (sv.overload === undefined) w.absent();
+  else walkOverload(sv.overload, w);
   if (sv.cases === undefined) {
     w.absent();
     w.absent();
@@ -561,6 +570,31 @@ function writeEnvelope(w: Writer, sv: Solved, env: Envelope): void {
     w.close();
   });
   w.close();
+  w.close();
+}
+
+/** The overload factors (server/engine/overload.ts). */
+function walkOverload(o: Overload, w: Writer): void {
+  w.open(OVERLOAD);
+  w.optNum(o.firstYieldFactor);
+  if (o.firstYield === null) w.optNum(null);
+  else {
+    w.open(FIRST_YIELD);
+    w.str(o.firstYield.shaft);
+    w.optNum(o.firstYield.z);
+    w.str(o.firstYield.layer);
+    w.close();
+  }
+  w.optNum(o.collapseFactor);
+  w.list();
+  for (const p of o.plasticAt) {
+    w.open(PLASTIC_AT);
+    w.str(p.shaft);
+    w.num(p.z);
+    w.close();
+  }
+  w.close();
+  w.str(o.collapse);
   w.close();
 }
 

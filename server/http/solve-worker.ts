@@ -8,7 +8,7 @@
  */
 import { parentPort } from 'node:worker_threads';
 import { ModelError } from '../../shared-types/errors.js';
-import { solveModelJson } from '../engine/index.js';
+import { loadLpSolver, solveModelJson } from '../engine/index.js';
 import { Workspace } from '../engine/workspace.js';
 import { normaliseModel } from '../engine/normalise.js';
 import { HttpError } from './errors.js';
@@ -18,6 +18,8 @@ import type { WorkerJob, WorkerReply } from './solver-pool.js';
 const COPY_BELOW = 64 * 1024; // bytes: smaller chunks are copied (they may share a pooled ArrayBuffer)
 /** This worker's work memory: its small chunks stay warm; its large slab is dropped after each job. */
 const workspace = new Workspace();
+/** The LP solver of the overload factors, loaded once per worker. */
+const lp = await loadLpSolver();
 
 function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
   try {
@@ -43,7 +45,7 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
         chunks.push(new Uint8Array(c.buffer, c.byteOffset, c.byteLength));
         transfer.add(c.buffer as ArrayBuffer);
       }
-    }, { workspace, combination: job.combination });
+    }, { workspace, combination: job.combination, lp });
     return { reply: { id: job.id, ok: true, chunks }, transfer: [...transfer] };
   } catch (err) {
     if (err instanceof HttpError || err instanceof ModelError) {

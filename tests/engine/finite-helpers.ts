@@ -62,6 +62,17 @@ function nullAllowed(root: unknown, p: string[]): boolean {
     if (key === 'allowableShear' || key === 'shearYield') return true;
     if (key === 'utilisation') return (at(p.slice(0, 6)) as { allowableShear: unknown }).allowableShear === null;
   }
+  // overload (README, "Overload"): z of a whole segment yielding at once; a collapse factor only
+  // with collapse "mechanism"; first yield only together with no collapse, or factors omitted.
+  if (p[0] === 'overload') {
+    const o = at(['overload']) as { firstYieldFactor: unknown; firstYield: unknown; collapseFactor: unknown; collapse: string };
+    const warned = (at(['warnings']) as Array<{ code: string }>).some((w) => w.code === 'SN_NO_YIELD' || w.code === 'SN_OVERLOAD_NUMERICS');
+    if (p.length === 3 && p[1] === 'firstYield' && key === 'z') return true;
+    if (p.length === 2 && key === 'collapseFactor') return o.collapse === 'none';
+    if (p.length === 2 && (key === 'firstYieldFactor' || key === 'firstYield')) {
+      return o.firstYieldFactor === null && o.firstYield === null && (o.collapseFactor === null || warned);
+    }
+  }
   return false;
 }
 

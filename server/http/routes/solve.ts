@@ -16,7 +16,7 @@ import rateLimit from '@fastify/rate-limit';
 import Type from 'typebox';
 import { Model } from '../../../shared-types/model.js';
 import { Solution, type Solution as SolutionT } from '../../../shared-types/solution.js';
-import { solveModelJson, Workspace } from '../../engine/index.js';
+import { loadLpSolver, solveModelJson, Workspace } from '../../engine/index.js';
 import { HttpError } from '../errors.js';
 import { errorResponses } from '../schemas.js';
 import { checkSize, type SizeLimits } from '../solve-core.js';
@@ -55,6 +55,8 @@ function sendChunks(reply: FastifyReply, chunks: Buffer[]): FastifyReply {
 const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) => {
   /** The request thread's work memory, kept warm between its small solves. */
   const workspace = new Workspace();
+  /** The LP solver of the overload factors, loaded once with the routes. */
+  const lp = await loadLpSolver();
   if (opts.rateLimitPerMinute > 0) {
     await app.register(rateLimit, {
       global: true, // within this plugin only: the solve route
@@ -103,7 +105,7 @@ const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) =
       // The engine writes the JSON text itself (the text JSON.stringify would give the solution object);
       // Fastify sends a string as it is, so the type provider is told it is the Solution it encodes.
       let text = '';
-      solveModelJson(body, (piece) => (text += piece), { workspace, combination }, Infinity);
+      solveModelJson(body, (piece) => (text += piece), { workspace, combination, lp }, Infinity);
       return reply.type('application/json; charset=utf-8').send(text as unknown as SolutionT);
     },
   );
