@@ -296,7 +296,7 @@ export class SnResults extends LitElement {
             const k = CHECK_KIND[c.kind] ?? { label: c.kind, kind: 'stress' };
             const u = c.utilisation;
             const over = !c.pass;
-            return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'}>
+            return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'} data-shaft=${c.shaft} data-segment=${c.segment ?? ''}>
               <td>${c.shaft}</td><td>${c.segment === undefined ? '—' : c.segment + 1}</td>
               <td>${c.layer === undefined ? '—' : `${c.layer + 1}${c.material ? ` (${c.material})` : ''}`}</td>
               <td>${checkLabel(c, k.label)}</td>
@@ -318,7 +318,7 @@ export class SnResults extends LitElement {
     const g = governingOf(s, c);
     if (!g) return html`<td class="muted">—</td>`;
     const over = g.utilisation !== null && g.utilisation > 1;
-    return html`<td class="governs ${over ? 'fail' : ''}" data-governing=${g.combination}>
+    return html`<td class="governs ${over ? 'fail' : ''}" data-governing=${g.combination} data-utilisation=${g.utilisation ?? ''}>
       ${over ? html`<span aria-hidden="true">⚠ </span>` : nothing}${combinationName(s, g.combination)}${g.utilisation === null ? '' : `: ${formatNumber(g.utilisation * 100, 3)} %`}${over ? ' EXCEEDS' : ''}
     </td>`;
   }
