@@ -133,7 +133,7 @@ export function governingOf(s: CasesSolution, c: AnyCheck): Governing | null {
 }
 
 function placeText(shaft: string, z: number | null, system: UnitSystem): string {
-  return z === null ? `along ${shaft}` : `${shaft} at z = ${formatQuantity(z, 'length', system, 4)}`;
+  return z === null ? `all along shaft ${shaft}` : `shaft ${shaft} at z = ${formatQuantity(z, 'length', system, 4)}`;
 }
 
 /**

@@ -85,6 +85,9 @@ export class SnResults extends LitElement {
     .overload { border-left: 3px solid #1d3a4a; padding: 2px 8px; margin: 6px 0 8px; }
     .overload p { margin: 2px 0; }
     .overload-line { font-size: 13.5px; color: #1d3a4a; }
+    td.governs { white-space: normal; min-width: 7em; max-width: 10em; }
+    .nowrap { white-space: nowrap; }
+    .wide { overflow-x: auto; max-width: 100%; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
     @media print { .banner.fresh, .readout.idle { display: none; } .body.dim { opacity: 1; filter: none; } }
   `;
@@ -288,7 +291,7 @@ export class SnResults extends LitElement {
     const combos = (cs.combinations ?? []).length > 0;
     const shownIn = combos && cs.combination !== undefined ? ` (${combinationName(cs, cs.combination)})` : '';
     return html`<h3>Checks, worst first${shownIn}</h3>
-      <table class="checks">
+      <div class="wide"><table class="checks">
         <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value of allowed</th><th>Utilisation</th><th>Status</th>
           ${combos ? html`<th title="The combination where this check is worst, and its utilisation there">Worst in</th>` : nothing}</tr></thead>
         <tbody>
@@ -307,7 +310,7 @@ export class SnResults extends LitElement {
             </tr>`;
           })}
         </tbody>
-      </table>
+      </table></div>
       ${sorted.length > rows.length
         ? html`<button class="more" @click=${() => (this.allChecks = true)}>Show all ${sorted.length} checks</button>`
         : nothing}`;
@@ -319,7 +322,7 @@ export class SnResults extends LitElement {
     if (!g) return html`<td class="muted">—</td>`;
     const over = g.utilisation !== null && g.utilisation > 1;
     return html`<td class="governs ${over ? 'fail' : ''}" data-governing=${g.combination} data-utilisation=${g.utilisation ?? ''}>
-      ${over ? html`<span aria-hidden="true">⚠ </span>` : nothing}${combinationName(s, g.combination)}${g.utilisation === null ? '' : `: ${formatNumber(g.utilisation * 100, 3)} %`}${over ? ' EXCEEDS' : ''}
+      ${over ? html`<span aria-hidden="true">⚠ </span>` : nothing}${combinationName(s, g.combination)}${g.utilisation === null ? '' : html`: <span class="nowrap">${formatNumber(g.utilisation * 100, 3)} %</span>`}${over ? ' EXCEEDS' : ''}
     </td>`;
   }
 

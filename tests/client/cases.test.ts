@@ -176,13 +176,13 @@ describe('the overload sentence', () => {
   it('says how far the loads can grow before first yield and before collapse, and where', () => {
     const s = overloadSentence(o, 'Peak', 'si');
     expect(s.line).toBe('The loads of Peak can grow 1.84× before the first fibre yields, 2.61× before the shafts collapse.');
-    expect(s.where).toBe('First yield: line at z = 300 mm, layer steel. Fully plastic at collapse: line at z = 0 mm; line at z = 300 mm.');
+    expect(s.where).toBe('First yield: shaft line at z = 300 mm, layer steel. Fully plastic at collapse: shaft line at z = 0 mm; shaft line at z = 300 mm.');
   });
 
   it('says so when no collapse mechanism exists, and where a whole segment yields at once', () => {
     const s = overloadSentence({ ...o, firstYield: { shaft: 'line', z: null, layer: 'steel' }, collapseFactor: null, plasticAt: [], collapse: 'none' }, null, 'si');
     expect(s.line).toBe('The loads can grow 1.84× before the first fibre yields, and no collapse mechanism exists.');
-    expect(s.where).toBe('First yield: along line, layer steel.');
+    expect(s.where).toBe('First yield: all along shaft line, layer steel.');
   });
 
   it('points to the warning when a material has no yield stress', () => {
