@@ -368,7 +368,8 @@ export class SnResults extends LitElement {
       <h4>${sh.name ? `${sh.name} (${sh.id})` : sh.id}
         <span class="muted">— length ${formatValue(sh.length, 'length', this.system)} ${this.unit('length')}, largest relative twist
         ${formatValue(sh.totalTwist, 'angle', this.system, 4)} ${this.unit('angle')}</span></h4>
-      <sn-segment-table .shaft=${sh} .system=${this.system} .sections=${(this.model?.sections ?? []) as unknown as SectionLike[]}></sn-segment-table>
+      <sn-segment-table .shaft=${sh} .system=${this.system} .sections=${(this.model?.sections ?? []) as unknown as SectionLike[]}
+        .envelope=${env} .names=${this.combinationNames(cs)}></sn-segment-table>
       ${this.readout(sh, cz)}
       <div class="plots" @sn-cursor=${onCursor}>
         <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label=${`Internal torque T${of}`} color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks} .cursor=${cz} .band=${tBand}></sn-plot>
@@ -378,6 +379,14 @@ export class SnResults extends LitElement {
       </div>
       <sn-station-table .shaft=${sh} .system=${this.system}></sn-station-table>
     </div>`;
+  }
+
+  private namesCache: { s: CasesSolution | null; names: Readonly<Record<string, string>> } = { s: null, names: {} };
+
+  /** Combination names by id (the same object for the same solution, so the segment tables do not re-render for it). */
+  private combinationNames(s: CasesSolution | null): Readonly<Record<string, string>> {
+    if (this.namesCache.s !== s) this.namesCache = { s, names: Object.fromEntries((s?.combinations ?? []).map((c) => [c.id, c.name ?? c.id])) };
+    return this.namesCache.names;
   }
 
   /** T, φ and τ of a shaft at the cursor's z, or how to get a reading. */

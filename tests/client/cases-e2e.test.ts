@@ -246,6 +246,12 @@ describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromiu
     const u2 = (16 * peak(STOP, [0.6, 0.85])) / (Math.PI * 0.05 ** 3) / 55e6;
     close(Number(await gov(1).getAttribute('data-utilisation')), u2);
     expect(await gov(1).innerText()).toMatch(/^Emergency stop: 29\.\d+ %$/); // 16.2 MPa of 55 MPa
+    // The segment table names the same combinations with each segment's worst |T|.
+    const worst = (segment: number) => page.locator(`sn-results .shaft[data-shaft="line"] sn-segment-table tr[data-segment="${segment}"] td[data-worst-combination]`);
+    expect(await worst(0).getAttribute('data-worst-combination')).toBe(seg1);
+    expect(await worst(1).getAttribute('data-worst-combination')).toBe(seg2);
+    close(Number(await worst(0).getAttribute('data-worst')), peak(SERVICE, [0.15, 0.4])); // 302.4 N·m
+    close(Number(await worst(1).getAttribute('data-worst')), peak(STOP, [0.6, 0.85])); // 393 N·m
     await page.locator('sn-results table.checks').scrollIntoViewIfNeeded();
     await shot('31-cases-checks-1366');
     await page.locator('sn-results .shaft[data-shaft="line"] sn-plot').first().scrollIntoViewIfNeeded();
