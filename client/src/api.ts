@@ -93,7 +93,8 @@ const enc = encodeURIComponent;
 /** One function per route of the API. */
 export const api = {
   health: () => call<unknown>('GET', '/api/health'),
-  solve: (model: Model, signal?: AbortSignal) => call<Solution>('POST', '/api/solve', model, signal),
+  solve: (model: Model, signal?: AbortSignal, combination?: string) =>
+    call<Solution>('POST', combination ? `/api/solve?combination=${enc(combination)}` : '/api/solve', model, signal),
   listModels: (q = '', archived = false) =>
     call<ModelList>('GET', `/api/models?q=${enc(q)}&archived=${archived ? 'true' : 'false'}`),
   getModel: (id: string) => call<StoredModel>('GET', `/api/models/${enc(id)}`),

@@ -23,7 +23,9 @@ export type ListName =
   | 'gearMeshes'
   | 'couplings'
   | 'discs'
-  | 'stressRaisers';
+  | 'stressRaisers'
+  | 'loadCases'
+  | 'combinations';
 
 /** A stress raiser of the model format (issue 10): declared here until the shared model type has it. */
 export interface StressRaiserRow {
@@ -116,6 +118,8 @@ const ID_PREFIX: Record<ListName, string> = {
   couplings: 'C',
   discs: 'D',
   stressRaisers: 'K',
+  loadCases: 'case',
+  combinations: 'combo',
 };
 
 /** A new row for a list, with a fresh id and values that reference existing items. */
@@ -144,7 +148,43 @@ export function newRow(model: EditModel, list: ListName): Record<string, Json> {
       return { id, shaft, at: 0, inertia: '0.1 kg*m2' };
     case 'stressRaisers':
       return { id, shaft, at: firstBoundary(model), kind: 'factor', factor: 2 };
+    case 'loadCases':
+      return { id };
+    case 'combinations':
+      // Every case at factor 1: the plain sum, to be edited in the factor grid.
+      return { id, factors: Object.fromEntries(loadCasesOf(model).map((c) => [c.id, 1])) };
   }
+}
+
+/** A load case of the model format (issue 11): declared here until the shared model type has it. */
+export interface LoadCaseRow { id: string; name?: string }
+/** A combination of the model format (issue 11): factors by case id (a missing case counts 0). */
+export interface CombinationRow { id: string; name?: string; factors: Record<string, number> }
+
+/** The model's load cases (none: the model has one load state). */
+export function loadCasesOf(model: EditModel): LoadCaseRow[] {
+  return ((model as { loadCases?: LoadCaseRow[] }).loadCases ?? []) as LoadCaseRow[];
+}
+
+/** The model's combinations as given (without them each case is its own combination). */
+export function combinationsOf(model: EditModel): CombinationRow[] {
+  return ((model as { combinations?: CombinationRow[] }).combinations ?? []) as CombinationRow[];
+}
+
+/** The load lists that carry a `case` when the model has load cases. */
+const CASED: readonly ListName[] = ['torques', 'distributedTorques'];
+
+/** Sets (or with undefined removes) `case` on every point and distributed torque. */
+function setCaseOnLoads(model: EditModel, pick: (current: Json | undefined) => Json | undefined): EditModel {
+  let out = model;
+  for (const list of CASED) {
+    const rows = (out as Record<string, unknown>)[list] as Array<Record<string, Json>> | undefined;
+    rows?.forEach((row, i) => {
+      const next = pick(row.case);
+      if (next !== row.case) out = setIn(out, [list, i, 'case'], next as Json);
+    });
+  }
+  return out;
 }
 
 /** Where a new stress raiser goes: the first segment boundary of the first shaft (a shoulder's place), else z = 0. */
@@ -244,7 +284,18 @@ export function insertRow(model: EditModel, listPointer: string, row: Json, inde
   const keys = parsePointer(listPointer);
   const list = (getAt(model, keys) as Json[] | undefined) ?? [];
   const at = index === undefined ? list.length : Math.max(0, Math.min(index, list.length));
-  return setIn(model, keys, [...list.slice(0, at), row, ...list.slice(at)]);
+  let out = setIn(model, keys, [...list.slice(0, at), row, ...list.slice(at)]);
+  if (listPointer === '/loadCases' && list.length === 0) {
+    // The first case: every load so far belongs to it (the contract wants a case on every load).
+    const id = (row as { id: string }).id;
+    out = setCaseOnLoads(out, () => id);
+  }
+  if (CASED.some((l) => listPointer === `/${l}`)) {
+    const first = loadCasesOf(out)[0]?.id;
+    const added = getAt(out, [...keys, at]) as Record<string, Json>;
+    if (first !== undefined && added.case === undefined) out = setIn(out, [...keys, at, 'case'], first);
+  }
+  return out;
 }
 
 /** Removes the row at `index` of the array at `listPointer`; an emptied optional list is dropped. */
@@ -252,7 +303,26 @@ export function removeRow(model: EditModel, listPointer: string, index: number):
   const keys = parsePointer(listPointer);
   const list = (getAt(model, keys) as Json[] | undefined) ?? [];
   const next = list.filter((_, i) => i !== index);
-  return setIn(model, keys, next);
+  // An emptied list of combinations goes: each case is then its own combination.
+  const out = setIn(model, keys, listPointer === '/combinations' && next.length === 0 ? undefined : next);
+  if (listPointer !== '/loadCases') return out;
+  return withoutCase(out, (list[index] as { id?: string } | undefined)?.id ?? '');
+}
+
+/**
+ * After a load case is removed: its factor leaves every combination; with no
+ * case left the loads lose their `case` and the combinations go (one load state again).
+ */
+function withoutCase(model: EditModel, id: string): EditModel {
+  if (loadCasesOf(model).length === 0) {
+    const out = setCaseOnLoads(model, () => undefined);
+    return setIn(setIn(out, ['loadCases'], undefined), ['combinations'], undefined);
+  }
+  let out = model;
+  combinationsOf(model).forEach((c, i) => {
+    if (c.factors && id in c.factors) out = setIn(out, ['combinations', i, 'factors', id], undefined);
+  });
+  return out;
 }
 
 /** The row to add for a list pointer: a top-level list, a shaft's segments, a section's layers. */
@@ -385,6 +455,20 @@ export function applyEdit(model: EditModel, pointer: string, value: Json): EditM
     let out = setIn(model, keys, value);
     if (typeof value === 'string' && value !== '' && from !== value) {
       for (const f of REFERENCES[list]) out = f(out, from, value);
+    }
+    return out;
+  }
+  if (keys.length === 3 && field === 'id' && row && list === 'loadCases') {
+    const from = row.id as string;
+    let out = setIn(model, keys, value);
+    if (typeof value === 'string' && value !== '' && from !== value) {
+      out = setCaseOnLoads(out, (c) => (c === from ? value : c));
+      combinationsOf(out).forEach((c, i) => {
+        if (c.factors && from in c.factors) {
+          const factors = Object.fromEntries(Object.entries(c.factors).map(([k, f]) => [k === from ? value : k, f]));
+          out = setIn(out, ['combinations', i, 'factors'], factors as Json);
+        }
+      });
     }
     return out;
   }

@@ -14,6 +14,7 @@ import { SolveController, TYPING_DELAY } from './controllers/solve-controller.js
 import { LibraryDocumentController } from './controllers/library-document.js';
 import { ShortcutsController } from './controllers/shortcuts.js';
 import { type IssueMarks, bannerReason, issueMarks } from './issue-text.js';
+import { modelCombinations } from './cases-results.js';
 import './sn-top-bar.js';
 import './sn-editor.js';
 import './sn-schematic.js';
@@ -130,7 +131,7 @@ export class SnApp extends LitElement {
         @sn-command=${this.onCommand} @sn-units=${this.onUnits} @sn-import=${this.onImport}></sn-top-bar>
       ${this.library.loading || !m
         ? html`<div class="loading">${this.library.loading || 'No model.'}</div>`
-        : html`<main @sn-edit=${this.onEdit} @sn-draft=${this.onDraft} @sn-row-add=${this.onRowAdd} @sn-row-remove=${this.onRowRemove} @sn-select=${this.onSelect}>
+        : html`<main @sn-edit=${this.onEdit} @sn-draft=${this.onDraft} @sn-row-add=${this.onRowAdd} @sn-row-remove=${this.onRowRemove} @sn-select=${this.onSelect} @sn-combination=${this.onCombination}>
             <div class="col editor-col">
               <div class="card editor-card">
                 <h2>Model</h2>
@@ -215,6 +216,7 @@ export class SnApp extends LitElement {
   /** The model on screen changed by a committed edit, undo or load: solved at once. */
   private changed(model: EditModel | null): void {
     this.model = model;
+    this.keepCombination(model);
     if (model) this.solver.solve(model);
     else this.solver.clear();
   }
@@ -266,8 +268,24 @@ export class SnApp extends LitElement {
     if (!m) return;
     const { pointer, value } = e.detail;
     // Typed back to what the model holds: solve the model itself (an earlier draft may have been solved).
+    this.keepCombination(m);
     this.solver.solve(sameJson(getAt(m, pointer), value) ? m : applyEdit(m, pointer, value), TYPING_DELAY);
   };
+
+  /** The combination picked for the results: solved again with it shown. */
+  private onCombination = (e: CustomEvent<{ id: string }>): void => {
+    const m = this.model;
+    if (!m) return;
+    this.solver.combination = e.detail.id || undefined;
+    this.keepCombination(m);
+    this.solver.solve(m);
+  };
+
+  /** The picked combination stays only while the model still has it (else the first is shown). */
+  private keepCombination(model: EditModel | null): void {
+    const id = this.solver.combination;
+    if (id !== undefined && !modelCombinations(model).some((c) => c.id === id)) this.solver.combination = undefined;
+  }
 
   private onRowAdd = (e: CustomEvent<RowDetail>): void => {
     const m = this.model;

@@ -1,7 +1,7 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
 import type { Solution } from '../../shared-types/solution.js';
-import { type EditModel, stressRaisersOf } from './model-edits.js';
+import { type EditModel, combinationsOf, loadCasesOf, stressRaisersOf } from './model-edits.js';
 import { SECTION_SHAPES, type SectionLike, type SectionProperties, sectionPropertiesById } from './section-geometry.js';
 import { type Column, type EditDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
@@ -81,6 +81,7 @@ export class SnEditor extends LitElement {
     const shafts = m.shafts.map((s) => s.id);
     const sections = m.sections.map((s) => s.id);
     const materials = m.materials.map((s) => s.id);
+    const cases = loadCasesOf(m).map((c) => c.id);
     return html`
       <details open>
         <summary>Model</summary>
@@ -111,8 +112,9 @@ export class SnEditor extends LitElement {
           </div>`,
         )}`)}
       ${this.section('Supports', 'supports', 'support', (m.supports ?? []) as Row[], supportColumns(shafts), 'Fixed: rotation held (0 unless given). Spring: torque −kφ.')}
-      ${this.section('Point torques', 'torques', 'torque', (m.torques ?? []) as Row[], torqueColumns(shafts), 'A torque, or a power with a speed (torque = power / speed). Right-hand rule about +z.')}
-      ${this.section('Distributed torques', 'distributedTorques', 'distributed torque', (m.distributedTorques ?? []) as Row[], distributedColumns(shafts), 'Linear from start (at "from") to end (at "to").')}
+      ${this.loadCases(m)}
+      ${this.section('Point torques', 'torques', 'torque', (m.torques ?? []) as Row[], torqueColumns(shafts, cases), 'A torque, or a power with a speed (torque = power / speed). Right-hand rule about +z.')}
+      ${this.section('Distributed torques', 'distributedTorques', 'distributed torque', (m.distributedTorques ?? []) as Row[], distributedColumns(shafts, cases), 'Linear from start (at "from") to end (at "to").')}
       ${this.section('Gear meshes', 'gearMeshes', 'gear mesh', (m.gearMeshes ?? []) as Row[], gearColumns(shafts), 'Pitch radius, or teeth with the mesh module. Blank stiffness = rigid. Opposite: external pair; same: internal, belt or chain.')}
       ${this.section('Couplings', 'couplings', 'coupling', (m.couplings ?? []) as Row[], couplingColumns(shafts), 'Blank stiffness = rigid. Misfit: angular mismatch at assembly.')}
       ${this.section('Discs', 'discs', 'disc', (m.discs ?? []) as Row[], discColumns(shafts), 'Mass inertia, drawn on the schematic (kept for modal analysis).')}
@@ -182,6 +184,23 @@ export class SnEditor extends LitElement {
       </div>
       <sn-section-view .section=${s} .properties=${props} .system=${this.system} ?solved=${this.solution !== null}></sn-section-view>
     </div>`;
+  }
+
+  /**
+   * Load cases (id, name) and, once there are cases, the combinations: a grid
+   * of combinations × cases whose cells are the factors (blank = 0).
+   */
+  private loadCases(m: EditModel) {
+    const cases = loadCasesOf(m);
+    const combos = combinationsOf(m);
+    return html`${this.section('Load cases', 'loadCases', 'load case', cases as unknown as Row[], caseColumns(),
+      'Name the load states (running, start-up, jam…); each torque then belongs to one case. Supports’ rotations, misfits and offsets act in every combination.')}
+      ${cases.length
+        ? this.section('Combinations', 'combinations', 'combination', combos as unknown as Row[], combinationColumns(cases.map((c) => c.id)),
+            combos.length
+              ? 'Each row sums the cases times its factors (blank = 0).'
+              : 'None given: each case is solved as its own combination (factor 1). Add one to factor and sum the cases.')
+        : nothing}`;
   }
 
   private section(title: string, list: string, noun: string, rows: Row[], columns: Column[], hint: string, extra: unknown = nothing) {
@@ -320,10 +339,32 @@ function supportColumns(shafts: string[]): Column[] {
   ];
 }
 
-function torqueColumns(shafts: string[]): Column[] {
+function caseColumns(): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 8 },
+    { key: 'name', label: 'Name', type: 'text', width: 16 },
+  ];
+}
+
+/** The factor grid: one number column per load case, keyed into the combination's factors. */
+function combinationColumns(cases: string[]): Column[] {
+  return [
+    { key: 'id', label: 'Id', type: 'text', width: 8 },
+    { key: 'name', label: 'Name', type: 'text', width: 12 },
+    ...cases.map((c): Column => ({ key: `factors/${c}`, label: `× ${c}`, type: 'number', width: 5, hint: `Factor on case ${c} (blank = 0)` })),
+  ];
+}
+
+/** The case column of a load list, present only when the model has load cases. */
+function caseColumn(cases: string[]): Column[] {
+  return cases.length ? [{ key: 'case', label: 'Case', type: 'select', options: cases, hint: 'The load case this torque belongs to' }] : [];
+}
+
+function torqueColumns(shafts: string[], cases: string[]): Column[] {
   const isPower = (r: Row) => r.power !== undefined || r.speed !== undefined;
   return [
     { key: 'id', label: 'Id', type: 'text', width: 7 },
+    ...caseColumn(cases),
     { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
     { key: 'at', label: 'At z', type: 'quantity', kind: 'length' },
     { key: '@form', label: 'Given as', type: 'select', options: ['torque', 'power'], get: (r) => (isPower(r) ? 'power' : 'torque') },
@@ -333,9 +374,10 @@ function torqueColumns(shafts: string[]): Column[] {
   ];
 }
 
-function distributedColumns(shafts: string[]): Column[] {
+function distributedColumns(shafts: string[], cases: string[]): Column[] {
   return [
     { key: 'id', label: 'Id', type: 'text', width: 7 },
+    ...caseColumn(cases),
     { key: 'shaft', label: 'Shaft', type: 'select', options: shafts },
     { key: 'from', label: 'From z', type: 'quantity', kind: 'length' },
     { key: 'to', label: 'To z', type: 'quantity', kind: 'length' },

@@ -23,6 +23,9 @@ export function niceTicks(lo: number, hi: number, count = 5): number[] {
 /** A local value marked on a diagram beside its curve (a stress raiser's local peak), SI. */
 export interface PlotPeak { z: number; value: number; label: string }
 
+/** An envelope band behind the line: lower and upper values over z (SI), as `cases-results.ts` builds it. */
+export interface PlotBand { z: readonly number[]; lo: readonly number[]; hi: readonly number[] }
+
 /** Detail of `sn-cursor`: the z (m) to read the diagrams at, or null to stop reading. */
 export interface CursorDetail { z: number | null }
 
@@ -59,6 +62,7 @@ export class SnPlot extends LitElement {
     breaks: { attribute: false },
     cursor: { attribute: false },
     peaks: { attribute: false },
+    band: { attribute: false },
   };
 
   declare z: readonly number[];
@@ -76,6 +80,8 @@ export class SnPlot extends LitElement {
   declare cursor: number | null;
   /** Local peaks to mark beside the curve (they widen the value axis to fit). */
   declare peaks: readonly PlotPeak[];
+  /** The envelope over all combinations, drawn as a shaded band with the line inside it; null: none. */
+  declare band: PlotBand | null;
 
   constructor() {
     super();
@@ -89,6 +95,7 @@ export class SnPlot extends LitElement {
     this.breaks = [];
     this.cursor = null;
     this.peaks = [];
+    this.band = null;
   }
 
   override render() {
@@ -98,8 +105,11 @@ export class SnPlot extends LitElement {
     const x0 = Math.min(...xs);
     const x1 = Math.max(...xs, x0 + 1e-12);
     const py = this.peaks.map((p) => toDisplay(p.value, this.kind, this.system));
-    let y0 = Math.min(0, ...ys, ...py);
-    let y1 = Math.max(0, ...ys, ...py);
+    const band = this.band && this.band.z.length ? this.band : null;
+    const blo = band ? band.lo.map((v) => toDisplay(v, this.kind, this.system)) : [];
+    const bhi = band ? band.hi.map((v) => toDisplay(v, this.kind, this.system)) : [];
+    let y0 = Math.min(0, ...ys, ...py, ...blo);
+    let y1 = Math.max(0, ...ys, ...py, ...bhi);
     if (y1 - y0 < 1e-12 * Math.max(1, Math.abs(y1))) {
       y0 -= 1;
       y1 += 1;
@@ -111,6 +121,12 @@ export class SnPlot extends LitElement {
     const Y = (y: number) => PH - MB - ((y - y0) / (y1 - y0)) * (PH - MT - MB);
     const pts = xs.map((x, i) => `${X(x).toFixed(2)},${Y(ys[i]).toFixed(2)}`).join(' ');
     const area = `${X(xs[0]).toFixed(2)},${Y(0).toFixed(2)} ${pts} ${X(xs[xs.length - 1]).toFixed(2)},${Y(0).toFixed(2)}`;
+    const bandPts = band
+      ? [
+          ...band.z.map((z, i) => `${X(toDisplay(z, 'length', this.system)).toFixed(2)},${Y(bhi[i]).toFixed(2)}`),
+          ...band.z.map((z, i) => `${X(toDisplay(z, 'length', this.system)).toFixed(2)},${Y(blo[i]).toFixed(2)}`).reverse(),
+        ].join(' ')
+      : '';
     const yt = niceTicks(y0, y1, 4);
     const xt = niceTicks(x0, x1, 8);
     const mi = this.markIndex;
@@ -161,7 +177,12 @@ export class SnPlot extends LitElement {
       ${this.breaks.map((b) => svg`<line x1=${X(toDisplay(b, 'length', this.system))} x2=${X(toDisplay(b, 'length', this.system))} y1=${MT} y2=${PH - MB} stroke="#d6d1c7" stroke-dasharray="3 3"/>`)}
       ${xt.map((t) => svg`<text class="tick" x=${X(t)} y=${PH - MB + 13} text-anchor="middle">${formatNumber(t, 4)}</text>`)}
       <text class="tick" x=${PW - MR} y=${PH - 3} text-anchor="end">z [${prettyUnit(displayUnit('length', this.system))}]</text>
-      <polygon points=${area} fill=${this.color} fill-opacity="0.13" />
+      ${band
+        ? svg`<g class="band" data-lo=${Math.min(...band.lo)} data-hi=${Math.max(...band.hi)}>
+            <title>Envelope of all combinations: ${formatQuantity(Math.min(...band.lo), this.kind, this.system, 4)} to ${formatQuantity(Math.max(...band.hi), this.kind, this.system, 4)}</title>
+            <polygon points=${bandPts} fill=${this.color} fill-opacity="0.2" stroke=${this.color} stroke-opacity="0.55" stroke-width="1" stroke-dasharray="3 2" />
+          </g>`
+        : svg`<polygon points=${area} fill=${this.color} fill-opacity="0.13" />`}
       <line x1=${ML} x2=${PW - MR} y1=${Y(0)} y2=${Y(0)} stroke="#6b665e" />
       <polyline points=${pts} fill="none" stroke=${this.color} stroke-width="1.8" stroke-linejoin="round" />
       ${mark} ${peaks} ${cursor}

@@ -7,6 +7,7 @@ import type { CursorDetail } from './sn-plot.js';
 import type { SectionLike } from './section-geometry.js';
 import { type AnyCheck, checkLabel, raisersOf, shaftPeaks } from './raiser-results.js';
 import { valueAt } from './diagram-readout.js';
+import { type CasesSolution, type OverloadResult, combinationLabel, combinationName, governingOf, overloadSentence, rotationBand, torqueBand } from './cases-results.js';
 import './sn-plot.js';
 import './sn-segment-table.js';
 import './sn-station-table.js';
@@ -79,6 +80,14 @@ export class SnResults extends LitElement {
     .warn { background: #fdf1d8; color: #7a4f00; padding: 4px 8px; border-radius: 4px; margin: 4px 0; font-size: 13px; }
     .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
     .muted { color: #6b665e; font-size: 12px; }
+    .picker { display: flex; flex-wrap: wrap; gap: 4px 12px; align-items: center; font-size: 13px; margin: 0 0 8px; padding: 4px 8px; background: #eef5f8; border-radius: 4px; }
+    .picker select { font: inherit; margin-left: 6px; }
+    .overload { border-left: 3px solid #1d3a4a; padding: 2px 8px; margin: 6px 0 8px; }
+    .overload p { margin: 2px 0; }
+    .overload-line { font-size: 13.5px; color: #1d3a4a; }
+    td.governs { white-space: normal; min-width: 7em; max-width: 10em; }
+    .nowrap { white-space: nowrap; }
+    .wide { overflow-x: auto; max-width: 100%; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
     @media print { .banner.fresh, .readout.idle { display: none; } .body.dim { opacity: 1; filter: none; } }
   `;
@@ -123,7 +132,9 @@ export class SnResults extends LitElement {
     return html`${this.banner()}
       ${s
         ? html`<div class="body ${this.state === 'fresh' ? '' : 'dim'}" data-state=${this.state}>
-            ${s.warnings.map((w) => html`<div class="warn" data-warning=${w.code}>⚠ ${w.message}</div>`)} ${this.reactions(s)} ${this.connections(s)}
+            ${this.picker(s)}
+            ${s.warnings.map((w) => html`<div class="warn" data-warning=${w.code}>⚠ ${w.message}</div>`)} ${this.overload(s)} ${this.reactions(s)}
+            ${this.reactionEnvelope(s)} ${this.connections(s)}
             <p class="muted" data-residual=${s.equilibrium.maxResidual}>
               Equilibrium: largest residual of Σ torques on a shaft = ${formatValue(s.equilibrium.maxResidual, 'torque', this.system, 3)}
               ${prettyUnit(displayUnit('torque', this.system))}.
@@ -168,6 +179,59 @@ export class SnResults extends LitElement {
   private pickRow(list: 'supports' | 'gearMeshes' | 'couplings', id: string): void {
     const i = this.indexOf(list, id);
     if (i >= 0) this.dispatchEvent(new CustomEvent<SelectDetail>('sn-select', { detail: { pointer: `/${list}/${i}` }, bubbles: true, composed: true }));
+  }
+
+  /**
+   * The combination picker: which combination's single state the tables and
+   * lines show (the envelope bands cover them all). Picking one solves again.
+   */
+  private picker(s: CasesSolution) {
+    const combos = s.combinations ?? [];
+    if (combos.length === 0) return nothing;
+    const shown = s.combination ?? combos[0].id;
+    return html`<div class="picker">
+      <label>Combination shown
+        <select data-combination-picker .value=${shown}
+          @change=${(e: Event) => this.dispatchEvent(new CustomEvent<{ id: string }>('sn-combination', { detail: { id: (e.target as HTMLSelectElement).value }, bubbles: true, composed: true }))}>
+          ${combos.map((c) => html`<option value=${c.id} ?selected=${c.id === shown}>${combinationLabel(c)}</option>`)}
+        </select>
+      </label>
+      <span class="muted">Tables and lines: this combination. Shaded bands and “worst in”: all ${combos.length} combinations.</span>
+    </div>`;
+  }
+
+  /** The overload factors of the shown state in plain words, with the cautions they rest on. */
+  private overload(s: CasesSolution) {
+    const o: OverloadResult | undefined = s.overload;
+    if (!o) return nothing;
+    const who = s.combination !== undefined ? combinationName(s, s.combination) : null;
+    const { line, where } = overloadSentence(o, who, this.system);
+    return html`<div class="overload" data-first-yield=${o.firstYieldFactor ?? ''} data-collapse=${o.collapseFactor ?? ''}>
+      <p class="overload-line"><strong>Overload.</strong> ${line}</p>
+      ${where ? html`<p class="muted">${where}</p>` : nothing}
+      <p class="muted">Taken with the material elastic–perfectly plastic; gear teeth, couplings and spring supports are taken as strong enough;
+        prescribed rotations, misfits and offsets are held while the loads grow.</p>
+    </div>`;
+  }
+
+  /** Per support the extreme reactions over all combinations, with the combination of each. */
+  private reactionEnvelope(s: CasesSolution) {
+    const rows = s.envelope?.reactions ?? [];
+    if (rows.length === 0) return nothing;
+    const t = this.unit('torque');
+    return html`<h4>Reactions over all combinations</h4>
+      <table class="reaction-envelope">
+        <thead><tr><th>Support</th><th>Least [${t}]</th><th>in</th><th>Greatest [${t}]</th><th>in</th></tr></thead>
+        <tbody>
+          ${rows.map(
+            (r) => html`<tr data-support=${r.support}>
+              <td>${r.support}</td>
+              <td class="num" data-min=${r.min}>${formatValue(r.min, 'torque', this.system)}</td><td data-min-combination=${r.minCombination}>${combinationName(s, r.minCombination)}</td>
+              <td class="num" data-max=${r.max}>${formatValue(r.max, 'torque', this.system)}</td><td data-max-combination=${r.maxCombination}>${combinationName(s, r.maxCombination)}</td>
+            </tr>`,
+          )}
+        </tbody>
+      </table>`;
   }
 
   private reactions(s: Solution) {
@@ -223,28 +287,43 @@ export class SnResults extends LitElement {
     // The worst ones first; the rest on request (a long shaft has a check per segment and layer).
     const rows = this.allChecks ? sorted : sorted.slice(0, CHECKS_SHOWN);
     if (rows.length === 0) return html`<h3>Checks</h3><p class="muted">No checks: give materials an allowable shear stress, or set limits.</p>`;
-    return html`<h3>Checks, worst first</h3>
-      <table class="checks">
-        <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value of allowed</th><th>Utilisation</th><th>Status</th></tr></thead>
+    const cs = s as CasesSolution;
+    const combos = (cs.combinations ?? []).length > 0;
+    const shownIn = combos && cs.combination !== undefined ? ` (${combinationName(cs, cs.combination)})` : '';
+    return html`<h3>Checks, worst first${shownIn}</h3>
+      <div class="wide"><table class="checks">
+        <thead><tr><th>Shaft</th><th>Segment</th><th>Layer</th><th>Check</th><th>Value of allowed</th><th>Utilisation</th><th>Status</th>
+          ${combos ? html`<th title="The combination where this check is worst, and its utilisation there">Worst in</th>` : nothing}</tr></thead>
         <tbody>
           ${rows.map((c) => {
             const k = CHECK_KIND[c.kind] ?? { label: c.kind, kind: 'stress' };
             const u = c.utilisation;
             const over = !c.pass;
-            return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'}>
+            return html`<tr data-check=${c.kind} class=${over ? 'over' : ''} data-pass=${c.pass ? 'true' : 'false'} data-shaft=${c.shaft} data-segment=${c.segment ?? ''}>
               <td>${c.shaft}</td><td>${c.segment === undefined ? '—' : c.segment + 1}</td>
               <td>${c.layer === undefined ? '—' : `${c.layer + 1}${c.material ? ` (${c.material})` : ''}`}</td>
               <td>${checkLabel(c, k.label)}</td>
               <td class="num value-of">${formatValue(c.value, k.kind, this.system, 3)} of ${formatValue(c.limit, k.kind, this.system, 3)} ${this.unit(k.kind)}</td>
               <td class="num"><span class="barbox" aria-hidden="true"><span class="bar ${over ? 'over' : ''}" style="width:${Math.min(100, u * 100).toFixed(1)}%"></span></span>${formatNumber(u * 100, 3)} %</td>
               <td class="status ${over ? 'fail' : 'ok'}">${over ? html`<span aria-hidden="true">⚠ </span>EXCEEDS by ${formatNumber((u - 1) * 100, 3)} %` : 'ok'}</td>
+              ${combos ? this.worstIn(cs, c) : nothing}
             </tr>`;
           })}
         </tbody>
-      </table>
+      </table></div>
       ${sorted.length > rows.length
         ? html`<button class="more" @click=${() => (this.allChecks = true)}>Show all ${sorted.length} checks</button>`
         : nothing}`;
+  }
+
+  /** The governing combination of a check and its utilisation there (over-limit marked by a sign and a word). */
+  private worstIn(s: CasesSolution, c: AnyCheck) {
+    const g = governingOf(s, c);
+    if (!g) return html`<td class="muted">—</td>`;
+    const over = g.utilisation !== null && g.utilisation > 1;
+    return html`<td class="governs ${over ? 'fail' : ''}" data-governing=${g.combination} data-utilisation=${g.utilisation ?? ''}>
+      ${over ? html`<span aria-hidden="true">⚠ </span>` : nothing}${combinationName(s, g.combination)}${g.utilisation === null ? '' : html`: <span class="nowrap">${formatNumber(g.utilisation * 100, 3)} %</span>`}${over ? ' EXCEEDS' : ''}
+    </td>`;
   }
 
   /** The stress raisers: factor, nominal and local peak stress, and the check against the allowable. */
@@ -276,6 +355,11 @@ export class SnResults extends LitElement {
     const d = sh.diagram;
     const breaks = sh.segments.slice(1).map((g) => g.from);
     const cz = this.cursors[sh.id] ?? null;
+    const env = (this.solution as CasesSolution | null)?.envelope?.shafts.find((e) => e.id === sh.id) ?? null;
+    const tBand = env ? torqueBand(env.stations) : null;
+    const rBand = env ? rotationBand(env.stations) : null;
+    const cs = this.solution as CasesSolution | null;
+    const of = env && cs?.combination !== undefined ? ` — ${combinationName(cs, cs.combination)}; band: all combinations` : '';
     const onCursor = (e: CustomEvent<CursorDetail>) => {
       const { [sh.id]: _drop, ...rest } = this.cursors;
       this.cursors = e.detail.z === null ? rest : { ...rest, [sh.id]: e.detail.z };
@@ -284,16 +368,25 @@ export class SnResults extends LitElement {
       <h4>${sh.name ? `${sh.name} (${sh.id})` : sh.id}
         <span class="muted">— length ${formatValue(sh.length, 'length', this.system)} ${this.unit('length')}, largest relative twist
         ${formatValue(sh.totalTwist, 'angle', this.system, 4)} ${this.unit('angle')}</span></h4>
-      <sn-segment-table .shaft=${sh} .system=${this.system} .sections=${(this.model?.sections ?? []) as unknown as SectionLike[]}></sn-segment-table>
+      <sn-segment-table .shaft=${sh} .system=${this.system} .sections=${(this.model?.sections ?? []) as unknown as SectionLike[]}
+        .envelope=${env} .names=${this.combinationNames(cs)}></sn-segment-table>
       ${this.readout(sh, cz)}
       <div class="plots" @sn-cursor=${onCursor}>
-        <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label="Internal torque T" color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks} .cursor=${cz}></sn-plot>
-        <sn-plot .z=${d.z} .values=${d.rotation} kind="angle" .system=${this.system} label="Rotation φ" color="#2f7d5b" .markIndex=${peakIndex(d.rotation)} .breaks=${breaks} .cursor=${cz}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.torque} kind="torque" .system=${this.system} label=${`Internal torque T${of}`} color="#2b6f8e" .markIndex=${peakIndex(d.torque)} .breaks=${breaks} .cursor=${cz} .band=${tBand}></sn-plot>
+        <sn-plot .z=${d.z} .values=${d.rotation} kind="angle" .system=${this.system} label=${`Rotation φ${of}`} color="#2f7d5b" .markIndex=${peakIndex(d.rotation)} .breaks=${breaks} .cursor=${cz} .band=${rBand}></sn-plot>
         <sn-plot .z=${d.z} .values=${d.shear} kind="stress" .system=${this.system} label="Peak shear τ" color="#b3261e" .markIndex=${peakIndex(d.shear)} .breaks=${breaks} .cursor=${cz}
           .peaks=${shaftPeaks(this.solution, sh.id)}></sn-plot>
       </div>
       <sn-station-table .shaft=${sh} .system=${this.system}></sn-station-table>
     </div>`;
+  }
+
+  private namesCache: { s: CasesSolution | null; names: Readonly<Record<string, string>> } = { s: null, names: {} };
+
+  /** Combination names by id (the same object for the same solution, so the segment tables do not re-render for it). */
+  private combinationNames(s: CasesSolution | null): Readonly<Record<string, string>> {
+    if (this.namesCache.s !== s) this.namesCache = { s, names: Object.fromEntries((s?.combinations ?? []).map((c) => [c.id, c.name ?? c.id])) };
+    return this.namesCache.names;
   }
 
   /** T, φ and τ of a shaft at the cursor's z, or how to get a reading. */

@@ -1,6 +1,7 @@
 import { LitElement, css, html, nothing } from 'lit';
 import type { ShaftResult, SegmentResult } from '../../shared-types/solution.js';
 import { type UnitSystem, displayUnit, formatNumber, formatValue, prettyUnit } from './units.js';
+import type { EnvelopeShaft } from './cases-results.js';
 import { type SectionLike, type SegmentWithShape, sectionToDisplay, sectionUnit, segmentProperties } from './section-geometry.js';
 
 /** Segments above which the table starts folded (its rows are built when opened). */
@@ -23,12 +24,23 @@ export class SnSegmentTable extends LitElement {
     td.num { text-align: right; font-variant-numeric: tabular-nums; }
   `;
 
-  static override properties = { shaft: { attribute: false }, system: { type: String }, sections: { attribute: false }, open: { state: true } };
+  static override properties = {
+    shaft: { attribute: false },
+    system: { type: String },
+    sections: { attribute: false },
+    envelope: { attribute: false },
+    names: { attribute: false },
+    open: { state: true },
+  };
 
   declare shaft: ShaftResult | null;
   /** The model's sections (a taper's end radius for Wt of a round section). */
   declare sections: readonly SectionLike[];
   declare system: UnitSystem;
+  /** This shaft's envelope over the load combinations (null: one load state): the worst |T| and its combination. */
+  declare envelope: EnvelopeShaft | null;
+  /** Combination names by id. */
+  declare names: Readonly<Record<string, string>>;
   /** Open or folded by the user; undefined: by the number of segments. */
   declare private open: boolean | undefined;
 
@@ -37,6 +49,8 @@ export class SnSegmentTable extends LitElement {
     this.shaft = null;
     this.system = 'si';
     this.sections = [];
+    this.envelope = null;
+    this.names = {};
     this.open = undefined;
   }
 
@@ -59,6 +73,7 @@ export class SnSegmentTable extends LitElement {
         <th title="Torsional rigidity">G·J [${u('torsionalRigidity')}]</th><th title="Stiffness G·J / L (a taper: 1 / ∫ dz / G·J)">k [${u('torsionalStiffness')}]</th>
         <th title="Polar moment of area">Ip [${u('torsionConstant')}]</th><th title="Torsional modulus: τmax = T / Wt">Wt [${prettyUnit(sectionUnit('sectionModulus', this.system))}]</th>
         <th>Peak |T| [${u('torque')}]</th><th>Twist [${u('angle')}]</th><th>Peak τ [${u('stress')}]</th>
+        ${this.envelope ? html`<th title="The largest |T| of the segment over all combinations, and the combination that gives it">Worst |T| [${u('torque')}] in</th>` : nothing}
       </tr></thead>
       <tbody>
         ${sh.segments.map((seg: SegmentResult) => {
@@ -82,10 +97,17 @@ export class SnSegmentTable extends LitElement {
             <td class="num">${formatValue(g.maxAbsTorque, 'torque', this.system)}</td>
             <td class="num">${formatValue(g.twist, 'angle', this.system)}</td>
             <td class="num">${formatValue(peak, 'stress', this.system)}</td>
+            ${this.envelope ? this.worst(g.index) : nothing}
           </tr>`;
         })}
       </tbody>
     </table>`;
+  }
+
+  private worst(index: number) {
+    const e = this.envelope?.segments.find((s) => s.index === index);
+    if (!e) return html`<td>—</td>`;
+    return html`<td data-worst-combination=${e.combination} data-worst=${e.maxAbsTorque}><span class="num">${formatValue(e.maxAbsTorque, 'torque', this.system)}</span> ${this.names[e.combination] ?? e.combination}</td>`;
   }
 }
 

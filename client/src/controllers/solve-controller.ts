@@ -29,7 +29,9 @@ export class SolveController implements ReactiveController {
 
   private readonly host: ReactiveControllerHost;
   private readonly onAuth: (e: unknown) => boolean;
-  private readonly task: Task<[EditModel], Solution>;
+  private readonly task: Task<[EditModel, string | undefined], Solution>;
+  /** The combination whose single state the solution holds at its top level (undefined: the first). */
+  combination: string | undefined = undefined;
   private timer: ReturnType<typeof setTimeout> | undefined;
   private waiting = false; // a solve is scheduled but not started
   private refused = false; // the last error was the server refusing the model (not a fault)
@@ -39,9 +41,9 @@ export class SolveController implements ReactiveController {
     this.host = host;
     this.onAuth = onAuth;
     host.addController(this);
-    this.task = new Task<[EditModel], Solution>(host, {
+    this.task = new Task<[EditModel, string | undefined], Solution>(host, {
       autoRun: false,
-      task: ([model], { signal }) => api.solve(model, signal),
+      task: ([model, combination], { signal }) => api.solve(model, signal, combination),
       onComplete: (solution) => {
         this.solution = solution;
         this.issues = NO_ISSUES;
@@ -77,14 +79,14 @@ export class SolveController implements ReactiveController {
     this.task.abort();
     if (delay <= 0) {
       this.waiting = false;
-      void this.task.run([model]);
+      void this.task.run([model, this.combination]);
       return;
     }
     this.waiting = true;
     this.host.requestUpdate();
     this.timer = setTimeout(() => {
       this.waiting = false;
-      void this.task.run([model]);
+      void this.task.run([model, this.combination]);
     }, delay);
   }
 
