@@ -11,6 +11,11 @@ export const DENSE_LIMIT = 4000;
 
 /** Solves K·x = b densely; K given by its entries. */
 export function solveDense(a: SymmetricEntries, b: Float64Array): Float64Array {
+  return denseFactor(a)(b);
+}
+
+/** Factorises K densely once; answers the solve of K·x = b for any b. */
+export function denseFactor(a: SymmetricEntries): (b: Float64Array) => Float64Array {
   if (a.n > DENSE_LIMIT) throw new RangeError(`dense solver limited to ${DENSE_LIMIT} unknowns (got ${a.n})`);
   const K = Matrix.zeros(a.n, a.n);
   for (let k = 0; k < a.n; k++) K.set(k, k, a.diag[k]);
@@ -23,6 +28,5 @@ export function solveDense(a: SymmetricEntries, b: Float64Array): Float64Array {
   }
   const chol = new CholeskyDecomposition(K);
   if (!chol.isPositiveDefinite()) throw new SingularMatrixError(-1, 0);
-  const x = chol.solve(Matrix.columnVector(Array.from(b)));
-  return Float64Array.from(x.getColumn(0));
+  return (b) => Float64Array.from(chol.solve(Matrix.columnVector(Array.from(b))).getColumn(0));
 }

@@ -27,7 +27,7 @@ import type { Solved } from './output.js';
 
 /** Throws SN_ILL_CONDITIONED when any number the solution would carry is NaN or ±Infinity. */
 export function assertFiniteResults(sv: Solved): void {
-  const found = firstNonFinite(sv);
+  const found = firstNonFinite(sv) ?? combinationNonFinite(sv);
   if (found === null) return;
   const shaft = found.shaft >= 0 ? sv.model.shafts[found.shaft].id : undefined;
   const issue: ModelIssue = {
@@ -40,6 +40,44 @@ export function assertFiniteResults(sv: Solved): void {
     ...(shaft === undefined ? {} : { shafts: [shaft] }),
   };
   throw new ModelError([issue]);
+}
+
+/**
+ * With load cases, the numbers of every combination (the shown one's station columns are checked
+ * with the single state; the others' went into the envelope, checked here): the first non-finite,
+ * at the combination's pointer (its case's, when each case is its own combination).
+ */
+function combinationNonFinite(sv: Solved): NonFinite | null {
+  const cases = sv.cases;
+  if (cases === undefined) return null;
+  const given = sv.model.combinationsGiven;
+  const bad = (x: number) => !Number.isFinite(x);
+  for (const [k, c] of cases.combinations.entries()) {
+    const r = c.rec;
+    const values = [
+      c.maxResidual,
+      ...r.segMaxAbs,
+      ...r.segTwist,
+      ...r.layerMaxShear,
+      ...r.reactions.map((x) => x.torque),
+      ...r.gearMeshes.flatMap((g) => [g.force, g.torqueA, g.torqueB]),
+      ...r.couplings.flatMap((x) => [x.torqueA, x.torqueB]),
+    ];
+    const value = values.find(bad);
+    if (value !== undefined) return { pointer: given ? pointer('combinations', k) : pointer('loadCases', k), shaft: -1, what: `a result of combination "${c.id}"`, value };
+  }
+  const e = cases.envelope;
+  const { shaftStart } = sv.layout;
+  for (let s = 0; s + 1 < shaftStart.length; s++) {
+    for (let d = shaftStart[s]; d < shaftStart[s + 1]; d++) {
+      const inner = [e.rotationMin[d], e.rotationMax[d]];
+      if (d > shaftStart[s]) inner.push(e.leftMin[d], e.leftMax[d]);
+      if (d < shaftStart[s + 1] - 1) inner.push(e.rightMin[d], e.rightMax[d]);
+      const value = inner.find(bad);
+      if (value !== undefined) return { pointer: pointer('shafts', s), shaft: s, what: 'the envelope over the combinations', value };
+    }
+  }
+  return null;
 }
 
 /** Where the first non-finite number is: its JSON pointer into the model, the shaft (or −1), what it is, and the value. */

@@ -149,6 +149,8 @@ export interface ResolvedModel {
   /** Load cases (empty: one load state, as before) and the combinations to solve (each case alone when none are given). */
   readonly loadCases: ReadonlyArray<{ readonly id: string; readonly name?: string }>;
   readonly combinations: readonly ResolvedCombination[];
+  /** True when the model lists its combinations (else each case is one, and is named by /loadCases/i). */
+  readonly combinationsGiven: boolean;
 }
 
 /** Smallest positive normal double: below it numbers lose precision and products underflow. */
@@ -281,7 +283,7 @@ class Resolver {
     const combinations = this.combinations(torques, distributed);
     if (this.issues.length > 0) throw new ModelError(this.issues);
     const loadCases = (m.loadCases ?? []).map((c) => (c.name === undefined ? { id: c.id } : { id: c.id, name: c.name }));
-    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits, loadCases, combinations };
+    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits, loadCases, combinations, combinationsGiven: m.loadCases !== undefined && m.combinations !== undefined };
   }
 
   /** The index of a load's case: −1 without load cases; every load names one when they exist. */

@@ -16,7 +16,7 @@ import { buildStations, type StationLayout } from './stations.js';
 import { assertNoMechanism, elasticParts, loadVector, reducedRhs, reducedSystem, type ElasticParts, type ReducedSystem } from './assemble.js';
 import { reduceConstraints, type Reduction } from './constraints.js';
 import { ldlNumeric, ldlSymbolic, SingularMatrixError, toFullCSC, type LdlFactor } from './sparse-solver.js';
-import { solveDense } from './dense-solver.js';
+import { denseFactor, solveDense } from './dense-solver.js';
 import { refinedSolve } from './refine.js';
 import { buildChecks, elementTorques, expandRotations, jointTorques, recoverShafts, recoveryWarnings, type Recovered } from './recover.js';
 import type { Solved } from './output.js';
@@ -157,9 +157,8 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
   let xs: Float64Array[];
   let factorNonzeros = 0;
   if (options.solver === 'dense') {
-    xs = states.map((st) =>
-      illConditionedAsModelError(model, layout, reduction, () => solveDense(system.matrix, reducedRhs(parts.springs, st.load, reduction, ws))),
-    );
+    const solveK = illConditionedAsModelError(model, layout, reduction, () => denseFactor(system.matrix));
+    xs = states.map((st) => solveK(reducedRhs(parts.springs, st.load, reduction, ws)));
   } else {
     const csc = ws.stage(() => toFullCSC(system.matrix, ws));
     ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);

@@ -233,7 +233,7 @@ function benchCombinations(): void {
     return b;
   };
   const one = best(plain, 5);
-  const many = best(cased, 3);
+  const many = best(cased, 2);
   const fmt = (x: ReturnType<typeof run>) =>
     `${x.ms.toFixed(0)} ms (factorise+solves ${(x.phases.factorise ?? 0).toFixed(0)}, recover ${(x.phases.recover ?? 0).toFixed(0)}, json ${(x.phases.output ?? 0).toFixed(0)}; ${(x.chars / 1e6).toFixed(1)} MB of JSON)`;
   console.log(`1e4-station gear tree, one plain solve + JSON: ${fmt(one)}`);

@@ -66,6 +66,10 @@ describe('shaftnet solve with load cases', () => {
     const json = await run(['solve', file(), '--json', '--combination=peak']);
     expect(JSON.parse(json.out).combination).toBe('peak');
     expect(JSON.parse(json.out).reactions[0].torque).toBeCloseTo(-170, 9);
+    // The station CSV of the combination named: T(0+) = 170 N·m at the root, τ = 16·T/(π·d³) = 6.926 MPa (closed form).
+    const csv = await run(['solve', file(), '--csv', '--combination', 'peak']);
+    expect(csv.out.split('\n')[1]).toBe('a,0,0,,170,6.926423123');
+    expect((await run(['solve', file(), '--csv'])).out.split('\n')[1]).toBe('a,0,0,,100,4.074366543');
   });
 
   it('an unknown combination exits 2 naming it; a missing id is a usage error', async () => {

@@ -293,6 +293,11 @@ describe('bad load cases and combinations are refused with the field named', () 
     expect(issues(small((m) => m.combinations.push({ id: 'c1', factors: {} })))).toEqual([['SN_DUPLICATE_ID', '/combinations/1/id']]);
     expect(issues(small((m) => m.loadCases.push({ id: 'run' })))).toEqual([['SN_DUPLICATE_ID', '/loadCases/2/id']]);
   });
+  it('a combination whose factor drives a result past double range: SN_ILL_CONDITIONED at that combination', () => {
+    const huge = small((m) => m.combinations.push({ id: 'c2', factors: { run: 1e306 } }));
+    // 1e306 × 100 N·m at the root of a 50 mm shaft: τ = 16·T/(π d³) ≈ 4e312 Pa, beyond 1.8e308.
+    expect(issues(huge)).toEqual([['SN_ILL_CONDITIONED', '/combinations/1']]);
+  });
   it('an unknown combination to show: SN_UNRESOLVED at the root, naming the ones there are', () => {
     try {
       solveModel(small(), { combination: 'nope' });
