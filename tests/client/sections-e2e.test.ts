@@ -13,7 +13,8 @@
  * at its free end, so the internal torque is 500 N·m everywhere (statically
  * determinate) and every expected number follows from the geometry alone.
  */
-import { type ChildProcess, execSync, spawn } from 'node:child_process';
+import { type ChildProcess, execSync } from 'node:child_process';
+import { launchChromium, spawnServer } from '../helpers/server-process.js';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -119,31 +120,10 @@ describe.runIf(hasBrowser)('sections, tapers and stress raisers in Chromium agai
       execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
     }
     dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-sections-e2e-'));
-    server = spawn(
-      process.execPath,
-      ['dist/server/main.js', '--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'],
-      { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] },
-    );
-    base = await new Promise<string>((resolve, reject) => {
-      let out = '';
-      const timer = setTimeout(() => reject(new Error(`server did not start: ${out}`)), 30_000);
-      server.stdout?.on('data', (chunk: Buffer) => {
-        out += chunk.toString();
-        const m = /listening on (http:\/\/\S+?)\/?\s/.exec(out);
-        if (m) {
-          clearTimeout(timer);
-          resolve(m[1]);
-        }
-      });
-      server.stderr?.on('data', (chunk: Buffer) => (out += chunk.toString()));
-      server.on('exit', (code) => reject(new Error(`server exited (${code}): ${out}`)));
-    });
-    const { chromium } = await import('playwright-core');
-    browser = await chromium.launch({
-      executablePath: CHROMIUM,
-      headless: true,
-      args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
-    });
+    const started = await spawnServer(path.join(ROOT, 'dist/server/main.js'), ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'], { cwd: ROOT, children: new Set(), timeoutMs: 30_000 });
+    server = started.child;
+    base = started.url;
+    browser = await launchChromium(CHROMIUM);
     const saved = await fetch(`${base}/api/models`, {
       method: 'POST',
       headers: { 'content-type': 'application/json' },

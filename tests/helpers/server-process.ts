@@ -34,3 +34,13 @@ export function spawnServer(mainJs: string, args: readonly string[], opts: { cwd
     });
   });
 }
+
+/** Chromium for the browser tests: the machine's own, headless, with the flags this machine needs. */
+export async function launchChromium(executablePath: string): Promise<import('playwright-core').Browser> {
+  const { chromium } = await import('playwright-core');
+  return chromium.launch({
+    executablePath,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+}
