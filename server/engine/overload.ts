@@ -91,10 +91,10 @@ export function assembledStateModel(model: ResolvedModel): ResolvedModel {
   };
 }
 
-/** Said instead of the overload factors of a model with load cases (not computed per combination yet). */
+/** Said beside the overload of a model with load cases: the shown combination's only (not computed per combination yet). */
 export const OVERLOAD_WITH_CASES: Warning = {
   code: 'SN_OVERLOAD_OMITTED',
-  message: 'overload factors are not computed for models with load cases yet: solve one combination as a model without load cases to get them',
+  message: 'overload factors are given for the combination shown (the top-level fields) only, not yet per combination: choose another with the solve option "combination"',
 };
 
 /** Cautions written beside every reported overload. */
@@ -461,14 +461,16 @@ function collapseOf(
 export function withOverload(solved: Solved, lp: LpSolver | undefined, options: PipelineOptions): Solved {
   const { model, layout } = solved;
   if (lp === undefined || !hasShearYield(model)) return solved;
-  // With load cases the element loads of the layout are not a combination's factored loads: the
-  // factors per combination are not computed yet, and no factor is better than a wrong one.
-  if (model.loadCases.length > 0) return { ...solved, warnings: [...solved.warnings, OVERLOAD_WITH_CASES] };
+  // With load cases, `solved` is the shown combination: its model and layout carry that combination's
+  // factored loads, so its factors are found as for one load state. The other combinations' are not
+  // computed yet (a warning says so); the assembled state is solved as a model without load cases.
+  const cases = model.loadCases.length > 0;
   let state: EndTorques | null = null;
   if (hasAssembledState(model)) {
     const ws = new Workspace();
+    const assembled: ResolvedModel = { ...assembledStateModel(model), loadCases: [], combinations: [] };
     state = ws.session(() => {
-      const s = solvePipeline(assembledStateModel(model), { solver: options.solver, diagramPoints: 0 }, ws);
+      const s = solvePipeline(assembled, { solver: options.solver, diagramPoints: 0 }, ws);
       return { TL: Float64Array.from(s.rec.TL), TR: Float64Array.from(s.rec.TR) };
     });
   }
@@ -480,5 +482,6 @@ export function withOverload(solved: Solved, lp: LpSolver | undefined, options: 
     TR[e] = solved.rec.TR[e] - (state ? state.TR[e] : 0);
   }
   const { overload, warnings } = overloadOf(model, layout, { TL, TR }, state, lp);
+  if (cases) warnings.push(OVERLOAD_WITH_CASES);
   return { ...solved, overload, warnings: [...solved.warnings, ...warnings] };
 }

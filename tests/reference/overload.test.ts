@@ -254,30 +254,57 @@ describe('what the overload leaves alone', () => {
 });
 
 describe('overload with load cases', () => {
-  it('is omitted with SN_OVERLOAD_OMITTED, not computed from the wrong loads', async () => {
-    // A bar fixed at both ends with a yield stress and two load cases (invented): the factors per
-    // combination are not computed yet, so none is reported and the warning says why.
+  it('of the combination shown equals that of a model carrying its factored loads, with SN_OVERLOAD_OMITTED for the rest', async () => {
+    // A bar fixed at both ends (d40 steel, τy = 170 MPa) with two load cases and a prescribed end
+    // rotation (invented). Closed form: the factors are those of one load state, so the shown combination
+    // "peak" (1.35·run + 1.0·jam) must give exactly the factors of the same bar with those loads typed in.
     const lp = await loadLpSolver();
-    const sol = solveModel(
+    const base = {
+      format: 'shaftnet/1',
+      name: 'Two cases (invented)',
+      materials: [{ id: 'st', G: 80e9, shearYield: 1.7e8 }],
+      sections: [{ id: 'd40', shape: 'solid', d: 0.04 }],
+      shafts: [{ id: 's', segments: [{ length: 1, section: 'd40', material: 'st' }] }],
+      supports: [
+        { id: 'A', shaft: 's', at: 0, kind: 'fixed' },
+        { id: 'B', shaft: 's', at: 1, kind: 'fixed', rotation: 0.002 },
+      ],
+    };
+    const withCases = solveModel(
       {
-        format: 'shaftnet/1',
-        name: 'Two cases (invented)',
-        materials: [{ id: 'st', G: 80e9, shearYield: 1.7e8 }],
-        sections: [{ id: 'd40', shape: 'solid', d: 0.04 }],
-        shafts: [{ id: 's', segments: [{ length: 1, section: 'd40', material: 'st' }] }],
-        supports: [
-          { id: 'A', shaft: 's', at: 0, kind: 'fixed' },
-          { id: 'B', shaft: 's', at: 1, kind: 'fixed' },
-        ],
+        ...base,
         loadCases: [{ id: 'run' }, { id: 'jam' }],
+        combinations: [
+          { id: 'service', factors: { run: 1 } },
+          { id: 'peak', factors: { run: 1.35, jam: 1 } },
+        ],
         torques: [
           { id: 'T1', case: 'run', shaft: 's', at: 0.4, torque: 300 },
           { id: 'T2', case: 'jam', shaft: 's', at: 0.7, torque: -500 },
         ],
       },
+      { lp, combination: 'peak' },
+    );
+    const plain = solveModel(
+      {
+        ...base,
+        torques: [
+          { id: 'T1', shaft: 's', at: 0.4, torque: 1.35 * 300 },
+          { id: 'T2', shaft: 's', at: 0.7, torque: -500 },
+        ],
+      },
       { lp },
     );
-    expect(sol.overload).toBeUndefined();
-    expect(sol.warnings.map((w) => w.code)).toContain('SN_OVERLOAD_OMITTED');
+    const o = withCases.overload!;
+    const p = plain.overload!;
+    expect(o.firstYieldFactor).not.toBeNull();
+    expectClose(o.firstYieldFactor, p.firstYieldFactor!, 1e-12);
+    // 1e-9: the LP solver's own optimality tolerance, not round-off (common practice, no source).
+    expectClose(o.collapseFactor, p.collapseFactor!, 1e-9);
+    expect(o.plasticAt).toEqual(p.plasticAt);
+    expect(o.firstYield).toEqual(p.firstYield);
+    expect(withCases.combinations!.every((c) => (c as { overload?: unknown }).overload === undefined)).toBe(true);
+    expect(withCases.warnings.map((w) => w.code)).toContain('SN_OVERLOAD_OMITTED');
+    expect(plain.warnings.map((w) => w.code)).not.toContain('SN_OVERLOAD_OMITTED');
   });
 });
