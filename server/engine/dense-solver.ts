@@ -9,11 +9,6 @@ import { SingularMatrixError, type SymmetricEntries } from './sparse-solver.js';
 /** Largest system the dense path accepts (unknowns). */
 export const DENSE_LIMIT = 4000;
 
-/** Solves K·x = b densely; K given by its entries. */
-export function solveDense(a: SymmetricEntries, b: Float64Array): Float64Array {
-  return denseFactor(a)(b);
-}
-
 /** Factorises K densely once; answers the solve of K·x = b for any b. */
 export function denseFactor(a: SymmetricEntries): (b: Float64Array) => Float64Array {
   if (a.n > DENSE_LIMIT) throw new RangeError(`dense solver limited to ${DENSE_LIMIT} unknowns (got ${a.n})`);

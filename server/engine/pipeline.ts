@@ -16,7 +16,7 @@ import { buildStations, type StationLayout } from './stations.js';
 import { assertNoMechanism, elasticParts, loadVector, reducedRhs, reducedSystem, type ElasticParts, type ReducedSystem } from './assemble.js';
 import { reduceConstraints, type Reduction } from './constraints.js';
 import { ldlNumeric, ldlSymbolic, SingularMatrixError, toFullCSC, type LdlFactor } from './sparse-solver.js';
-import { denseFactor, solveDense } from './dense-solver.js';
+import { denseFactor } from './dense-solver.js';
 import { refinedSolve } from './refine.js';
 import { buildChecks, elementTorques, expandRotations, jointTorques, recoverShafts, recoveryWarnings, type Recovered } from './recover.js';
 import type { Solved } from './output.js';
@@ -69,28 +69,8 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   if (model.loadCases.length > 0) return solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap });
 
   const warnings: Warning[] = [];
-  let x: Float64Array;
-  let factorNonzeros = 0;
-  if (options.solver === 'dense') {
-    x = illConditionedAsModelError(model, layout, reduction, () => solveDense(system.matrix, system.rhs));
-  } else {
-    const csc = ws.stage(() => toFullCSC(system.matrix, ws));
-    ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);
-    const symbolic = ws.stage(() => ldlSymbolic(csc, ws));
-    const factor: LdlFactor = illConditionedAsModelError(model, layout, reduction, () =>
-      ws.stage(() => ldlNumeric(symbolic, csc, system.matrix.diag, ws)),
-    );
-    ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
-    factorNonzeros = symbolic.Lp[symbolic.n];
-    x = ws.stage(() => refinedSolve(parts.springs, parts.load, reduction, system.rhs, symbolic, factor, ws));
-    ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
-    if (factor.minPivotRatio < 1e-10) {
-      warnings.push({
-        code: 'SN_STIFFNESS_SPREAD',
-        message: `stiffnesses in the model differ by about ${(1 / factor.minPivotRatio).toExponential(0)}: results may lose ${Math.round(-Math.log10(factor.minPivotRatio))} of their 16 digits`,
-      });
-    }
-  }
+  const { xs, factorNonzeros } = solveLoads(model, layout, options, ws, parts, reduction, system, [{ load: parts.load, rhs: () => system.rhs }], warnings);
+  const x = xs[0];
   lap('factorise');
 
   // Rotations of every dof, and the end torques of every element: read by the output.
@@ -154,29 +134,8 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
     const lay = combinedLayout(m, layout, ws);
     return { combination: c, model: m, layout: lay, load: loadVector(m, lay, ws) };
   });
-  let xs: Float64Array[];
-  let factorNonzeros = 0;
-  if (options.solver === 'dense') {
-    const solveK = illConditionedAsModelError(model, layout, reduction, () => denseFactor(system.matrix));
-    xs = states.map((st) => solveK(reducedRhs(parts.springs, st.load, reduction, ws)));
-  } else {
-    const csc = ws.stage(() => toFullCSC(system.matrix, ws));
-    ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);
-    const symbolic = ws.stage(() => ldlSymbolic(csc, ws));
-    const factor: LdlFactor = illConditionedAsModelError(model, layout, reduction, () =>
-      ws.stage(() => ldlNumeric(symbolic, csc, system.matrix.diag, ws)),
-    );
-    ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
-    factorNonzeros = symbolic.Lp[symbolic.n];
-    xs = states.map((st) => ws.stage(() => refinedSolve(parts.springs, st.load, reduction, reducedRhs(parts.springs, st.load, reduction, ws), symbolic, factor, ws)));
-    ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
-    if (factor.minPivotRatio < 1e-10) {
-      warnings.push({
-        code: 'SN_STIFFNESS_SPREAD',
-        message: `stiffnesses in the model differ by about ${(1 / factor.minPivotRatio).toExponential(0)}: results may lose ${Math.round(-Math.log10(factor.minPivotRatio))} of their 16 digits`,
-      });
-    }
-  }
+  const rights = states.map((st) => ({ load: st.load, rhs: () => reducedRhs(parts.springs, st.load, reduction, ws) }));
+  const { xs, factorNonzeros } = solveLoads(model, layout, options, ws, parts, reduction, system, rights, warnings);
   lap('factorise');
 
   let segments = 0;
@@ -248,6 +207,46 @@ function phaseClock(onPhase: PipelineOptions['onPhase']): (phase: SolvePhase) =>
     onPhase(phase, t - t0);
     t0 = t;
   };
+}
+
+/**
+ * K·x = f for every load given, its right-hand side made when it is solved: one factorisation
+ * for all of them, the sparse L·D·Lᵀ refined against each load's own spring residual, or the
+ * dense reference path. Gives back the system's entries, diagonal and base right-hand side once
+ * read; warns when the pivots show stiffnesses far apart.
+ */
+function solveLoads(
+  model: ResolvedModel,
+  layout: StationLayout,
+  options: PipelineOptions,
+  ws: Workspace,
+  parts: ElasticParts,
+  reduction: Reduction,
+  system: ReducedSystem,
+  rights: ReadonlyArray<{ readonly load: Float64Array; readonly rhs: () => Float64Array }>,
+  warnings: Warning[],
+): { xs: Float64Array[]; factorNonzeros: number } {
+  if (options.solver === 'dense') {
+    const solveK = illConditionedAsModelError(model, layout, reduction, () => denseFactor(system.matrix));
+    return { xs: rights.map((r) => solveK(r.rhs())), factorNonzeros: 0 };
+  }
+  const csc = ws.stage(() => toFullCSC(system.matrix, ws));
+  ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);
+  const symbolic = ws.stage(() => ldlSymbolic(csc, ws));
+  const factor: LdlFactor = illConditionedAsModelError(model, layout, reduction, () =>
+    ws.stage(() => ldlNumeric(symbolic, csc, system.matrix.diag, ws)),
+  );
+  ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
+  const factorNonzeros = symbolic.Lp[symbolic.n];
+  const xs = rights.map((r) => ws.stage(() => refinedSolve(parts.springs, r.load, reduction, r.rhs(), symbolic, factor, ws)));
+  ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
+  if (factor.minPivotRatio < 1e-10) {
+    warnings.push({
+      code: 'SN_STIFFNESS_SPREAD',
+      message: `stiffnesses in the model differ by about ${(1 / factor.minPivotRatio).toExponential(0)}: results may lose ${Math.round(-Math.log10(factor.minPivotRatio))} of their 16 digits`,
+    });
+  }
+  return { xs, factorNonzeros };
 }
 
 /** Runs a factorisation; a lost pivot becomes SN_ILL_CONDITIONED naming the shaft of its unknown. */
