@@ -7,6 +7,7 @@ import { type Column, type EditDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
 import './sn-table.js';
 import './sn-section-view.js';
+import './sn-dynamics-panel.js';
 
 type Row = Record<string, unknown>;
 
@@ -119,6 +120,7 @@ export class SnEditor extends LitElement {
       ${this.section('Couplings', 'couplings', 'coupling', (m.couplings ?? []) as Row[], couplingColumns(shafts), 'Blank stiffness = rigid. Misfit: angular mismatch at assembly.')}
       ${this.section('Discs', 'discs', 'disc', (m.discs ?? []) as Row[], discColumns(shafts), 'Mass inertia, drawn on the schematic (kept for modal analysis).')}
       ${this.section('Stress raisers', 'stressRaisers', 'stress raiser', stressRaisersOf(m) as unknown as Row[], raiserColumns(shafts), 'A shoulder (at a diameter step: its factor from the fillet radius) or a factor you give (keyseat, cross hole). The local peak is checked beside the nominal stress.')}
+      <sn-dynamics-panel .model=${m} .system=${this.system} .errors=${this.errors} .selected=${this.selected}></sn-dynamics-panel>
       <details open>
         <summary>Limits</summary>
         <p class="hint">Optional: twist per length and total twist, checked on every shaft.</p>
@@ -135,6 +137,7 @@ export class SnEditor extends LitElement {
    * nothing matches.
    */
   focusPointer(pointer: string): boolean {
+    if (pointer.startsWith('/dynamics')) return this.renderRoot.querySelector('sn-dynamics-panel')?.focusPointer(pointer) ?? false;
     const tables = [...this.renderRoot.querySelectorAll('sn-table')];
     const fields = 'input:not(:disabled), select:not(:disabled), textarea';
     for (let p = pointer; ; p = p.slice(0, p.lastIndexOf('/'))) {

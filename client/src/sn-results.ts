@@ -11,6 +11,7 @@ import { type CasesSolution, type OverloadResult, combinationLabel, combinationN
 import './sn-plot.js';
 import './sn-segment-table.js';
 import './sn-station-table.js';
+import './sn-dynamics-results.js';
 
 /** Where the results stand against the model on screen. */
 export type ResultState = 'none' | 'fresh' | 'stale' | 'solving' | 'invalid' | 'failed';
@@ -139,7 +140,9 @@ export class SnResults extends LitElement {
               Equilibrium: largest residual of Σ torques on a shaft = ${formatValue(s.equilibrium.maxResidual, 'torque', this.system, 3)}
               ${prettyUnit(displayUnit('torque', this.system))}.
             </p>
-            ${this.checks(s)} ${this.raisers(s)} ${s.shafts.map((sh) => this.shaftPlots(sh))}
+            ${this.checks(s)} ${this.raisers(s)}
+            <sn-dynamics-results .solution=${s} .model=${this.model} .system=${this.system}></sn-dynamics-results>
+            ${s.shafts.map((sh) => this.shaftPlots(sh))}
           </div>`
         : nothing}`;
   }
