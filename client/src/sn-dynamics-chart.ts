@@ -4,7 +4,7 @@ import { linearScale, ticks } from './dynamics-results.js';
 
 const PW = 680; // px, viewBox width
 const PH = 240; // px, viewBox height
-const ML = 58; // px, room for the value ticks
+const ML = 62; // px, room for the value ticks and the rotated axis label
 const MR = 14;
 const MT = 22;
 const MB = 32;
@@ -92,7 +92,7 @@ export class SnDynamicsChart extends LitElement {
         <text class="tick" x=${ML - 5} y=${Y(t) + 3} text-anchor="end">${formatNumber(t, 4)}</text>`)}
       ${xt.map((t) => svg`<text class="tick" x=${X(t)} y=${PH - MB + 13} text-anchor="middle">${formatNumber(t, 4)}</text>`)}
       <text class="tick" x=${PW - MR} y=${PH - 4} text-anchor="end">${this.xLabel}</text>
-      <text class="tick" x=${ML} y=${MT - 4} text-anchor="start">${this.yLabel}</text>
+      <text class="tick" transform="rotate(-90)" x=${-(MT + (PH - MT - MB) / 2)} y="11" text-anchor="middle">${this.yLabel}</text>
       <line x1=${ML} x2=${PW - MR} y1=${PH - MB} y2=${PH - MB} stroke="#6b665e"/>
       <line x1=${ML} x2=${ML} y1=${MT} y2=${PH - MB} stroke="#6b665e"/>
       ${this.lines.map(

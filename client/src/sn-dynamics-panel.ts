@@ -83,12 +83,12 @@ export class SnDynamicsPanel extends LitElement {
     if (!m) return nothing;
     const dyn = dynamicsOf(m);
     return html`<details open data-list="dynamics">
-      <summary>Dynamics</summary>
+      <summary data-pointer="/dynamics">Dynamics</summary>
       ${dyn
         ? this.fields(m, dyn)
         : html`<p class="hint">No dynamics: natural frequencies, speeds to avoid and the forced response are not computed.
             Discs, and shafts whose material has a density, carry the inertia.</p>
-            <button data-dynamics-add data-pointer="/dynamics" @click=${() => this.edit('/dynamics', newDynamics(m))}>+ Add dynamics</button>`}
+            <button data-dynamics-add @click=${() => this.edit('/dynamics', newDynamics(m))}>+ Add dynamics</button>`}
     </details>`;
   }
 
@@ -98,7 +98,7 @@ export class SnDynamicsPanel extends LitElement {
    */
   focusPointer(pointer: string): boolean {
     if (!pointer.startsWith('/dynamics')) return false;
-    const fields = 'input:not(:disabled), select:not(:disabled)';
+    const fields = 'input:not(:disabled), select:not(:disabled), summary';
     const tables = [...this.renderRoot.querySelectorAll('sn-table')];
     for (let p = pointer; p.startsWith('/dynamics'); p = p.slice(0, p.lastIndexOf('/'))) {
       const sel = `[data-pointer="${CSS.escape(p)}"]`;
@@ -131,6 +131,7 @@ export class SnDynamicsPanel extends LitElement {
       <p class="hint">Natural frequencies, the speeds where an order of the reference shaft meets one, and the vibratory torque from the
         excitations. Linear, small vibration; the damping ratio is your estimate; no excitation is assumed unless you list it.
         <button class="remove-dyn" data-dynamics-remove @click=${() => this.edit('/dynamics', undefined)}>Remove dynamics</button></p>
+      ${this.exact('/dynamics')}
       <div class="grid">
         <label for="modes-by">Modes</label>
         <div>
@@ -157,7 +158,7 @@ export class SnDynamicsPanel extends LitElement {
             ${shafts.map((s) => html`<option value=${s} ?selected=${s === speed?.shaft}>${s}</option>`)}
           </select>
           <span class="unit">orders and speeds are per revolution of this shaft</span>
-          ${this.message('/dynamics/speed/shaft')} ${this.message('/dynamics/speed')}
+          ${this.message('/dynamics/speed/shaft')} ${this.exact('/dynamics/speed')}
         </div>
 
         <label>Running speed</label>
@@ -197,7 +198,7 @@ export class SnDynamicsPanel extends LitElement {
       <sn-table .rows=${(dyn.excitations ?? []) as unknown as Row[]} .columns=${excitationColumns(shafts)} pointer="/dynamics/excitations"
         noun="excitation" .system=${this.system} .errors=${this.errors} .selected=${this.selected}
         @sn-row-add=${(e: CustomEvent<RowDetail>) => this.onAdd(e, m, dyn)} @sn-row-remove=${(e: CustomEvent<RowDetail>) => this.onRemove(e, dyn)}></sn-table>
-      ${this.message('/dynamics/excitations')}
+      ${this.exact('/dynamics/excitations')}
     `;
   }
 
@@ -231,12 +232,25 @@ export class SnDynamicsPanel extends LitElement {
     </select>`;
   }
 
+  /** The server's messages for a field and anything inside it ("/dynamics/orders/1" belongs to the orders field). */
+  private serverMessages(pointer: string): string[] {
+    return Object.entries(this.errors)
+      .filter(([p]) => p === pointer || p.startsWith(`${pointer}/`))
+      .map(([, m]) => m);
+  }
+
   private bad(pointer: string): boolean {
-    return Boolean(this.errors[pointer] || this.problems[pointer]);
+    return Boolean(this.problems[pointer]) || this.serverMessages(pointer).length > 0;
   }
 
   private message(pointer: string) {
-    const msg = this.problems[pointer] ?? this.errors[pointer];
+    const msg = this.problems[pointer] ?? this.serverMessages(pointer).join('; ');
+    return msg ? html`<div class="msg" id=${messageId(pointer)}>${msg}</div>` : nothing;
+  }
+
+  /** The server's message for exactly this pointer (its children have fields of their own). */
+  private exact(pointer: string) {
+    const msg = this.errors[pointer];
     return msg ? html`<div class="msg" id=${messageId(pointer)}>${msg}</div>` : nothing;
   }
 

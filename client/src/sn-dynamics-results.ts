@@ -5,6 +5,7 @@ import { dynamicsOf } from './dynamics-edits.js';
 import {
   type CrossingResult,
   type DynamicsSolution,
+  type EnergyShare,
   type ForcedResponse,
   computeCrossings,
   crossingRows,
@@ -63,6 +64,7 @@ export class SnDynamicsResults extends LitElement {
     aside { border-left: 4px solid #d48a1a; background: #fbf5e8; padding: 4px 12px; font-size: 12.5px; color: #4a4030; margin: 4px 0 8px; }
     aside ul { margin: 2px 0; padding-left: 18px; }
     .summary { font-size: 13.5px; margin: 4px 0; }
+    .nowrap { white-space: nowrap; }
     @media print { select { display: none; } }
   `;
 
@@ -119,12 +121,17 @@ export class SnDynamicsResults extends LitElement {
               <td>${r.mode}</td>
               <td class="num">${r.rigid ? html`0 <span class="muted">(rigid-body)</span>` : formatNumber(r.hz, 6)}</td>
               <td class="num">${formatNumber(r.rpm, 6)}</td>
-              <td class="where">${r.rigid ? html`<span class="muted">— (turns as a whole)</span>` : sharesText(r.stiffen)}</td>
-              <td class="where">${sharesText(r.inertia)}</td>
+              <td class="where">${r.rigid ? html`<span class="muted">— (turns as a whole)</span>` : this.shares(r.stiffen)}</td>
+              <td class="where">${this.shares(r.inertia)}</td>
             </tr>`,
           )}
         </tbody>
       </table></div>`;
+  }
+
+  /** Shares as "k1 71 %, input[0] 20 %", each kept on one line. */
+  private shares(list: readonly EnergyShare[]) {
+    return list.map((x, i) => html`${i ? ', ' : ''}<span class="nowrap" data-item=${x.item} data-share=${x.share}>${sharesText([x])}</span>`);
   }
 
   private shapes(s: DynamicsSolution) {
@@ -184,6 +191,8 @@ export class SnDynamicsResults extends LitElement {
         <sn-dynamics-chart data-interference label="Speed–frequency interference" xLabel="speed of the reference shaft [rpm]" yLabel="frequency [Hz]"
           .xMin=${0} .xMax=${d.xMax} .yMin=${0} .yMax=${d.yMax} .bands=${bands} .series=${series} .lines=${lines} .marks=${marks}></sn-dynamics-chart>
       </div>
+      <p class="muted">Shaded: the running range (darker) and the margin either side (lighter). A dashed line per order: frequency = order × speed.
+        A solid line per natural frequency. ◆ a crossing inside the shaded band (a failing check); ○ one outside.</p>
       ${d.above ? html`<p class="muted">${d.above} higher mode${d.above === 1 ? '' : 's'} above the diagram: no order reaches ${d.above === 1 ? 'it' : 'them'} below ${formatNumber(d.xMax, 4)} rpm.</p>` : nothing}
       <div class="wide"><table class="crossings">
         <thead><tr><th>Mode</th><th>Order</th><th>Frequency [Hz]</th><th>At speed [rpm]</th><th>Check</th></tr></thead>
@@ -219,7 +228,10 @@ export class SnDynamicsResults extends LitElement {
     own.forEach((e, i) => series.push({ x, y: ys(e.g), color: EXCITATION_COLOURS[i % EXCITATION_COLOURS.length], label: e.id, dash: '4 3', key: `exc-${e.id}` }));
     series.push({ x, y: sum, color: '#b3261e', label: own.length ? 'sum of amplitudes' : 'amplitude', width: 2, key: 'sum' });
     const peakValue = this.quantity === 'shear' ? seg.peakShear : seg.peakTorque;
-    const marks: ChartMark[] = localPeaks(sum).map((i) => ({ x: x[i], y: sum[i], label: '', key: `grid-${i}` }));
+    // Every resonance the sampled sum shows (inside the range: an end is no resonance), and the engine's resolved peak.
+    const marks: ChartMark[] = localPeaks(sum)
+      .filter((i) => i > 0 && i < sum.length - 1)
+      .map((i) => ({ x: x[i], y: sum[i], label: '', key: `grid-${i}` }));
     if (this.quantity === 'torque' || peakValue !== undefined) {
       const py = toDisplay(peakValue ?? seg.peakTorque, kind, this.system);
       marks.push({ x: fromRadPerS(seg.peakSpeed, 'rpm'), y: py, label: `peak ${formatNumber(py, 4)} ${unit} at ${formatNumber(fromRadPerS(seg.peakSpeed, 'rpm'), 5)} rpm`, fail: false, key: 'peak' });
