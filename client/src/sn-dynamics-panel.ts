@@ -1,6 +1,6 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
-import type { EditModel } from './model-edits.js';
+import { type EditModel, getAt } from './model-edits.js';
 import { type Column, type EditDetail, type RowDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
 import {
@@ -66,8 +66,8 @@ export class SnDynamicsPanel extends LitElement {
   /** Messages by JSON pointer (the server's, keyed by the field they name). */
   declare errors: Readonly<Record<string, string>>;
   declare selected: string;
-  /** What this panel could not read as typed, by pointer (shown until the field is typed again). */
-  declare private problems: Readonly<Record<string, string>>;
+  /** What this panel could not read, by pointer: the message and the text as typed (kept in the field until it reads). */
+  declare private problems: Readonly<Record<string, { message: string; text: string }>>;
 
   constructor() {
     super();
@@ -76,6 +76,11 @@ export class SnDynamicsPanel extends LitElement {
     this.errors = {};
     this.selected = '';
     this.problems = {};
+  }
+
+  override willUpdate(changed: Map<string, unknown>): void {
+    // Another edit (or undo) shows the model's values again: a text that did not read is dropped with its message.
+    if (changed.has('model') && changed.get('model') !== undefined && Object.keys(this.problems).length) this.problems = {};
   }
 
   override render() {
@@ -215,13 +220,16 @@ export class SnDynamicsPanel extends LitElement {
     const bad = this.bad(pointer);
     return html`<input id=${id ?? nothing} data-pointer=${pointer} aria-label=${label} size=${size} spellcheck="false" autocomplete="off"
       class=${bad ? 'invalid' : ''} aria-invalid=${bad ? 'true' : 'false'} aria-describedby=${bad ? messageId(pointer) : nothing}
-      .value=${live(text)}
+      .value=${live(this.problems[pointer]?.text ?? text)}
       @change=${(e: Event) => {
-        const r = read((e.target as HTMLInputElement).value);
+        const typed = (e.target as HTMLInputElement).value;
+        const r = read(typed);
         const { [pointer]: _gone, ...rest } = this.problems;
-        this.problems = r.problem ? { ...rest, [pointer]: r.problem } : rest;
-        // A rate that cannot be read is still stored as typed (the server names the field too); other problems stay here.
-        if (!r.problem || typeof r.value === 'string') commit(r.value);
+        // A rate that cannot be read is stored as typed (its message is read off the model, and the server names
+        // the field too); any other problem stays here, with the text, until the field reads or the model changes.
+        const kept = r.problem !== undefined && typeof r.value !== 'string';
+        this.problems = kept ? { ...rest, [pointer]: { message: r.problem as string, text: typed } } : rest;
+        if (!kept) commit(r.value);
       }}
       @keydown=${commitOnEnter} />`;
   }
@@ -240,11 +248,18 @@ export class SnDynamicsPanel extends LitElement {
   }
 
   private bad(pointer: string): boolean {
-    return Boolean(this.problems[pointer]) || this.serverMessages(pointer).length > 0;
+    return Boolean(this.problems[pointer] ?? this.rateProblem(pointer)) || this.serverMessages(pointer).length > 0;
+  }
+
+  /** A stored rate that does not read ("fast"), said beside its field. */
+  private rateProblem(pointer: string): string | undefined {
+    const stored = getAt(this.model, pointer);
+    if (stored === undefined || readRate(stored) !== null) return undefined;
+    return parseRateInput(String(stored), 'rpm').problem;
   }
 
   private message(pointer: string) {
-    const msg = this.problems[pointer] ?? this.serverMessages(pointer).join('; ');
+    const msg = this.problems[pointer]?.message ?? this.rateProblem(pointer) ?? this.serverMessages(pointer).join('; ');
     return msg ? html`<div class="msg" id=${messageId(pointer)}>${msg}</div>` : nothing;
   }
 
