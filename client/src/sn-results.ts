@@ -140,9 +140,8 @@ export class SnResults extends LitElement {
               Equilibrium: largest residual of Σ torques on a shaft = ${formatValue(s.equilibrium.maxResidual, 'torque', this.system, 3)}
               ${prettyUnit(displayUnit('torque', this.system))}.
             </p>
-            ${this.checks(s)} ${this.raisers(s)}
+            ${this.checks(s)} ${this.raisers(s)} ${s.shafts.map((sh) => this.shaftPlots(sh))}
             <sn-dynamics-results .solution=${s} .model=${this.model} .system=${this.system}></sn-dynamics-results>
-            ${s.shafts.map((sh) => this.shaftPlots(sh))}
           </div>`
         : nothing}`;
   }
