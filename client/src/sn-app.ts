@@ -199,7 +199,7 @@ export class SnApp extends LitElement {
       case 'save-copy':
         return html`<div class="overlay" @click=${this.onOverlayClick}>
           <sn-save-dialog .asNew=${!doc.id || this.panel === 'save-copy'} .busy=${this.library.saveBusy} .error=${this.library.saveError}
-            .baseRevision=${doc.revision} @sn-save=${this.onSave} @sn-close=${this.closePanel}></sn-save-dialog>
+            .baseRevision=${doc.revision} .signedAs=${this.identity?.name ?? ''} @sn-save=${this.onSave} @sn-close=${this.closePanel}></sn-save-dialog>
         </div>`;
       case 'conflict':
         return html`<div class="overlay">
