@@ -56,6 +56,14 @@ export interface ReviewEvent {
 const isRecord = (x: unknown): x is Record<string, unknown> => typeof x === 'object' && x !== null && !Array.isArray(x);
 const isRevision = (x: unknown): x is number => typeof x === 'number' && Number.isInteger(x) && x > 0;
 
+/**
+ * Whether the server records reviews: its `GET /api/session` answer carries `identity` (null included).
+ * An older server's has no such field, and then the client opens no live stream (its route would be a 404).
+ */
+export function hasReviews(session: unknown): boolean {
+  return isRecord(session) && 'identity' in session;
+}
+
 /** A review state, or null for anything else (absent, misspelt). */
 export function readState(x: unknown): ReviewState | null {
   return typeof x === 'string' && (REVIEW_STATES as readonly string[]).includes(x) ? (x as ReviewState) : null;

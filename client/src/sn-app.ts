@@ -26,7 +26,7 @@ import './sn-signin.js';
 import './sn-save-dialog.js';
 import './sn-conflict-dialog.js';
 import './sn-cautions.js';
-import { type Identity, readIdentity } from './review-types.js';
+import { type Identity, hasReviews, readIdentity } from './review-types.js';
 import { ReviewDocumentController } from './review-document.js';
 import { ReviewLiveController } from './review-live.js';
 import type { ReviewDetail } from './sn-review-panel.js';
@@ -85,6 +85,8 @@ export class SnApp extends LitElement {
   declare private notes: Readonly<Record<string, string>>;
   /** Who is signed in with a personal key, or null. */
   declare private identity: Identity | null;
+  /** The server records reviews (it has the live stream). */
+  private reviewsOn = false;
 
   private readonly history = new History<EditModel | null>(null);
   private toastTimer: ReturnType<typeof setTimeout> | undefined;
@@ -103,7 +105,7 @@ export class SnApp extends LitElement {
     panelOpen: () => this.panel !== 'none',
     closePanel: () => this.closePanel(),
   });
-  private readonly live = new ReviewLiveController(this, () => (this.needSignIn ? null : this.library.doc.id));
+  private readonly live = new ReviewLiveController(this, () => (this.needSignIn || !this.reviewsOn ? null : this.library.doc.id));
   private readonly reviews = new ReviewDocumentController(this, {
     subject: () => ({ id: this.library.doc.id, revision: this.library.doc.viewing ?? this.library.doc.revision, tick: this.live.tick }),
     auth: (e) => this.handleAuth(e),
@@ -217,6 +219,7 @@ export class SnApp extends LitElement {
     try {
       const s = await api.session();
       this.identity = readIdentity(s);
+      this.reviewsOn = hasReviews(s);
       if (s.tokenRequired && !s.signedIn) {
         this.needSignIn = true;
         return;
@@ -484,7 +487,10 @@ export class SnApp extends LitElement {
 
   private onSignedIn = (): void => {
     this.needSignIn = false;
-    void api.session().then((s) => (this.identity = readIdentity(s)), () => undefined);
+    void api.session().then((s) => {
+      this.reviewsOn = hasReviews(s);
+      this.identity = readIdentity(s);
+    }, () => undefined);
     void this.library.route();
   };
 

@@ -25,6 +25,7 @@ import {
   type Review,
   type ReviewState,
   type Role,
+  hasReviews,
   readIdentity,
   readReview,
   readReviewEvent,
@@ -171,6 +172,10 @@ describe('the review fields, read tolerantly of an older server', () => {
     expect(readIdentity({ tokenRequired: false, signedIn: false })).toBeNull();
     expect(readIdentity({ identity: { name: 'Lee', role: 'owner' } })).toBeNull();
     expect(readIdentity(undefined)).toBeNull();
+    // A server that records reviews says so by the field, null included; an older one has none (no live stream then).
+    expect(hasReviews({ tokenRequired: false, signedIn: false, identity: null })).toBe(true);
+    expect(hasReviews({ tokenRequired: false, signedIn: false })).toBe(false);
+    expect(hasReviews(null)).toBe(false);
   });
 
   it("reads a stored revision's review and a review answer alike, dropping malformed steps", () => {
