@@ -26,6 +26,12 @@ import './sn-signin.js';
 import './sn-save-dialog.js';
 import './sn-conflict-dialog.js';
 import './sn-cautions.js';
+import { type Identity, hasReviews, readIdentity } from './review-types.js';
+import { ReviewDocumentController } from './review-document.js';
+import { ReviewLiveController } from './review-live.js';
+import type { ReviewDetail } from './sn-review-panel.js';
+import './sn-review-panel.js';
+import './sn-live-notice.js';
 
 type Panel = 'none' | 'library' | 'save' | 'save-copy' | 'conflict';
 
@@ -66,6 +72,7 @@ export class SnApp extends LitElement {
     toast: { state: true },
     needSignIn: { state: true },
     notes: { state: true },
+    identity: { state: true },
   };
 
   declare private model: EditModel | null;
@@ -76,6 +83,10 @@ export class SnApp extends LitElement {
   declare private needSignIn: boolean;
   /** Notes under editor rows (what a gear mesh's new sizing did), by row pointer. */
   declare private notes: Readonly<Record<string, string>>;
+  /** Who is signed in with a personal key, or null. */
+  declare private identity: Identity | null;
+  /** The server records reviews (it has the live stream). */
+  private reviewsOn = false;
 
   private readonly history = new History<EditModel | null>(null);
   private toastTimer: ReturnType<typeof setTimeout> | undefined;
@@ -94,6 +105,12 @@ export class SnApp extends LitElement {
     panelOpen: () => this.panel !== 'none',
     closePanel: () => this.closePanel(),
   });
+  private readonly live = new ReviewLiveController(this, () => (this.needSignIn || !this.reviewsOn ? null : this.library.doc.id));
+  private readonly reviews = new ReviewDocumentController(this, {
+    subject: () => ({ id: this.library.doc.id, revision: this.library.doc.viewing ?? this.library.doc.revision, tick: this.live.tick }),
+    auth: (e) => this.handleAuth(e),
+    say: (text) => this.say(text),
+  });
 
   constructor() {
     super();
@@ -104,6 +121,7 @@ export class SnApp extends LitElement {
     this.toast = '';
     this.needSignIn = false;
     this.notes = {};
+    this.identity = null;
   }
 
   override connectedCallback(): void {
@@ -127,7 +145,7 @@ export class SnApp extends LitElement {
     const marks = this.marks(issues);
     return html`
       <sn-top-bar .modelName=${m?.name ?? ''} .doc=${doc} ?dirty=${dirty} ?canUndo=${this.history.canUndo} ?canRedo=${this.history.canRedo}
-        .system=${this.system} ?hasSolution=${this.solver.solution !== null}
+        .system=${this.system} ?hasSolution=${this.solver.solution !== null} .identity=${this.identity}
         @sn-command=${this.onCommand} @sn-units=${this.onUnits} @sn-import=${this.onImport}></sn-top-bar>
       ${this.library.loading || !m
         ? html`<div class="loading">${this.library.loading || 'No model.'}</div>`
@@ -140,7 +158,11 @@ export class SnApp extends LitElement {
               </div>
             </div>
             <div class="col">
-              <sn-report-head .model=${m} .doc=${doc} ?dirty=${dirty} .system=${this.system} ?fresh=${state === 'fresh'}></sn-report-head>
+              <sn-report-head .model=${m} .doc=${doc} ?dirty=${dirty} .system=${this.system} ?fresh=${state === 'fresh'} .review=${this.reviews.review}></sn-report-head>
+              <sn-review-panel .modelId=${doc.id ?? ''} .review=${this.reviews.review} .author=${this.reviews.author} .revision=${doc.viewing ?? doc.revision}
+                .latest=${Math.max(doc.revision, this.live.revisionEvent?.revision ?? 0)} .identity=${this.identity} ?busy=${this.reviews.busy}
+                .error=${this.reviews.error} ?dirty=${dirty} @sn-review=${(e: CustomEvent<ReviewDetail>) => void this.reviews.submit(e.detail.state, e.detail.note)}
+                @sn-open=${this.onOpen}></sn-review-panel>
               <sn-problems .model=${m} .issues=${issues} ?invalid=${state === 'invalid'} @sn-go=${this.onGo}></sn-problems>
               <div class="card">
                 <h2>Schematic</h2>
@@ -156,6 +178,8 @@ export class SnApp extends LitElement {
           </main>`}
       ${this.renderPanel()}
       ${this.toast ? html`<div class="toast" role="status">${this.toast}</div>` : nothing}
+      <sn-live-notice .modelId=${doc.id ?? ''} .revisionEvent=${this.live.revisionEvent} .reviewEvent=${this.live.reviewEvent} .latest=${doc.revision}
+        ?saving=${this.library.saveBusy} .identity=${this.identity} @sn-open=${this.onOpen}></sn-live-notice>
     `;
   }
 
@@ -177,7 +201,7 @@ export class SnApp extends LitElement {
       case 'save-copy':
         return html`<div class="overlay" @click=${this.onOverlayClick}>
           <sn-save-dialog .asNew=${!doc.id || this.panel === 'save-copy'} .busy=${this.library.saveBusy} .error=${this.library.saveError}
-            .baseRevision=${doc.revision} @sn-save=${this.onSave} @sn-close=${this.closePanel}></sn-save-dialog>
+            .baseRevision=${doc.revision} .signedAs=${this.identity?.name ?? ''} @sn-save=${this.onSave} @sn-close=${this.closePanel}></sn-save-dialog>
         </div>`;
       case 'conflict':
         return html`<div class="overlay">
@@ -194,6 +218,8 @@ export class SnApp extends LitElement {
   private async boot(): Promise<void> {
     try {
       const s = await api.session();
+      this.identity = readIdentity(s);
+      this.reviewsOn = hasReviews(s);
       if (s.tokenRequired && !s.signedIn) {
         this.needSignIn = true;
         return;
@@ -361,6 +387,9 @@ export class SnApp extends LitElement {
       case 'print':
         window.print();
         return;
+      case 'sign-out':
+        void this.signOut();
+        return;
     }
   };
 
@@ -458,8 +487,25 @@ export class SnApp extends LitElement {
 
   private onSignedIn = (): void => {
     this.needSignIn = false;
+    void api.session().then((s) => {
+      this.reviewsOn = hasReviews(s);
+      this.identity = readIdentity(s);
+    }, () => undefined);
     void this.library.route();
   };
+
+  /** Ends this browser's session; the sign-in box follows (unsaved changes are asked about first). */
+  private async signOut(): Promise<void> {
+    if (!this.confirmDiscard()) return;
+    try {
+      await api.signOut();
+    } catch {
+      // Signed out or not, the sign-in box is shown; the next request asks again.
+    }
+    this.identity = null;
+    this.needSignIn = true;
+    this.panel = 'none';
+  }
 
   /** Shows the sign-in box for a 401; true when it did. */
   private handleAuth(e: unknown): boolean {

@@ -1,5 +1,7 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { type DemoInfo, type ModelSummary, type RevisionInfo, ApiError, api } from './api.js';
+import { readReviewState } from './review-types.js';
+import './sn-review-badge.js';
 
 /** Detail of `sn-open`: a saved model, at its latest revision unless `revision` is given. */
 export interface OpenDetail { id: string; revision?: number }
@@ -90,12 +92,13 @@ export class SnLibrary extends LitElement {
           : this.models.length === 0
             ? html`<p class="muted">No saved models${this.query ? ' match' : ' yet'}.</p>`
             : html`<table class="models">
-                <thead><tr><th>Name</th><th>Author</th><th>Updated</th><th>Rev.</th><th></th></tr></thead>
+                <thead><tr><th>Name</th><th>Author</th><th>Updated</th><th>Rev.</th><th>Review</th><th></th></tr></thead>
                 <tbody>
                   ${this.models.map(
                     (m) => html`<tr class=${m.id === this.currentId ? 'current' : ''} data-id=${m.id}>
                       <td>${m.name}${m.archived ? html` <span class="muted">(archived)</span>` : nothing}</td>
                       <td>${m.author}</td><td>${when(m.updated)}</td><td>${m.revision}</td>
+                      <td class="review"><sn-review-badge .state=${readReviewState(m)}></sn-review-badge></td>
                       <td>
                         <button class="primary open" @click=${() => this.open({ id: m.id })}>Open</button>
                         ${m.archived
@@ -121,11 +124,12 @@ export class SnLibrary extends LitElement {
             ${this.revisions === null
               ? html`<p class="muted">Loading…</p>`
               : html`<div class="scroll"><table class="revisions">
-                  <thead><tr><th>Rev.</th><th>Author</th><th>Saved</th><th>Message</th><th></th></tr></thead>
+                  <thead><tr><th>Rev.</th><th>Author</th><th>Saved</th><th>Message</th><th>Review</th><th></th></tr></thead>
                   <tbody>
                     ${[...this.revisions].sort((a, b) => b.revision - a.revision).map(
                       (r) => html`<tr class=${r.revision === this.currentRevision ? 'current' : ''} data-revision=${r.revision}>
                         <td>${r.revision}</td><td>${r.author}</td><td>${when(r.created)}</td><td>${r.message}</td>
+                        <td class="review"><sn-review-badge .state=${readReviewState(r)}></sn-review-badge></td>
                         <td><button @click=${() => this.open({ id: this.currentId, revision: r.revision })}>Open</button></td>
                       </tr>`,
                     )}

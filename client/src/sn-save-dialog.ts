@@ -29,12 +29,15 @@ export class SnSaveDialog extends LitElement {
     busy: { type: Boolean },
     error: { type: String },
     baseRevision: { type: Number },
+    signedAs: { type: String },
   };
 
   declare asNew: boolean;
   declare busy: boolean;
   declare error: string;
   declare baseRevision: number;
+  /** The personal key's name when signed in with one: it is the author (the server ignores a typed one). */
+  declare signedAs: string;
 
   constructor() {
     super();
@@ -42,13 +45,15 @@ export class SnSaveDialog extends LitElement {
     this.busy = false;
     this.error = '';
     this.baseRevision = 0;
+    this.signedAs = '';
   }
 
   override render() {
-    const author = localStorage.getItem('shaftnet.author') ?? '';
+    const author = this.signedAs || (localStorage.getItem('shaftnet.author') ?? '');
     return html`<form @submit=${this.onSubmit} aria-label="Save the model">
       <h2>${this.asNew ? 'Save to the team library' : `Save a new revision (on top of revision ${this.baseRevision})`}</h2>
-      <label>Your name <input name="author" required maxlength="100" .value=${author} autocomplete="name" /></label>
+      <label>Your name <input name="author" required maxlength="100" .value=${author} autocomplete="name" ?readonly=${!!this.signedAs}
+        title=${this.signedAs ? 'Your personal key names you' : ''} /></label>
       <label>What changed <input name="message" required maxlength="500" placeholder="e.g. tail shaft 40 → 45 mm" /></label>
       ${this.error ? html`<p class="err">${this.error}</p>` : nothing}
       <p class="muted">Everyone on this server can open what you save.</p>
@@ -70,7 +75,7 @@ export class SnSaveDialog extends LitElement {
     const form = e.target as HTMLFormElement;
     const author = (form.elements.namedItem('author') as HTMLInputElement).value.trim();
     const message = (form.elements.namedItem('message') as HTMLInputElement).value.trim();
-    localStorage.setItem('shaftnet.author', author);
+    if (!this.signedAs) localStorage.setItem('shaftnet.author', author);
     this.dispatchEvent(new CustomEvent<SaveDetail>('sn-save', { detail: { author, message, asCopy: false }, bubbles: true, composed: true }));
   }
 

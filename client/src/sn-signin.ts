@@ -2,10 +2,11 @@ import { LitElement, css, html, nothing } from 'lit';
 import { api } from './api.js';
 
 /**
- * The sign-in box for a server that needs the team token. Posting the token
- * sets an HttpOnly cookie; the token itself is never stored by the client.
+ * The sign-in box for a server that needs a key: the team token or a personal
+ * key (`snk_…`, which also names who signs reviews). Posting it sets an
+ * HttpOnly cookie; the key itself is never stored by the client.
  *
- * @fires sn-signed-in - the server accepted the token
+ * @fires sn-signed-in - the server accepted the key
  */
 export class SnSignin extends LitElement {
   static override styles = css`
@@ -32,9 +33,10 @@ export class SnSignin extends LitElement {
   override render() {
     return html`<form @submit=${this.onSubmit}>
       <h2>Sign in to Shaftnet</h2>
-      <p>This server is shared by a team and asks for the team token. Ask whoever runs it.</p>
+      <p>This server is shared by a team and asks for a key: the team token or your personal key. Ask whoever runs it.
+        A personal key signs your saves and reviews with your name.</p>
       <input type="text" name="username" autocomplete="username" value="team" hidden />
-      <input type="password" name="token" autocomplete="current-password" aria-label="Team token" placeholder="Team token" required />
+      <input type="password" name="token" autocomplete="current-password" aria-label="Team token or personal key" placeholder="Team token or personal key" required />
       ${this.error ? html`<p class="err">${this.error}</p>` : nothing}
       <button type="submit" ?disabled=${this.busy}>Sign in</button>
     </form>`;

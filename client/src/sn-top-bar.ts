@@ -1,9 +1,10 @@
 import { LitElement, css, html, nothing } from 'lit';
 import type { Doc } from './controllers/library-document.js';
 import { type UnitSystem, UNIT_SYSTEMS, UNIT_SYSTEM_LABELS } from './units.js';
+import type { Identity } from './review-types.js';
 
 /** The commands of the top bar, as `sn-command` details. */
-export type Command = 'undo' | 'redo' | 'library' | 'save' | 'save-copy' | 'link' | 'new' | 'export' | 'csv' | 'print';
+export type Command = 'undo' | 'redo' | 'library' | 'save' | 'save-copy' | 'link' | 'new' | 'export' | 'csv' | 'print' | 'sign-out';
 
 /**
  * The top bar: what is open (name, library revision, an older revision, unsaved
@@ -33,6 +34,8 @@ export class SnTopBar extends LitElement {
     button.primary { background: #e8b04b; color: #1d3a4a; border-color: #e8b04b; font-weight: 600; }
     .sep { width: 1px; height: 20px; background: #3d6b80; flex: none; }
     input[type=file] { display: none; }
+    .who { flex: none; font-size: 12.5px; color: #cfe0e6; }
+    .who b { color: #eef3f5; font-weight: 600; }
   `;
 
   static override properties = {
@@ -43,6 +46,7 @@ export class SnTopBar extends LitElement {
     canRedo: { type: Boolean },
     system: { type: String },
     hasSolution: { type: Boolean },
+    identity: { attribute: false },
   };
 
   declare modelName: string;
@@ -53,6 +57,8 @@ export class SnTopBar extends LitElement {
   declare system: UnitSystem;
   /** Whether there is a station table to write. */
   declare hasSolution: boolean;
+  /** Who is signed in with a personal key (shown, with a sign-out), or null. */
+  declare identity: Identity | null;
 
   constructor() {
     super();
@@ -63,6 +69,7 @@ export class SnTopBar extends LitElement {
     this.canRedo = false;
     this.system = 'si';
     this.hasSolution = false;
+    this.identity = null;
   }
 
   override render() {
@@ -98,6 +105,11 @@ export class SnTopBar extends LitElement {
       <button @click=${cmd('export')} data-action="export" title="Write the model as a JSON file">Export</button>
       <button @click=${cmd('csv')} ?disabled=${!this.hasSolution} data-action="csv" title="Write the station table as CSV">CSV</button>
       <button @click=${cmd('print')} data-action="print" title="Print the report">Print</button>
+      ${this.identity
+        ? html`<span class="sep"></span><span class="who" data-identity=${this.identity.name} data-role=${this.identity.role}
+              title="Signed in with a personal key"><b>${this.identity.name}</b> · ${this.identity.role}</span>
+            <button @click=${cmd('sign-out')} data-action="sign-out" title="Sign out of this browser">Sign out</button>`
+        : nothing}
     </header>`;
   }
 
