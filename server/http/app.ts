@@ -24,7 +24,7 @@ import sessionRoutes from './routes/session.js';
 import solveRoutes from './routes/solve.js';
 import type { SizeLimits } from './solve-core.js';
 import { RouteTable, type RegisteredRoute } from './route-table.js';
-import { MemoryBroadcaster } from './broadcaster.js';
+import { MemoryBroadcaster, type Broadcaster } from './broadcaster.js';
 import { MemorySessionStore, SESSION_DEFAULTS, type SessionLimits, type SessionStore } from './sessions.js';
 import { SolverPool } from './solver-pool.js';
 import { readJsonBody } from './body.js';
@@ -75,6 +75,8 @@ export interface AppOptions {
   readonly warmWorkers?: boolean;
   /** Fastify logger option (default off). */
   readonly logger?: FastifyServerOptions['logger'];
+  /** The live notice's channel (default: in this process, made here). */
+  readonly notices?: Broadcaster;
   /** Between the live notice's keep-alive comments, ms (default 25,000). */
   readonly eventsKeepAliveMs?: number;
   /** Reported by /api/health (default: package.json's). */
@@ -124,7 +126,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     now: opts.now,
   });
   // Live notice of saves and review changes, per model, in this process (routes/events.ts).
-  const notices = new MemoryBroadcaster();
+  const notices = opts.notices ?? new MemoryBroadcaster();
 
   const app = Fastify({
     logger: opts.logger ?? false,
