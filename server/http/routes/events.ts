@@ -40,6 +40,7 @@ const eventsRoutes: FastifyPluginAsyncTypebox<EventsOptions> = async (app, opts)
   app.get(
     '/api/models/:id/events',
     {
+      exposeHeadRoute: false, // a stream has no head to answer alone
       schema: {
         tags: ['library'],
         summary: 'Live notice of the model: saves and review changes, as server-sent events',
