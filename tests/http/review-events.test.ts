@@ -103,7 +103,8 @@ describe('GET /api/models/{id}/events', () => {
     const [saved, reviewed] = events(s.text());
     expect(saved.event).toBe('revision');
     expect(Object.keys(saved.data).sort()).toEqual(['at', 'author', 'id', 'revision']);
-    expect(saved.data).toMatchObject({ id, revision: 2, author: 'Ann' });
+    const stored = (await t.app.inject({ method: 'GET', url: `/api/models/${id}/revisions/2`, headers: ann.auth })).json();
+    expect(saved.data).toEqual({ id, revision: 2, author: 'Ann', at: stored.created });
     expect(reviewed.event).toBe('review');
     const last = rv.json().history.at(-1);
     expect(reviewed.data).toEqual({ id, revision: 2, state: 'returned', by: 'Bob', at: last.at, note: 'bore missing' });

@@ -83,7 +83,10 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
 
   /** Tells the model's live notice about a save. */
   function told(saved: SaveResult, author: string): SaveResult {
-    opts.notices?.publish(saved.id, { event: 'revision', data: { id: saved.id, revision: saved.revision, author, at: new Date().toISOString() } });
+    if (opts.notices === undefined) return saved;
+    const latest = store.revisions(saved.id)?.[0]; // the save just made (the store is synchronous: nothing came between)
+    const at = latest?.revision === saved.revision ? latest.created : new Date().toISOString();
+    opts.notices.publish(saved.id, { event: 'revision', data: { id: saved.id, revision: saved.revision, author, at } });
     return saved;
   }
 
