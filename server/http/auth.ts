@@ -150,9 +150,10 @@ export class TeamAuth {
 
   /**
    * Who the request is: `{ identity }` (null for the team token or open mode),
-   * or undefined when it is not signed in while a key is required.
+   * or undefined when it is not signed in while a key is required. `touch`
+   * (default true) counts the look as a use of the session (its idle timer).
    */
-  async principal(req: FastifyRequest, reply?: FastifyReply): Promise<{ identity: KeyIdentity | null } | undefined> {
+  async principal(req: FastifyRequest, reply?: FastifyReply, touch = true): Promise<{ identity: KeyIdentity | null } | undefined> {
     const header = req.headers.authorization;
     if (typeof header === 'string' && header.length > 0 && this.required()) {
       this.guard(req, reply);
@@ -167,7 +168,7 @@ export class TeamAuth {
     }
     const cookie = req.cookies?.[SESSION_COOKIE];
     if (typeof cookie === 'string') {
-      const session = this.sessions.lookup(cookie, this.now());
+      const session = this.sessions.lookup(cookie, this.now(), touch);
       if (session !== undefined) {
         if (session.keyId === null) return { identity: null };
         const identity = this.liveKey(session.keyId);

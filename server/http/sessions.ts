@@ -23,8 +23,8 @@ export interface SessionStore {
   create(now: number, keyId?: string | null): string;
   /** True when the id is a live session; a use refreshes its idle timer. */
   check(id: string, now: number): boolean;
-  /** The live session of this id (a use refreshes its idle timer), or undefined. */
-  lookup(id: string, now: number): SessionEntry | undefined;
+  /** The live session of this id, or undefined; a use (`touch`, default true) refreshes its idle timer. */
+  lookup(id: string, now: number, touch?: boolean): SessionEntry | undefined;
   /** Ends the session (sign-out). Unknown ids are ignored. */
   revoke(id: string): void;
   /** Live sessions (for tests and the log). */
@@ -88,7 +88,7 @@ export class MemorySessionStore implements SessionStore {
     return this.lookup(id, now) !== undefined;
   }
 
-  lookup(id: string, now: number): SessionEntry | undefined {
+  lookup(id: string, now: number, touch = true): SessionEntry | undefined {
     if (id.length === 0 || id.length > 100) return undefined;
     const key = digest(id);
     const e = this.entries.get(key);
@@ -97,7 +97,7 @@ export class MemorySessionStore implements SessionStore {
       this.entries.delete(key);
       return undefined;
     }
-    e.lastUsed = now;
+    if (touch) e.lastUsed = now;
     return { keyId: e.keyId };
   }
 

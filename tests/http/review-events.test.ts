@@ -133,4 +133,34 @@ describe('GET /api/models/{id}/events', () => {
     expect(events(bySession.text())).toEqual([]);
     expect(notices.listeners(id)).toBe(0);
   });
+
+  it('an open stream does not keep its session alive: the session idles out and the stream ends', async () => {
+    let clock = Date.parse('2026-12-02T08:00:00.000Z');
+    const idle = await makeApp({ token: TEAM, signInPerMinute: 1000, now: () => clock, sessionLimits: { idleMs: 1000 }, eventsKeepAliveMs: 100 });
+    try {
+      await idle.app.listen({ port: 0, host: '127.0.0.1' });
+      const idlePort = (idle.app.server.address() as AddressInfo).port;
+      const made = await idle.app.inject({ method: 'POST', url: '/api/models', headers: { ...json, authorization: `Bearer ${TEAM}` }, payload: JSON.stringify({ model: cantilever(1), author: 'a' }) });
+      const signIn = await idle.app.inject({ method: 'POST', url: '/api/session', headers: json, payload: JSON.stringify({ token: TEAM }) });
+      const cookie = String(signIn.headers['set-cookie']).split(';')[0];
+      let text = '';
+      let ended = false;
+      await new Promise<void>((resolve) => {
+        http.get({ host: '127.0.0.1', port: idlePort, path: `/api/models/${made.json().id}/events`, headers: { cookie } }, (res) => {
+          res.setEncoding('utf8');
+          res.on('data', (d: string) => (text += d));
+          res.on('close', () => (ended = true));
+          resolve();
+        });
+      });
+      clock += 600; // ms after the stream opened (its one use of the session)
+      const seen = (text.match(/: keep-alive/g) ?? []).length;
+      await expect.poll(() => (text.match(/: keep-alive/g) ?? []).length).toBeGreaterThan(seen + 2);
+      expect(ended).toBe(false);
+      clock += 600; // 1200 ms since the last use: idle, had the keep-alives not been uses
+      await expect.poll(() => ended, { timeout: 5000 }).toBe(true);
+    } finally {
+      await idle.close();
+    }
+  });
 });

@@ -62,7 +62,7 @@ const eventsRoutes: FastifyPluginAsyncTypebox<EventsOptions> = async (app, opts)
       const allowed = async (): Promise<boolean> => {
         if (auth === undefined) return true;
         try {
-          const principal = await auth.principal(req);
+          const principal = await auth.principal(req, undefined, false); // an open stream does not keep a session from idling out
           return principal !== undefined && (principal.identity?.keyId ?? null) === keyId;
         } catch {
           return false; // over the sign-in limit
