@@ -5,6 +5,8 @@
  *   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense] [--combination ID]
  *   shaftnet demo [--units si|us] [--json | --csv]
  *   shaftnet serve [server options]        (see server/http/API.md)
+ *   shaftnet keys add|list|revoke ...      (server/cli-keys.ts)
+ *   shaftnet backup | restore ...          (server/cli-backup.ts)
  *
  * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
  * message names the field or the shafts), 1 anything else.
@@ -21,6 +23,8 @@ const USAGE = `usage:
   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense] [--combination ID]
   shaftnet demo [--units si|us] [--json | --csv]
   shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
+  shaftnet keys add NAME --role editor|checker|approver --data DIR | keys list | keys revoke ID|NAME
+  shaftnet backup --data DIR --out FILE | shaftnet restore --data DIR --from FILE
 
   --units si|us   tables and CSV in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
   --json          print the solution object (SI units, compact JSON) instead of tables
@@ -94,6 +98,8 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       await serveFromArgs(rest);
       return 0;
     }
+    if (command === 'keys') return await (await import('./cli-keys.js')).runKeys(rest, out, err);
+    if (command === 'backup' || command === 'restore') return await (await import('./cli-backup.js')).runBackup(command, rest, out, err);
     if (command !== 'solve' && command !== 'demo') {
       err(command === undefined || command === '--help' || command === '-h' ? USAGE : `unknown command ${command}\n${USAGE}`);
       return command === '--help' || command === '-h' ? 0 : 1;

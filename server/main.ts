@@ -17,6 +17,8 @@ export interface RunningServer {
   readonly app: FastifyInstance;
   readonly url: string;
   readonly config: ServerConfig;
+  /** Personal keys in the library at start (revoked ones too): any makes the server need a key. */
+  readonly personalKeys: number;
   close(): Promise<void>;
 }
 
@@ -54,6 +56,7 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
     app,
     url,
     config,
+    personalKeys: store.keys().length,
     async close() {
       await app.close();
       store.close();
@@ -107,6 +110,11 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
   process.stdout.write(
     `Shaftnet is listening on ${server.url}  (library: ${path.join(config.dataDir, 'shaftnet.sqlite')}${config.token ? ', team token required' : ''})\n`,
   );
+  if (server.personalKeys > 0) {
+    process.stdout.write(
+      `Shaftnet: the library holds ${server.personalKeys} personal key(s), so every request needs a personal key${config.token ? ' or the team token' : ' (no team token is set)'}\n`,
+    );
+  }
   let stopping = false;
   const stop = (signal: string) => {
     if (stopping) return;

@@ -15,6 +15,66 @@ const { $id: _modelId, ...modelFields } = Model as typeof Model & { $id?: string
 void _modelId;
 export const EmbeddedModel = modelFields as unknown as typeof Model;
 
+/** A revision's review state (prepared at the save; checked, approved, returned by personal keys). */
+export const ReviewState = Type.Union([Type.Literal('prepared'), Type.Literal('checked'), Type.Literal('approved'), Type.Literal('returned')], {
+  description: 'prepared → checked → approved, or prepared|checked → returned; approved and returned are final.',
+});
+export type ReviewState = Static<typeof ReviewState>;
+
+/** One change of a revision's review state; the first (`prepared`) is the save itself. */
+export const ReviewEntry = Type.Object({
+  state: ReviewState,
+  by: Type.String({ description: "Who: the author of the save, or the personal key's name." }),
+  at: Timestamp,
+  note: Type.Union([Type.String(), Type.Null()]),
+});
+export type ReviewEntry = Static<typeof ReviewEntry>;
+
+/** A revision's review: its state and every change, oldest first. */
+export const Review = Type.Object({ state: ReviewState, history: Type.Array(ReviewEntry) });
+export type Review = Static<typeof Review>;
+
+/** What `POST /api/models/{id}/revisions/{rev}/review` answers. */
+export const ReviewResult = Type.Object({ id: Type.String(), revision: Type.Integer(), state: ReviewState, history: Type.Array(ReviewEntry) });
+export type ReviewResult = Static<typeof ReviewResult>;
+
+/** The states a review request may set. */
+export const ReviewTarget = Type.Union([Type.Literal('checked'), Type.Literal('approved'), Type.Literal('returned')]);
+export type ReviewTarget = Static<typeof ReviewTarget>;
+
+/** A personal key's role: editor (create, save, archive), checker (+ check, return), approver (+ approve). */
+export const KeyRole = Type.Union([Type.Literal('editor'), Type.Literal('checker'), Type.Literal('approver')]);
+export type KeyRole = Static<typeof KeyRole>;
+
+/** Who a personal key says the client is. */
+export const Identity = Type.Object({ name: Type.String(), role: KeyRole });
+export type Identity = Static<typeof Identity>;
+
+/** A personal key as `shaftnet keys list` shows it (never its secret or hash). */
+export const KeyInfo = Type.Object({
+  id: Type.String(),
+  name: Type.String(),
+  role: KeyRole,
+  created: Timestamp,
+  revoked: Type.Union([Timestamp, Type.Null()]),
+});
+export type KeyInfo = Static<typeof KeyInfo>;
+
+/** The data of a live-notice event (`GET /api/models/{id}/events`), `event: revision`. */
+export const RevisionEvent = Type.Object({ id: Type.String(), revision: Type.Integer(), author: Type.String(), at: Timestamp });
+export type RevisionEvent = Static<typeof RevisionEvent>;
+
+/** The data of a live-notice event, `event: review`. */
+export const ReviewEvent = Type.Object({
+  id: Type.String(),
+  revision: Type.Integer(),
+  state: ReviewState,
+  by: Type.String(),
+  at: Timestamp,
+  note: Type.Union([Type.String(), Type.Null()]),
+});
+export type ReviewEvent = Static<typeof ReviewEvent>;
+
 /** One line of the library listing. */
 export const ModelSummary = Type.Object({
   id: Type.String(),
@@ -23,6 +83,7 @@ export const ModelSummary = Type.Object({
   updated: Type.String({ description: 'ISO 8601 time (UTC) of the latest revision.' }),
   revision: Type.Integer(),
   archived: Type.Boolean(),
+  reviewState: ReviewState,
 });
 export type ModelSummary = Static<typeof ModelSummary>;
 
@@ -32,6 +93,7 @@ export const RevisionInfo = Type.Object({
   author: Type.String(),
   message: Type.String(),
   created: Type.String({ description: 'ISO 8601 time (UTC) the revision was saved.' }),
+  reviewState: ReviewState,
 });
 export type RevisionInfo = Static<typeof RevisionInfo>;
 
@@ -44,6 +106,7 @@ export const StoredModel = Type.Object({
   message: Type.String(),
   created: Timestamp,
   archived: Type.Boolean(),
+  review: Review,
 });
 export type StoredModel = Static<typeof StoredModel>;
 
@@ -59,8 +122,12 @@ export type ArchiveState = Static<typeof ArchiveState>;
 export const DemoInfo = Type.Object({ id: Type.String(), name: Type.String(), notes: Type.String() });
 export type DemoInfo = Static<typeof DemoInfo>;
 
-/** Whether the server needs the team token, and whether this client has it. */
-export const SessionInfo = Type.Object({ tokenRequired: Type.Boolean(), signedIn: Type.Boolean() });
+/** Whether the server needs a key (team token or personal key), whether this client has one, and whose. */
+export const SessionInfo = Type.Object({
+  tokenRequired: Type.Boolean(),
+  signedIn: Type.Boolean(),
+  identity: Type.Union([Identity, Type.Null()], { description: 'The personal key signed in; null for the team token, open mode, or signed out.' }),
+});
 export type SessionInfo = Static<typeof SessionInfo>;
 
 /** The answers that wrap a list. */

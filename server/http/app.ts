@@ -17,11 +17,14 @@ import { defaultClientDir, defaultDemosDir, packageVersion } from './paths.js';
 import clientRoutes from './routes/client.js';
 import demosRoutes from './routes/demos.js';
 import healthRoutes from './routes/health.js';
+import eventsRoutes from './routes/events.js';
 import modelsRoutes from './routes/models.js';
+import reviewRoutes from './routes/review.js';
 import sessionRoutes from './routes/session.js';
 import solveRoutes from './routes/solve.js';
 import type { SizeLimits } from './solve-core.js';
 import { RouteTable, type RegisteredRoute } from './route-table.js';
+import { MemoryBroadcaster, type Broadcaster } from './broadcaster.js';
 import { MemorySessionStore, SESSION_DEFAULTS, type SessionLimits, type SessionStore } from './sessions.js';
 import { SolverPool } from './solver-pool.js';
 import { readJsonBody } from './body.js';
@@ -72,6 +75,10 @@ export interface AppOptions {
   readonly warmWorkers?: boolean;
   /** Fastify logger option (default off). */
   readonly logger?: FastifyServerOptions['logger'];
+  /** The live notice's channel (default: in this process, made here). */
+  readonly notices?: Broadcaster;
+  /** Between the live notice's keep-alive comments, ms (default 25,000). */
+  readonly eventsKeepAliveMs?: number;
   /** Reported by /api/health (default: package.json's). */
   readonly version?: string;
 }
@@ -110,10 +117,16 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   const token = opts.token;
   if (token !== undefined && token.length === 0) throw new Error('buildApp: token must not be empty');
   const sessionLimits: SessionLimits = { ...SESSION_DEFAULTS, ...opts.sessionLimits };
-  const auth =
-    token === undefined
-      ? undefined
-      : new TeamAuth(token, opts.sessions ?? new MemorySessionStore(sessionLimits), positiveInt('signInPerMinute', opts.signInPerMinute ?? 10), opts.now);
+  // Always made: personal keys in the library put the server in token mode even without a team token.
+  const auth = new TeamAuth({
+    token,
+    keys: opts.store,
+    sessions: opts.sessions ?? new MemorySessionStore(sessionLimits),
+    signInPerMinute: positiveInt('signInPerMinute', opts.signInPerMinute ?? 10),
+    now: opts.now,
+  });
+  // Live notice of saves and review changes, per model, in this process (routes/events.ts).
+  const notices = opts.notices ?? new MemoryBroadcaster();
 
   const app = Fastify({
     logger: opts.logger ?? false,
@@ -199,11 +212,11 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
       },
       components: {
         securitySchemes: {
-          bearer: { type: 'http', scheme: 'bearer', description: 'The team token (token mode only).' },
+          bearer: { type: 'http', scheme: 'bearer', description: 'The team token or a personal key (token mode only).' },
           session: { type: 'apiKey', in: 'cookie', name: 'shaftnet_session', description: 'Set by POST /api/session.' },
         },
       },
-      security: token === undefined ? [] : [{ bearer: [] }, { session: [] }],
+      security: token === undefined && !opts.store.hasKeys() ? [] : [{ bearer: [] }, { session: [] }],
     },
   });
   await app.register(swaggerUi, {
@@ -238,7 +251,9 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(healthRoutes, { version: opts.version ?? packageVersion(), workers: () => pool.stats() });
   await app.register(sessionRoutes, { auth, maxAgeMs: sessionLimits.absoluteMs });
   await app.register(solveRoutes, { pool, limits, workerThreshold, rateLimitPerMinute });
-  await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold });
+  await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold, notices });
+  await app.register(reviewRoutes, { store: opts.store, notices });
+  await app.register(eventsRoutes, { store: opts.store, notices, auth, keepAliveMs: opts.eventsKeepAliveMs });
   await app.register(demosRoutes, { demos });
   await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir, auth, routes });
 

@@ -11,7 +11,11 @@ export { EmbeddedModel } from '../../shared-types/library.js';
 
 export const ModelId = Type.String({ pattern: '^[A-Za-z0-9_-]{1,64}$', description: 'Model id, as answered by a create.' });
 export const RevisionNumber = Type.Integer({ minimum: 1, maximum: 1_000_000_000, description: 'Revision number, from 1.' });
-export const Author = Type.String({ minLength: 1, maxLength: 100, description: 'Who saves: a name or initials.' });
+export const Author = Type.String({
+  minLength: 1,
+  maxLength: 100,
+  description: "Who saves: a name or initials. Required unless the request carries a personal key, whose name is then the author (a typed one is ignored).",
+});
 export const Message = Type.String({ maxLength: 2000, description: 'What changed; may be empty.' });
 
 export const Issue = Type.Object({
@@ -29,7 +33,7 @@ export const ErrorBody = Type.Object(
       message: Type.String(),
       issues: Type.Array(Issue),
     }),
-    currentRevision: Type.Optional(Type.Integer({ description: 'With SN_STALE_REVISION: the latest revision.' })),
+    currentRevision: Type.Optional(Type.Integer({ description: 'With SN_STALE_REVISION and SN_REVIEW_STALE: the latest revision.' })),
   },
   { description: 'Every 4xx and 5xx answer.' },
 );
@@ -39,13 +43,13 @@ export const errorResponses = (...statuses: number[]): Record<number, typeof Err
   Object.fromEntries(statuses.map((s) => [s, ErrorBody]));
 
 export const CreateBody = Type.Object(
-  { model: EmbeddedModel, author: Author, message: Type.Optional(Message) },
+  { model: EmbeddedModel, author: Type.Optional(Author), message: Type.Optional(Message) },
   { additionalProperties: false },
 );
 export type CreateBody = Static<typeof CreateBody>;
 
 export const UpdateBody = Type.Object(
-  { model: EmbeddedModel, baseRevision: RevisionNumber, author: Author, message: Type.Optional(Message) },
+  { model: EmbeddedModel, baseRevision: RevisionNumber, author: Type.Optional(Author), message: Type.Optional(Message) },
   { additionalProperties: false },
 );
 export type UpdateBody = Static<typeof UpdateBody>;

@@ -12,12 +12,19 @@
  */
 import { createHash, randomBytes } from 'node:crypto';
 
+/** What a live session carries: the personal key it was made with (null: the team token). */
+export interface SessionEntry {
+  readonly keyId: string | null;
+}
+
 /** Where sessions live. Times are milliseconds since the epoch, passed in (testable, no hidden clock). */
 export interface SessionStore {
-  /** Makes a new session and answers its id (the cookie value). */
-  create(now: number): string;
+  /** Makes a new session (made with the personal key `keyId`, or the team token) and answers its id (the cookie value). */
+  create(now: number, keyId?: string | null): string;
   /** True when the id is a live session; a use refreshes its idle timer. */
   check(id: string, now: number): boolean;
+  /** The live session of this id, or undefined; a use (`touch`, default true) refreshes its idle timer. */
+  lookup(id: string, now: number, touch?: boolean): SessionEntry | undefined;
   /** Ends the session (sign-out). Unknown ids are ignored. */
   revoke(id: string): void;
   /** Live sessions (for tests and the log). */
@@ -42,6 +49,7 @@ export const SESSION_DEFAULTS: SessionLimits = {
 interface Entry {
   readonly created: number;
   lastUsed: number;
+  readonly keyId: string | null;
 }
 
 /** The server keeps only a digest of each id: a dump of its memory holds no usable cookie. */
@@ -63,7 +71,7 @@ export class MemorySessionStore implements SessionStore {
     for (const [k, e] of this.entries) if (!this.live(e, now)) this.entries.delete(k);
   }
 
-  create(now: number): string {
+  create(now: number, keyId: string | null = null): string {
     if (this.entries.size >= this.limits.maxSessions) {
       this.sweep(now);
       while (this.entries.size >= this.limits.maxSessions) {
@@ -72,21 +80,25 @@ export class MemorySessionStore implements SessionStore {
       }
     }
     const id = randomBytes(32).toString('base64url');
-    this.entries.set(digest(id), { created: now, lastUsed: now });
+    this.entries.set(digest(id), { created: now, lastUsed: now, keyId });
     return id;
   }
 
   check(id: string, now: number): boolean {
-    if (id.length === 0 || id.length > 100) return false;
+    return this.lookup(id, now) !== undefined;
+  }
+
+  lookup(id: string, now: number, touch = true): SessionEntry | undefined {
+    if (id.length === 0 || id.length > 100) return undefined;
     const key = digest(id);
     const e = this.entries.get(key);
-    if (!e) return false;
+    if (!e) return undefined;
     if (!this.live(e, now)) {
       this.entries.delete(key);
-      return false;
+      return undefined;
     }
-    e.lastUsed = now;
-    return true;
+    if (touch) e.lastUsed = now;
+    return { keyId: e.keyId };
   }
 
   revoke(id: string): void {

@@ -18,13 +18,24 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import Database from 'better-sqlite3';
+import type { KeyRole, ReviewEntry, ReviewState } from '../../shared-types/library.js';
+import { currentState, reviewRefusal, samePerson } from './review-rules.js';
 import {
+  KeyNameTakenError,
   ModelNotFoundError,
+  ReviewRefusedError,
+  ReviewStaleError,
+  RevisionNotFoundError,
   StaleRevisionError,
   StoreFullError,
+  type KeyInfo,
+  type KeyRecord,
   type ListFilter,
   type ModelStore,
   type ModelSummary,
+  type NewKey,
+  type ReviewInput,
+  type ReviewResult,
   type RevisionInfo,
   type SaveInput,
   type SaveResult,
@@ -34,7 +45,8 @@ import {
 /** File name of the database inside the data directory. */
 export const DATABASE_FILE = 'shaftnet.sqlite';
 
-const SCHEMA_VERSION = 1;
+/** 2: review changes and personal keys (an older server refuses the library rather than ignore its keys). */
+const SCHEMA_VERSION = 2;
 
 const SCHEMA = `
 CREATE TABLE IF NOT EXISTS models (
@@ -57,7 +69,32 @@ CREATE TABLE IF NOT EXISTS revisions (
 ) WITHOUT ROWID;
 CREATE INDEX IF NOT EXISTS models_updated ON models(archived, updated DESC);
 CREATE TABLE IF NOT EXISTS meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
+CREATE TABLE IF NOT EXISTS reviews (
+  model_id  TEXT NOT NULL,
+  revision  INTEGER NOT NULL,
+  seq       INTEGER NOT NULL,
+  state     TEXT NOT NULL CHECK (state IN ('checked', 'approved', 'returned')),
+  actor     TEXT NOT NULL,
+  at        TEXT NOT NULL,
+  note      TEXT,
+  PRIMARY KEY (model_id, revision, seq),
+  FOREIGN KEY (model_id, revision) REFERENCES revisions(model_id, revision)
+) WITHOUT ROWID;
+CREATE TABLE IF NOT EXISTS keys (
+  id        TEXT PRIMARY KEY,
+  name      TEXT NOT NULL,
+  role      TEXT NOT NULL CHECK (role IN ('editor', 'checker', 'approver')),
+  created   TEXT NOT NULL,
+  revoked   TEXT,
+  salt      TEXT NOT NULL,
+  hash      TEXT NOT NULL,
+  params    TEXT NOT NULL
+);
 `;
+
+/** The review state of a revision: its last review change, else prepared. */
+const STATE_OF = (model: string, revision: string) =>
+  `COALESCE((SELECT state FROM reviews r WHERE r.model_id = ${model} AND r.revision = ${revision} ORDER BY r.seq DESC LIMIT 1), 'prepared')`;
 
 // 32 symbols without look-alikes (no l, o, 0, 1): ids read well in /m/:id links.
 const ID_ALPHABET = 'abcdefghijkmnpqrstuvwxyz23456789';
@@ -77,6 +114,7 @@ interface ModelRow {
   author: string;
   revision: number;
   archived: number;
+  review_state?: ReviewState;
 }
 
 interface RevisionRow {
@@ -85,6 +123,25 @@ interface RevisionRow {
   author: string;
   message: string;
   created: string;
+  review_state?: ReviewState;
+}
+
+interface ReviewRow {
+  state: ReviewState;
+  actor: string;
+  at: string;
+  note: string | null;
+}
+
+interface KeyRow {
+  id: string;
+  name: string;
+  role: KeyRole;
+  created: string;
+  revoked: string | null;
+  salt: string;
+  hash: string;
+  params: string;
 }
 
 /**
@@ -414,6 +471,9 @@ export class SqliteStore implements ModelStore {
   private readonly createTx;
   private readonly saveTx;
   private readonly seedTx;
+  private readonly reviewTx;
+  private readonly addKeyTx;
+  private readonly revokeKeyTx;
 
   constructor(
     private readonly db: Database.Database,
@@ -427,7 +487,7 @@ export class SqliteStore implements ModelStore {
     db.pragma('foreign_keys = ON');
     db.exec(SCHEMA);
     const version = db.pragma('user_version', { simple: true }) as number;
-    if (version === 0) db.pragma(`user_version = ${SCHEMA_VERSION}`);
+    if (version < SCHEMA_VERSION) db.pragma(`user_version = ${SCHEMA_VERSION}`); // 0 and 1: the new tables were just made
     else if (version > SCHEMA_VERSION) {
       throw new LibraryOpenError(
         `the library ${file} was written by a newer Shaftnet (schema ${version}, this one reads ${SCHEMA_VERSION}); run that version, or choose another --data.`,
@@ -450,14 +510,28 @@ export class SqliteStore implements ModelStore {
         'SELECT revision, model, author, message, created FROM revisions WHERE model_id = ? AND revision = ?',
       ),
       revisions: db.prepare<[string], RevisionRow>(
-        'SELECT revision, author, message, created FROM revisions WHERE model_id = ? ORDER BY revision DESC',
+        `SELECT revision, author, message, created, ${STATE_OF('v.model_id', 'v.revision')} AS review_state FROM revisions v WHERE model_id = ? ORDER BY revision DESC`,
       ),
       list: db.prepare<[number], ModelRow>(
-        'SELECT id, name, updated, author, revision, archived FROM models WHERE archived = ? ORDER BY updated DESC, id',
+        `SELECT id, name, updated, author, revision, archived, ${STATE_OF('m.id', 'm.revision')} AS review_state FROM models m WHERE archived = ? ORDER BY updated DESC, id`,
       ),
       search: db.prepare<[number, string], ModelRow>(
-        "SELECT id, name, updated, author, revision, archived FROM models WHERE archived = ? AND name LIKE ? ESCAPE '\\' ORDER BY updated DESC, id",
+        `SELECT id, name, updated, author, revision, archived, ${STATE_OF('m.id', 'm.revision')} AS review_state FROM models m WHERE archived = ? AND name LIKE ? ESCAPE '\\' ORDER BY updated DESC, id`,
       ),
+      reviews: db.prepare<[string, number], ReviewRow>(
+        'SELECT state, actor, at, note FROM reviews WHERE model_id = ? AND revision = ? ORDER BY seq',
+      ),
+      insertReview: db.prepare(
+        'INSERT INTO reviews (model_id, revision, seq, state, actor, at, note) VALUES (?, ?, ?, ?, ?, ?, ?)',
+      ),
+      insertKey: db.prepare(
+        'INSERT INTO keys (id, name, role, created, revoked, salt, hash, params) VALUES (?, ?, ?, ?, NULL, ?, ?, ?)',
+      ),
+      keys: db.prepare<[], KeyRow>('SELECT id, name, role, created, revoked, salt, hash, params FROM keys ORDER BY created, id'),
+      keyById: db.prepare<[string], KeyRow>('SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE id = ?'),
+      activeKeys: db.prepare<[], KeyRow>('SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE revoked IS NULL'),
+      revokeKey: db.prepare('UPDATE keys SET revoked = ? WHERE id = ? AND revoked IS NULL'),
+      anyKey: db.prepare<[], { one: number }>('SELECT 1 AS one FROM keys LIMIT 1'),
       setArchived: db.prepare('UPDATE models SET archived = ? WHERE id = ?'),
       count: db.prepare<[], { n: number }>('SELECT COUNT(*) AS n FROM models'),
       getMeta: db.prepare<[string], { value: string }>('SELECT value FROM meta WHERE key = ?'),
@@ -485,6 +559,35 @@ export class SqliteStore implements ModelStore {
       }
       this.stmts.setMeta.run(marker, new Date().toISOString());
       return created;
+    });
+
+    this.reviewTx = db.transaction((input: ReviewInput): ReviewResult => {
+      const row = this.stmts.modelById.get(input.id);
+      if (!row) throw new ModelNotFoundError(input.id);
+      const rev = this.stmts.revision.get(input.id, input.revision);
+      if (!rev) throw new RevisionNotFoundError(input.id, input.revision);
+      if (row.revision !== input.revision) throw new ReviewStaleError(input.id, input.revision, row.revision);
+      const history = this.history(input.id, rev);
+      const refusal = reviewRefusal(history, input.state, input.by);
+      if (refusal) throw new ReviewRefusedError(refusal.kind, refusal.message);
+      const note = input.note === null || input.note.trim() === '' ? null : input.note;
+      const at = new Date().toISOString();
+      this.stmts.insertReview.run(input.id, input.revision, history.length, input.state, input.by, at, note);
+      history.push({ state: input.state, by: input.by, at, note });
+      return { id: input.id, revision: input.revision, state: input.state, history };
+    });
+
+    this.addKeyTx = db.transaction((key: NewKey): KeyInfo => {
+      if (this.stmts.activeKeys.all().some((k) => samePerson(k.name, key.name))) throw new KeyNameTakenError(key.name);
+      this.stmts.insertKey.run(key.id, key.name, key.role, key.created, key.salt, key.hash, key.params);
+      return { id: key.id, name: key.name, role: key.role, created: key.created, revoked: null };
+    });
+
+    this.revokeKeyTx = db.transaction((idOrName: string, at: string): KeyInfo | undefined => {
+      const row = this.stmts.keyById.get(idOrName) ?? this.stmts.activeKeys.all().find((k) => samePerson(k.name, idOrName));
+      if (!row) return undefined;
+      this.stmts.revokeKey.run(at, row.id);
+      return keyInfo(this.stmts.keyById.get(row.id) as KeyRow);
     });
 
     this.saveTx = db.transaction((id: string, baseRevision: number, input: SaveInput): SaveResult => {
@@ -585,6 +688,7 @@ export class SqliteStore implements ModelStore {
       this.damage ??= `revision ${rev.revision} of model ${id} is no longer the JSON that was saved`;
       throw err;
     }
+    const history = this.read(() => this.history(id, rev));
     return {
       id,
       revision: rev.revision,
@@ -593,7 +697,44 @@ export class SqliteStore implements ModelStore {
       message: rev.message,
       created: rev.created,
       archived: row.archived === 1,
+      review: { state: currentState(history), history },
     };
+  }
+
+  /** A revision's review history, oldest first: the save (prepared), then every change. */
+  private history(id: string, rev: Pick<RevisionRow, 'revision' | 'author' | 'created'>): ReviewEntry[] {
+    const history: ReviewEntry[] = [{ state: 'prepared', by: rev.author, at: rev.created, note: null }];
+    for (const r of this.stmts.reviews.all(id, rev.revision)) history.push({ state: r.state, by: r.actor, at: r.at, note: r.note });
+    return history;
+  }
+
+  review(input: ReviewInput): ReviewResult {
+    return this.write(() => this.reviewTx.immediate(input));
+  }
+
+  addKey(key: NewKey): KeyInfo {
+    return this.write(() => this.addKeyTx.immediate(key));
+  }
+
+  keys(): KeyInfo[] {
+    return this.read(() => this.stmts.keys.all()).map(keyInfo);
+  }
+
+  keyRecord(id: string): KeyRecord | undefined {
+    const row = this.read(() => this.stmts.keyById.get(id));
+    return row && { ...keyInfo(row), salt: row.salt, hash: row.hash, params: row.params };
+  }
+
+  revokeKey(idOrName: string, at: string): KeyInfo | undefined {
+    return this.write(() => this.revokeKeyTx.immediate(idOrName, at));
+  }
+
+  hasKeys(): boolean {
+    return this.read(() => this.stmts.anyKey.get() !== undefined);
+  }
+
+  latestRevision(id: string): number | undefined {
+    return this.read(() => this.stmts.modelById.get(id))?.revision;
   }
 
   revisions(id: string): RevisionInfo[] | undefined {
@@ -603,6 +744,7 @@ export class SqliteStore implements ModelStore {
       author: r.author,
       message: r.message,
       created: r.created,
+      reviewState: r.review_state ?? 'prepared',
     }));
   }
 
@@ -636,5 +778,10 @@ function summary(row: ModelRow): ModelSummary {
     updated: row.updated,
     revision: row.revision,
     archived: row.archived === 1,
+    reviewState: row.review_state ?? 'prepared',
   };
+}
+
+function keyInfo(row: KeyRow): KeyInfo {
+  return { id: row.id, name: row.name, role: row.role, created: row.created, revoked: row.revoked };
 }

@@ -7,7 +7,11 @@
  * (better-sqlite3) is, and a save is acknowledged only after it is durable.
  */
 import type {
+  KeyInfo as WireKeyInfo,
+  KeyRole,
   ModelSummary as WireModelSummary,
+  ReviewResult as WireReviewResult,
+  ReviewTarget,
   RevisionInfo as WireRevisionInfo,
   Saved,
   StoredModel,
@@ -81,7 +85,108 @@ export class StoreFullError extends Error {
   }
 }
 
-export interface ModelStore {
+/** A personal key as listed (shared-types/library.ts): never its secret or hash. */
+export type KeyInfo = Readonly<WireKeyInfo>;
+
+/** A personal key as stored: its info and the scrypt hash of its secret. */
+export interface KeyRecord extends KeyInfo {
+  /** The per-key salt, base64url. */
+  readonly salt: string;
+  /** scrypt(secret, salt) with `params`, base64url. */
+  readonly hash: string;
+  /** scrypt's cost parameters as "N,r,p" (kept per key, so the cost can change later). */
+  readonly params: string;
+}
+
+/** What `addKey` stores. */
+export interface NewKey {
+  readonly id: string;
+  readonly name: string;
+  readonly role: KeyRole;
+  readonly created: string;
+  readonly salt: string;
+  readonly hash: string;
+  readonly params: string;
+}
+
+/**
+ * The personal keys. Plain data in and out; the hashing is in keys.ts.
+ * Revocation marks a key (it stays listed) and takes effect at the key's next use:
+ * the server reads the row on every request made with the key or its session.
+ */
+export interface KeyStore {
+  /** Stores a new key; throws KeyNameTakenError when a key not revoked has that name (any case). */
+  addKey(key: NewKey): KeyInfo;
+  /** Every key, revoked ones too, oldest first. */
+  keys(): KeyInfo[];
+  /** One key with its hash, revoked or not; undefined for an unknown id. */
+  keyRecord(id: string): KeyRecord | undefined;
+  /**
+   * Revokes the key with this id, or else the key not revoked with this name (any case);
+   * answers it (a key already revoked keeps its time), or undefined when none matches.
+   */
+  revokeKey(idOrName: string, at: string): KeyInfo | undefined;
+  /** True when the library holds any personal key, revoked or not: the server then needs a key. */
+  hasKeys(): boolean;
+}
+
+/** Thrown by `addKey` when a key not revoked already has the name. */
+export class KeyNameTakenError extends Error {
+  constructor(readonly keyName: string) {
+    super(`a key named "${keyName}" exists and is not revoked; revoke it first, or choose another name`);
+    this.name = 'KeyNameTakenError';
+  }
+}
+
+/** What a review change stores. */
+export interface ReviewInput {
+  readonly id: string;
+  readonly revision: number;
+  readonly state: ReviewTarget;
+  /** The personal key's name. */
+  readonly by: string;
+  /** Required (non-empty) for `returned`; null or empty otherwise means none. */
+  readonly note: string | null;
+}
+
+/** What a review change answers (shared-types/library.ts). */
+export type ReviewResult = Readonly<WireReviewResult>;
+
+/** Thrown by `review` for a revision that does not exist (the model does). */
+export class RevisionNotFoundError extends Error {
+  constructor(
+    readonly id: string,
+    readonly revision: number,
+  ) {
+    super(`model ${id} has no revision ${revision}`);
+    this.name = 'RevisionNotFoundError';
+  }
+}
+
+/** Thrown by `review` when the revision is not the model's latest. */
+export class ReviewStaleError extends Error {
+  constructor(
+    readonly id: string,
+    readonly revision: number,
+    readonly currentRevision: number,
+  ) {
+    super(`revision ${revision} of model ${id} is not the latest (${currentRevision}): only the latest revision is reviewed`);
+    this.name = 'ReviewStaleError';
+  }
+}
+
+/** Thrown by `review` for a state that cannot follow the current one, or a four-eyes breach. */
+export class ReviewRefusedError extends Error {
+  constructor(
+    readonly kind: 'state' | 'four-eyes',
+    message: string,
+  ) {
+    super(message);
+    this.name = 'ReviewRefusedError';
+  }
+}
+
+export interface ModelStore extends KeyStore {
   /** Creates a model at revision 1. */
   create(input: SaveInput): SaveResult;
   /** Saves revision baseRevision + 1; throws StaleRevisionError if baseRevision is not the latest. */
@@ -90,6 +195,8 @@ export interface ModelStore {
   list(filter: ListFilter): ModelSummary[];
   /** The latest revision, or the given one; undefined if either does not exist. */
   get(id: string, revision?: number): StoredRevision | undefined;
+  /** The number of a model's latest revision, without reading it; undefined for an unknown id. */
+  latestRevision(id: string): number | undefined;
   /** Every revision of a model, newest first; undefined for an unknown id. */
   revisions(id: string): RevisionInfo[] | undefined;
   /** Archives or restores; undefined for an unknown id. */
@@ -107,5 +214,11 @@ export interface ModelStore {
    * flag was set, by this process or another one).
    */
   seedOnce(marker: string, inputs: readonly SaveInput[]): number;
+  /**
+   * Records a review change of the model's latest revision, in one write transaction
+   * that checks it against the rules (review-rules.ts). Throws ModelNotFoundError,
+   * RevisionNotFoundError, ReviewStaleError (not the latest) or ReviewRefusedError.
+   */
+  review(input: ReviewInput): ReviewResult;
   close(): void;
 }

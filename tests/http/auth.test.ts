@@ -45,7 +45,7 @@ describe('token mode', () => {
   it('leaves health, the session routes and the client page open', async () => {
     expect((await t.app.inject({ method: 'GET', url: '/api/health' })).statusCode).toBe(200);
     const s = await t.app.inject({ method: 'GET', url: '/api/session' });
-    expect(s.json()).toEqual({ tokenRequired: true, signedIn: false });
+    expect(s.json()).toEqual({ tokenRequired: true, signedIn: false, identity: null });
     expect((await t.app.inject({ method: 'GET', url: '/' })).statusCode).toBe(200);
   });
 
@@ -54,7 +54,7 @@ describe('token mode', () => {
     expect(r.statusCode).toBe(200);
     const m = await t.app.inject({ method: 'GET', url: '/api/models', headers: bearer });
     expect(m.statusCode).toBe(200);
-    expect((await t.app.inject({ method: 'GET', url: '/api/session', headers: bearer })).json()).toEqual({ tokenRequired: true, signedIn: true });
+    expect((await t.app.inject({ method: 'GET', url: '/api/session', headers: bearer })).json()).toEqual({ tokenRequired: true, signedIn: true, identity: null });
   });
 
   it('signs in with POST /api/session: an HttpOnly SameSite=Strict cookie that works instead of the header', async () => {
@@ -65,7 +65,7 @@ describe('token mode', () => {
 
     const ok = await t.app.inject({ method: 'POST', url: '/api/session', payload: JSON.stringify({ token: TOKEN }), headers: json });
     expect(ok.statusCode).toBe(200);
-    expect(ok.json()).toEqual({ tokenRequired: true, signedIn: true });
+    expect(ok.json()).toEqual({ tokenRequired: true, signedIn: true, identity: null });
     const setCookie = String(ok.headers['set-cookie']);
     expect(setCookie).toMatch(/^shaftnet_session=/);
     expect(setCookie).toMatch(/HttpOnly/);
@@ -92,7 +92,7 @@ describe('token mode', () => {
   it('an open server needs no token and says so', async () => {
     const open = await makeApp();
     try {
-      expect((await open.app.inject({ method: 'GET', url: '/api/session' })).json()).toEqual({ tokenRequired: false, signedIn: true });
+      expect((await open.app.inject({ method: 'GET', url: '/api/session' })).json()).toEqual({ tokenRequired: false, signedIn: true, identity: null });
       expect((await open.app.inject({ method: 'GET', url: '/api/models' })).statusCode).toBe(200);
     } finally {
       await open.close();

@@ -27,7 +27,7 @@ describe('model library', () => {
     const body = r.json();
     expect(body).toMatchObject({ id, revision: 1, author: 'ann', message: 'initial design', archived: false });
     expect(body.model).toEqual(model); // units as typed, not converted
-    expect(Object.keys(body).sort()).toEqual(['archived', 'author', 'created', 'id', 'message', 'model', 'revision']);
+    expect(Object.keys(body).sort()).toEqual(['archived', 'author', 'created', 'id', 'message', 'model', 'review', 'revision']);
   });
 
   it('PUT saves a new revision; revisions list newest first; each revision readable', async () => {

@@ -91,6 +91,8 @@ describe('deny by default: the route walk', () => {
     const seen = new Set(routes.map((r) => `${r.method} ${r.url}`));
     expect(routes.filter((r) => r.public).map((r) => `${r.method} ${r.url}`).sort()).toEqual([...PUBLIC].sort());
     for (const p of PUBLIC) expect(seen.has(p), p).toBe(true);
+    // The review routes are in the walk (issue 13).
+    for (const p of ['POST /api/models/:id/revisions/:rev/review', 'GET /api/models/:id/events']) expect(seen.has(p), p).toBe(true);
     let protectedCount = 0;
     for (const r of routes) {
       const key = `${r.method} ${r.url}`;

@@ -73,7 +73,7 @@ const clientRoutes: FastifyPluginAsync<ClientOptions> = async (app, opts) => {
       return reply.type('text/html; charset=utf-8').send(PLACEHOLDER);
     }
     // Past the client's page, deny by default: nothing about the routes is told without the token.
-    if (opts.auth !== undefined && !opts.auth.isSignedIn(req, reply)) throw unauthorised();
+    if (opts.auth !== undefined && !(await opts.auth.isSignedIn(req, reply))) throw unauthorised();
     const methods = opts.routes?.methodsFor(url) ?? [];
     if (methods.length > 0) {
       const message = `${url} does not take ${req.method}; it takes ${methods.join(', ')}`;

@@ -9,14 +9,17 @@
  * may be saved; solving it answers the 422.
  */
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import type { FastifyRequest } from 'fastify';
 import Type from 'typebox';
 import { ModelError } from '../../../shared-types/errors.js';
 import { Model, type Model as ModelT } from '../../../shared-types/model.js';
 import { ArchiveState, ModelList, RevisionList, Saved, StoredModel } from '../../../shared-types/library.js';
 import { slug } from '../../../shared-types/present.js';
 import { normaliseModel } from '../../engine/normalise.js';
-import type { ModelStore, StoredRevision } from '../../store/store.js';
+import type { ModelStore, SaveResult, StoredRevision } from '../../store/store.js';
 import { ModelNotFoundError, StaleRevisionError } from '../../store/store.js';
+import { identityOf } from '../auth.js';
+import type { Broadcaster } from '../broadcaster.js';
 import { HttpError, prefixIssues } from '../errors.js';
 import { Author, CreateBody, errorResponses, IdParams, ListQuery, Message, RevisionNumber, RevisionParams, UpdateBody } from '../schemas.js';
 import { checkSize, type SizeLimits } from '../solve-core.js';
@@ -28,6 +31,8 @@ export interface ModelsOptions {
   readonly limits: SizeLimits;
   /** stations above which validation runs in a worker */
   readonly workerThreshold: number;
+  /** The live notice: every save is told to the model's listeners (routes/events.ts). */
+  readonly notices?: Broadcaster;
 }
 
 function notFound(id: string, revision?: number): HttpError {
@@ -62,6 +67,29 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
 
   const nameOf = (model: { name: string }) => model.name;
 
+  /**
+   * The author of a save: the personal key's name when the request has one (a
+   * typed author is ignored), else the typed author, which is then required.
+   */
+  function authorOf(req: FastifyRequest, typed: string | undefined): string {
+    const identity = identityOf(req);
+    if (identity !== null) return identity.name;
+    if (typed === undefined) {
+      const message = 'who saves? "author" is required (a name or initials) unless you use a personal key';
+      throw new HttpError('SN_SCHEMA', message, [{ code: 'SN_SCHEMA', pointer: '/author', message }]);
+    }
+    return typed;
+  }
+
+  /** Tells the model's live notice about a save. */
+  function told(saved: SaveResult, author: string): SaveResult {
+    if (opts.notices === undefined) return saved;
+    const latest = store.revisions(saved.id)?.[0]; // the save just made (the store is synchronous: nothing came between)
+    const at = latest?.revision === saved.revision ? latest.created : new Date().toISOString();
+    opts.notices.publish(saved.id, { event: 'revision', data: { id: saved.id, revision: saved.revision, author, at } });
+    return saved;
+  }
+
   app.post(
     '/api/models',
     {
@@ -73,10 +101,11 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
       },
     },
     async (req, reply) => {
-      const { model, author, message } = req.body;
+      const { model, message } = req.body;
+      const author = authorOf(req, req.body.author);
       await validateForSave(model, '/model');
       const saved = store.create({ model, name: nameOf(model), author, message: message ?? '' });
-      return reply.code(201).send(saved);
+      return reply.code(201).send(told(saved, author));
     },
   );
 
@@ -124,11 +153,12 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
     },
     async (req) => {
       const { id } = req.params;
-      const { model, baseRevision, author, message } = req.body;
-      if (!store.get(id)) throw notFound(id);
+      const { model, baseRevision, message } = req.body;
+      const author = authorOf(req, req.body.author);
+      if (store.latestRevision(id) === undefined) throw notFound(id);
       await validateForSave(model, '/model');
       try {
-        return store.save(id, baseRevision, { model, name: nameOf(model), author, message: message ?? '' });
+        return told(store.save(id, baseRevision, { model, name: nameOf(model), author, message: message ?? '' }), author);
       } catch (err) {
         if (err instanceof StaleRevisionError) {
           const text = `model "${id}" was saved since revision ${baseRevision}: the current revision is ${err.currentRevision}; reload it, merge your changes and save on top of it`;
@@ -174,7 +204,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
     },
     async (req) => {
       const { id, rev } = req.params;
-      if (!store.get(id)) throw notFound(id);
+      if (store.latestRevision(id) === undefined) throw notFound(id);
       const found = store.get(id, rev);
       if (!found) throw notFound(id, rev);
       return found as StoredRevision & { model: ModelT };
@@ -234,21 +264,22 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         tags: ['library'],
         summary: 'Import a model file as a new model',
         description: 'The body is the model file itself; pointers in a 400 are into it.',
-        querystring: Type.Object({ author: Author, message: Type.Optional(Message) }, { additionalProperties: false }),
+        querystring: Type.Object({ author: Type.Optional(Author), message: Type.Optional(Message) }, { additionalProperties: false }),
         body: Model,
         response: { 201: Saved, ...errorResponses(400, 401, 413) },
       },
     },
     async (req, reply) => {
       const model = req.body;
+      const author = authorOf(req, req.query.author);
       await validateForSave(model, '');
       const saved = store.create({
         model,
         name: nameOf(model),
-        author: req.query.author,
+        author,
         message: req.query.message ?? 'Imported from a file',
       });
-      return reply.code(201).send(saved);
+      return reply.code(201).send(told(saved, author));
     },
   );
 };

@@ -1,5 +1,6 @@
 /**
  * Sign-in for token mode, all three routes public: `POST /api/session {token}`
+ * (the team token or a personal key, whose identity the session then carries)
  * makes a new server-side session and sets its id in an HttpOnly,
  * SameSite=Strict cookie (Secure when the request came over TLS, directly or
  * through a proxy the server trusts); `GET /api/session` says whether a token
@@ -8,7 +9,7 @@
  */
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import Type from 'typebox';
-import { SESSION_COOKIE, type TeamAuth } from '../auth.js';
+import { SESSION_COOKIE, type KeyIdentity, type TeamAuth } from '../auth.js';
 import { errorResponses } from '../schemas.js';
 import { SESSION_DEFAULTS } from '../sessions.js';
 import { SessionInfo } from '../../../shared-types/library.js';
@@ -21,6 +22,9 @@ export interface SessionOptions {
 }
 
 const SessionState = SessionInfo;
+
+/** The wire form of an identity: name and role, never the key id. */
+const wire = (identity: KeyIdentity | null) => (identity === null ? null : { name: identity.name, role: identity.role });
 
 const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opts) => {
   const { auth } = opts;
@@ -39,7 +43,11 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
       config: open,
       schema: { security: [], tags: ['session'], summary: 'Does this server need the team token, and does this client have it?', response: { 200: SessionState, ...errorResponses(429) } },
     },
-    async (req, reply) => ({ tokenRequired: auth !== undefined, signedIn: auth === undefined || auth.isSignedIn(req, reply) }),
+    async (req, reply) => {
+      if (auth === undefined) return { tokenRequired: false, signedIn: true, identity: null };
+      const principal = await auth.principal(req, reply);
+      return { tokenRequired: auth.required(), signedIn: principal !== undefined, identity: wire(principal?.identity ?? null) };
+    },
   );
 
   app.post(
@@ -49,17 +57,17 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
       schema: {
         security: [],
         tags: ['session'],
-        summary: 'Sign in with the team token (sets an HttpOnly cookie holding a new session id)',
+        summary: 'Sign in with the team token or a personal key (sets an HttpOnly cookie holding a new session id)',
         description: 'At most 10 attempts a minute from one address (wrong bearer tokens count too); then 429 with Retry-After.',
         body: Type.Object({ token: Type.String({ minLength: 1, maxLength: 1000 }) }, { additionalProperties: false }),
         response: { 200: SessionState, ...errorResponses(400, 401, 403, 429) },
       },
     },
     async (req, reply) => {
-      if (auth === undefined) return { tokenRequired: false, signedIn: true };
-      const id = auth.signIn(req, reply, req.body.token);
-      reply.setCookie(SESSION_COOKIE, id, { ...cookieOptions(req.protocol === 'https'), maxAge });
-      return { tokenRequired: true, signedIn: true };
+      if (auth === undefined || !auth.required()) return { tokenRequired: false, signedIn: true, identity: null };
+      const { sessionId, identity } = await auth.signIn(req, reply, req.body.token);
+      reply.setCookie(SESSION_COOKIE, sessionId, { ...cookieOptions(req.protocol === 'https'), maxAge });
+      return { tokenRequired: true, signedIn: true, identity: wire(identity) };
     },
   );
 
@@ -72,7 +80,8 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
     async (req, reply) => {
       auth?.signOut(req);
       reply.clearCookie(SESSION_COOKIE, cookieOptions(req.protocol === 'https'));
-      return { tokenRequired: auth !== undefined, signedIn: auth === undefined };
+      const required = auth?.required() ?? false;
+      return { tokenRequired: required, signedIn: !required, identity: null };
     },
   );
 };
