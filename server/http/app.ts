@@ -19,6 +19,8 @@ import demosRoutes from './routes/demos.js';
 import healthRoutes from './routes/health.js';
 import modelsRoutes from './routes/models.js';
 import sessionRoutes from './routes/session.js';
+import sheetRoutes from './routes/sheet.js';
+import compareRoutes from './routes/compare.js';
 import solveRoutes from './routes/solve.js';
 import type { SizeLimits } from './solve-core.js';
 import { RouteTable, type RegisteredRoute } from './route-table.js';
@@ -240,6 +242,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(solveRoutes, { pool, limits, workerThreshold, rateLimitPerMinute });
   await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold });
   await app.register(demosRoutes, { demos });
+  await app.register(sheetRoutes, { store: opts.store, pool, limits, workerThreshold, version: opts.version ?? packageVersion() });
+  await app.register(compareRoutes, { store: opts.store, pool, limits, workerThreshold });
   await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir, auth, routes });
 
   return app as unknown as FastifyInstance;
