@@ -14,7 +14,8 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import Type from 'typebox';
 import { compareRevisions, type ComparableSolution } from '../../../shared-types/compare.js';
 import type { ModelStore } from '../../store/store.js';
-import { HttpError } from '../errors.js';
+import { ModelError } from '../../../shared-types/errors.js';
+import { HttpError, prefixIssues } from '../errors.js';
 import { EmbeddedModel, errorResponses, IdParams, RevisionNumber } from '../schemas.js';
 import { isUnsolvable, routeSolver, type SolvePath } from './sheet.js';
 
@@ -59,6 +60,11 @@ const compareRoutes: FastifyPluginAsyncTypebox<CompareOptions> = async (app, opt
       try {
         return await solve(model);
       } catch (err) {
+        if (err instanceof ModelError && err.status !== 422) {
+          // A model that is not valid (POST): its issues point into the body, under /from or /to.
+          const issues = prefixIssues(err.issues, `/${side}`);
+          throw new HttpError(err.code, `${issues[0]?.pointer ?? ''}: ${issues[0]?.message ?? err.message}`, issues);
+        }
         if (!isUnsolvable(err)) throw err;
         unsolved.push({ side, code: err.code, message: err.message });
         return null;
