@@ -65,7 +65,7 @@ export function segmentWork(model: Model, shaft: ShaftResult, seg: SegmentResult
   if (g?.line) lines.push(eq('G', g.line));
   const Tp = sig(seg.maxAbsTorque);
   const T = printed(Tp);
-  if (typedSeg?.sectionEnd !== undefined) return taperWork(model, seg, sec, section(model, typedSeg.sectionEnd), g, L, lines);
+  if (typedSeg?.sectionEnd !== undefined) return taperWork(shaft, seg, sec, section(model, typedSeg.sectionEnd), g, L, lines);
 
   if (sec && (sec.shape === 'solid' || sec.shape === 'hollow') && g) {
     const d = si(sec.d, 'length')!;
@@ -140,7 +140,7 @@ export function segmentWork(model: Model, shaft: ShaftResult, seg: SegmentResult
 }
 
 /** A tapered segment: J at both ends substituted, the stiffness by its closed form (solid) or the exact integral (hollow). */
-function taperWork(model: Model, seg: SegmentResult, a: Section | undefined, b: Section | undefined, g: MaterialG | null, L: number, lines: string[]): string {
+function taperWork(shaft: ShaftResult, seg: SegmentResult, a: Section | undefined, b: Section | undefined, g: MaterialG | null, L: number, lines: string[]): string {
   const dA = si(a?.d, 'length');
   const dB = si(b?.d, 'length');
   const diA = a?.shape === 'hollow' ? si(a.di, 'length') ?? 0 : 0;
@@ -160,8 +160,21 @@ function taperWork(model: Model, seg: SegmentResult, a: Section | undefined, b: 
   const z = seg.governingZ - seg.from;
   const d = dA + ((dB - dA) * z) / L;
   const di = diA + ((diB - diA) * z) / L;
-  const Jz = (Math.PI / 32) * (d ** 4 - di ** 4);
-  const tau = seg.layers[0]?.maxShear;
-  lines.push(eq('tau-taper', `τ = T(z) r(z) / J(z), peak at z = ${exact(seg.governingZ)} m: d(z) = ${sig(d)} m, J(z) = ${sig(Jz)} m⁴, τ = <b>${sig(tau)}</b> Pa`));
+  const Jz = sig((Math.PI / 32) * (d ** 4 - di ** 4));
+  lines.push(eq('d-taper', `d(z) = d<sub>A</sub> + (d<sub>B</sub> − d<sub>A</sub>) z/L = ${exact(dA)} + (${exact(dB)} − ${exact(dA)}) × ${exact(z)} / ${exact(L)} = ${exact(d)} m${di > 0 ? `; dᵢ(z) = ${exact(di)} m` : ''}`));
+  lines.push(eq('J', `J(z) = π/32 (d⁴ − dᵢ⁴) = π/32 × (${exact(d)}⁴ − ${exact(di)}⁴) = <b>${Jz}</b> m⁴`));
+  // T at the governing point: the diagram holds every breakpoint, the peak among them (both sides of a jump).
+  let T: number | null = null;
+  for (let i = 0; i < shaft.diagram.z.length; i++) {
+    const Ti = shaft.diagram.torque[i];
+    if (shaft.diagram.z[i] === seg.governingZ && (T === null || Math.abs(Ti) > Math.abs(T))) T = Ti;
+  }
+  if (T === null) {
+    lines.push(eq('tau-taper', `τ = T(z) r(z) / J(z), peak at z = ${exact(seg.governingZ)} m: <b>${sig(seg.layers[0]?.maxShear)}</b> Pa`));
+  } else {
+    const Tp = sig(Math.abs(T));
+    const tau = (printed(Tp) * (d / 2)) / printed(Jz);
+    lines.push(eq('tau', `τ = T r / J = ${Tp} × ${exact(d / 2)} / ${Jz} = <b>${sig(tau)}</b> Pa <span class="at">at z = ${exact(seg.governingZ)} m, r = d(z)/2 (peak along the taper)</span>`));
+  }
   return lines.join('\n');
 }

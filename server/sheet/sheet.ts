@@ -15,6 +15,7 @@ import { CAUTIONS } from '../../shared-types/present.js';
 import type { CheckResult, Solution } from '../../shared-types/solution.js';
 import { esc, exact, modelHash, sig } from './format.js';
 import { segmentLength, segmentWork, si } from './segments.js';
+import { raisersWork } from './raisers.js';
 import { SHEET_CSS } from './style.js';
 
 /** One entry of a revision's review history (issue 13's review states). */
@@ -180,6 +181,8 @@ function segmentsWorked(input: SheetInput): string {
 ${segmentWork(input.model, sh, seg)}</div>`);
     }
   }
+  const raisers = raisersWork(input.model, input.solution);
+  if (raisers) parts.push(raisers);
   return parts.join('\n');
 }
 

@@ -146,7 +146,7 @@ describe('POST /api/sheet', () => {
 
     // J = π/32 (d⁴ − dᵢ⁴): closed form of the ring's polar moment; d, dᵢ printed exactly.
     const J = equations(html, 'J').filter((l) => l.includes('π/32'));
-    expect(J.length).toBe(6); // solid, hollow, two rings, the taper's two ends
+    expect(J.length).toBe(7); // solid, hollow, two rings, the taper's two ends and its governing point
     for (const line of J) {
       const m = new RegExp(`π/32 × \\(${NUM}⁴ − ${NUM}⁴\\) = ${NUM} m⁴`).exec(line)!;
       agrees((Math.PI / 32) * (Number(m[1]) ** 4 - Number(m[2]) ** 4), m[3]);
@@ -164,7 +164,7 @@ describe('POST /api/sheet', () => {
 
     // τ = T r / J: T and J derived, r exact.
     const tau = equations(html, 'tau').filter((l) => l.startsWith('τ = T r / J'));
-    expect(tau.length).toBe(2);
+    expect(tau.length).toBe(3); // solid, hollow, the taper's governing point
     for (const line of tau) {
       const m = new RegExp(`= ${NUM} × ${NUM} / ${NUM} = ${NUM} Pa`).exec(line)!;
       agrees((Number(m[1]) * Number(m[2])) / Number(m[3]), m[4], [[m[1], 1], [m[3], -1]]);
@@ -201,6 +201,40 @@ describe('POST /api/sheet', () => {
     const [G, dA, dB, L] = [1, 2, 3, 4].map((i) => Number(tm[i]));
     const kTaper = /= (\S+) N·m\/rad$/.exec(taper)![1];
     agrees((3 * Math.PI * G * dA ** 3 * dB ** 3) / (32 * L * (dA * dA + dA * dB + dB * dB)), kTaper);
+  });
+
+  it('a shoulder\'s factor redoes from the printed coefficients (the fit as the engine cites it), and each local peak', async () => {
+    const { demo } = await import('./helpers.js');
+    const model = demo('tapered-bar-shoulder');
+    const html = (await postSheet(model)).body;
+    const solution = solveModel(model) as Solution;
+    const F1 = solution.stressRaisers!.find((r) => r.id === 'F1')!;
+    // h/r, √(h/r) and 2h/D from the printed D, d, r (exact inputs).
+    const h = new RegExp(`h = \\(D − d\\)/2 = \\(${NUM} − ${NUM}\\) / 2 = ${NUM} m; r = ${NUM} m; h/r = ${NUM}; √\\(h/r\\) = ${NUM}; 2h/D = ${NUM}`).exec(equations(html, 'h')[0])!;
+    const [D, d, hh, r] = [1, 2, 3, 4].map((i) => Number(h[i]));
+    expect(hh).toBe((D - d) / 2);
+    agrees(hh / r, h[5]);
+    agrees(Math.sqrt(Number(h[5])), h[6], [[h[5], 0.5]]);
+    agrees((2 * hh) / D, h[7]);
+    // The fit's coefficients (Pilkey & Pilkey, Peterson's, 3rd ed., shoulder fillet in torsion, as in stress-raisers.ts).
+    const [q, hr] = [Number(h[6]), Number(h[5])];
+    const fits = [0.905 + 0.783 * q - 0.075 * hr, -0.437 - 1.969 * q + 0.553 * hr, 1.557 + 1.073 * q - 0.578 * hr, -1.061 + 0.171 * q + 0.086 * hr];
+    const C = ['c1', 'c2', 'c3', 'c4'].map((n) => /= (\S+)$/.exec(equations(html, n)[0])![1]);
+    C.forEach((c, i) => expect(Math.abs(fits[i] - Number(c))).toBeLessThanOrEqual(relHalf(c) * Math.abs(Number(c)) * (1 + 1e-12)));
+    const kts = /= (\S+)$/.exec(equations(html, 'kts')[0])![1];
+    const x = Number(h[7]);
+    const terms = C.map((c, i) => Number(c) * x ** i);
+    const tol = relHalf(kts) * Number(kts) + terms.reduce((s, tm, i) => s + Math.abs(tm) * (relHalf(C[i]) + i * relHalf(h[7])), 0);
+    expect(Math.abs(terms.reduce((a, b) => a + b, 0) - Number(kts))).toBeLessThanOrEqual(tol * (1 + 1e-12));
+    // The engine's factor agrees with the printed one to that precision (and the √ and ratio roundings above).
+    expect(Math.abs(F1.factor - Number(kts)) / F1.factor).toBeLessThan(1e-5);
+    // τ_local = K · τ_nominal, for the shoulder and for the given factor.
+    for (const line of equations(html, 'local')) {
+      const m = new RegExp(`= ${NUM} × ${NUM} = ${NUM} Pa`).exec(line)!;
+      // K is derived (6 digits) for the shoulder, exact as given for the factor raiser.
+      const derivedK: Array<[string, number]> = m[1] === kts ? [[kts, 1]] : [];
+      agrees(Number(m[1]) * Number(m[2]), m[3], [[m[2], 1], ...derivedK]);
+    }
   });
 
   it('agrees with the engine: the worked J and k are the solution\'s to the printed precision', async () => {
@@ -308,5 +342,54 @@ describe('renderSheet (pure)', () => {
     for (const state of ['prepared', 'checked', 'approved']) {
       expect(text(new RegExp(`<tr data-state="${state}">([\\s\\S]*?)</tr>`).exec(html)![1])).toBe(state);
     }
+  });
+});
+
+describe('equilibrium terms', () => {
+  /** Each shaft's Σ (printed) against its largest term: the sheet's terms must add up to about zero. */
+  function sums(html: string): Array<{ shaft: string; sum: number; largest: number }> {
+    const out: Array<{ shaft: string; sum: number; largest: number }> = [];
+    const part = html.slice(html.indexOf('Equilibrium of each shaft'), html.indexOf('Largest residual over all shafts'));
+    for (const m of part.matchAll(/<h3>([^<]+)<\/h3>\s*<table[^>]*>([\s\S]*?)<\/table>/g)) {
+      const values = [...m[2].matchAll(/<td class="n">(?:<b>)?([^<]+)(?:<\/b>)?<\/td>/g)].map((x) => Number(x[1]));
+      const terms = values.slice(0, -2);
+      out.push({ shaft: m[1], sum: values[values.length - 2], largest: Math.max(...terms.map(Math.abs)) });
+    }
+    return out;
+  }
+
+  it('every demo: the terms of each shaft (applied, reactions, meshes, couplings) add up to zero', async () => {
+    const { demo } = await import('./helpers.js');
+    for (const name of ['mixer-drive', 'gear-train-branches', 'stepped-two-material', 'tapered-bar-shoulder']) {
+      const html = (await postSheet(demo(name))).body;
+      const all = sums(html);
+      expect(all.length, name).toBeGreaterThan(0);
+      // Round-off of a solve: far below the 6th digit of the largest term (closed-form statics: Σ = 0).
+      for (const s of all) expect(Math.abs(s.sum), `${name} ${s.shaft}`).toBeLessThanOrEqual(1e-9 * s.largest);
+    }
+  });
+
+  it('with load cases: the shown combination\'s factored loads balance its reactions', async () => {
+    const cased = {
+      ...MODEL,
+      loadCases: [{ id: 'run' }, { id: 'jam' }],
+      combinations: [
+        { id: 'service', factors: { run: 1.2 } },
+        { id: 'stop', factors: { run: 0.25, jam: 1 } },
+      ],
+      torques: [
+        { ...MODEL.torques[0], case: 'run' },
+        { ...MODEL.torques[1], case: 'jam' },
+      ],
+    };
+    const res = await t.app.inject({ method: 'POST', url: '/api/sheet', payload: cased, headers: bearer });
+    expect(res.statusCode).toBe(200);
+    const html = res.body;
+    const [line] = sums(html);
+    // Combination "service" is shown (the first): 1.2 × 900 N·m on T1, T2 not in it.
+    expect(html).toContain('<td>torque T1 × 1.2</td>');
+    expect(html).not.toContain('torque T2');
+    expect(Math.abs(line.sum)).toBeLessThanOrEqual(1e-9 * line.largest);
+    expect(text(html)).toContain('Reactions per combination');
   });
 });
