@@ -242,8 +242,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(solveRoutes, { pool, limits, workerThreshold, rateLimitPerMinute });
   await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold });
   await app.register(demosRoutes, { demos });
-  await app.register(sheetRoutes, { store: opts.store, pool, limits, workerThreshold, version: opts.version ?? packageVersion() });
-  await app.register(compareRoutes, { store: opts.store, pool, limits, workerThreshold });
+  await app.register(sheetRoutes, { store: opts.store, pool, limits, workerThreshold, rateLimitPerMinute, version: opts.version ?? packageVersion() });
+  await app.register(compareRoutes, { store: opts.store, pool, limits, workerThreshold, rateLimitPerMinute });
   await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir, auth, routes });
 
   return app as unknown as FastifyInstance;

@@ -56,6 +56,8 @@ export interface SheetInput {
 
 /** Tables longer than this many rows start on a new page. */
 const BIG_TABLE_ROWS = 25;
+/** At most this many segments are worked line by line (all of them are in the results table). */
+const MAX_WORKED_SEGMENTS = 1000;
 /** At most this many checks are listed (worst first, as the solution orders them). */
 const MAX_CHECKS = 500;
 
@@ -175,8 +177,12 @@ function indeterminacy(model: Model, solution: Solution): string {
 
 function segmentsWorked(input: SheetInput): string {
   const parts = ['<h2>Segments: section properties, stiffness, governing stress</h2>'];
+  let worked = 0;
+  const total = input.solution.shafts.reduce((n, sh) => n + sh.segments.length, 0);
+  if (total > MAX_WORKED_SEGMENTS) parts.push(`<p>${total} segments: the first ${MAX_WORKED_SEGMENTS} are worked here; every segment's J, k, peak torque and stress are in the results table.</p>`);
   for (const sh of input.solution.shafts) {
     for (const seg of sh.segments) {
+      if (++worked > MAX_WORKED_SEGMENTS) break;
       parts.push(`<div class="segment"><h3>${esc(sh.id)}[${seg.index}] · section ${esc(seg.section)}${seg.sectionEnd ? ` → ${esc(seg.sectionEnd)}` : ''} · z = ${exact(seg.from)} … ${exact(seg.to)} m, L = ${exact(segmentLength(input.model, sh.id, seg.index) ?? seg.to - seg.from)} m</h3>
 ${segmentWork(input.model, sh, seg)}</div>`);
     }

@@ -393,3 +393,29 @@ describe('equilibrium terms', () => {
     expect(text(html)).toContain('Reactions per combination');
   });
 });
+
+describe('limits', () => {
+  it('the sheet and compare routes count solves like POST /api/solve: 429 SN_RATE_LIMITED past the limit', async () => {
+    const limited = await makeApp({ rateLimitPerMinute: 2 });
+    try {
+      const codes: number[] = [];
+      for (let i = 0; i < 3; i++) codes.push((await limited.app.inject({ method: 'POST', url: '/api/sheet', payload: MODEL })).statusCode);
+      expect(codes).toEqual([200, 200, 429]);
+      const over = await limited.app.inject({ method: 'POST', url: '/api/sheet', payload: MODEL });
+      expect(over.json().error.code).toBe('SN_RATE_LIMITED');
+      const compares: number[] = [];
+      for (let i = 0; i < 3; i++) compares.push((await limited.app.inject({ method: 'POST', url: '/api/compare', payload: { from: MODEL, to: MODEL } })).statusCode);
+      expect(compares).toEqual([200, 200, 429]);
+    } finally {
+      await limited.close();
+    }
+  });
+
+  it('works the first 1000 segments of a long shaft and says so; all are in the results table', async () => {
+    const { cantilever } = await import('./helpers.js');
+    const html = (await postSheet(cantilever(1200))).body;
+    expect(html).toContain('1200 segments: the first 1000 are worked here');
+    expect(equations(html, 'k').length).toBe(1000);
+    expect((html.match(/<td>s\[\d+\]<\/td>/g) ?? []).length).toBe(1200);
+  });
+});

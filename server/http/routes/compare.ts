@@ -17,7 +17,8 @@ import type { ModelStore } from '../../store/store.js';
 import { ModelError } from '../../../shared-types/errors.js';
 import { HttpError, prefixIssues } from '../errors.js';
 import { EmbeddedModel, errorResponses, IdParams, RevisionNumber } from '../schemas.js';
-import { isUnsolvable, routeSolver, type SolvePath } from './sheet.js';
+import type { FastifyInstance } from 'fastify';
+import { isUnsolvable, limitSolves, routeSolver, type SolvePath } from './sheet.js';
 
 export interface CompareOptions extends SolvePath {
   readonly store: ModelStore;
@@ -53,6 +54,7 @@ export const ComparisonAnswer = Type.Object({
 
 const compareRoutes: FastifyPluginAsyncTypebox<CompareOptions> = async (app, opts) => {
   const solve = await routeSolver(opts);
+  await limitSolves(app as unknown as FastifyInstance, opts.rateLimitPerMinute);
 
   async function compare(from: unknown, to: unknown) {
     const unsolved: Array<{ side: 'from' | 'to'; code: string; message: string }> = [];

@@ -9,7 +9,9 @@
  * solution is the JSON text the solve route would send, parsed. A bad model answers the same 400 /
  * 422 JSON errors as /api/solve.
  */
+import rateLimit from '@fastify/rate-limit';
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import type { FastifyInstance } from 'fastify';
 import Type from 'typebox';
 import { ModelError } from '../../../shared-types/errors.js';
 import { Model, type Model as ModelT } from '../../../shared-types/model.js';
@@ -31,6 +33,20 @@ export interface SolvePath {
   readonly limits: SizeLimits;
   /** stations above which a solve runs in a worker */
   readonly workerThreshold: number;
+  /** solves per minute per address, as POST /api/solve counts them; 0 = no limit */
+  readonly rateLimitPerMinute: number;
+}
+
+/** The solve route's rate limit on a plugin's routes (each of them solves): 429 SN_RATE_LIMITED past it. */
+export async function limitSolves(app: FastifyInstance, perMinute: number): Promise<void> {
+  if (perMinute <= 0) return;
+  await app.register(rateLimit, {
+    global: true, // within the registering plugin only
+    max: perMinute,
+    timeWindow: 60_000, // ms
+    errorResponseBuilder: (_req, ctx) =>
+      new HttpError('SN_RATE_LIMITED', `too many solves: at most ${ctx.max} a minute from one address; retry in ${ctx.after}`),
+  });
 }
 
 /** A solver with its warm workspace and LP solver, for one plugin's routes. */
@@ -74,6 +90,7 @@ const HtmlPage = Type.String({ description: 'The calculation sheet: one HTML pag
 
 const sheetRoutes: FastifyPluginAsyncTypebox<SheetOptions> = async (app, opts) => {
   const solve = await routeSolver(opts);
+  await limitSolves(app as unknown as FastifyInstance, opts.rateLimitPerMinute);
 
   const send = (reply: import('fastify').FastifyReply, html: string) =>
     reply.header('content-security-policy', SHEET_CSP).header('x-content-type-options', 'nosniff').type('text/html; charset=utf-8').send(html);
