@@ -419,3 +419,27 @@ describe('limits', () => {
     expect((html.match(/<td>s\[\d+\]<\/td>/g) ?? []).length).toBe(1200);
   });
 });
+
+describe('results carried by later features', () => {
+  it('prints modes, crossings and the forced response when the solution carries them (contract names)', () => {
+    const solution = {
+      ...(solveModel(MODEL) as Solution),
+      // Invented values in the contract's shape: the sheet prints what it is given.
+      modes: [{ frequency: 41.3 }, { frequency: 187.25 }],
+      crossings: [{ mode: 1, order: 2, speed: 129.7, inRange: true }],
+      forcedResponse: { segments: [{ item: 'line[0]', peakTorque: 95, peakSpeed: 129.7 }] },
+    };
+    const html = renderSheet({ model: MODEL as Model, solution, revision: null, version: '1', generated: 'now' });
+    expect(html).toContain('<h3>modes</h3>');
+    expect(html).toContain('<td class="n">41.3000</td>');
+    expect(html).toContain('<td class="n">187.250</td>');
+    // 129.7 rad/s in rpm: 129.7 × 60 / (2π) = 1238.54… (closed form of the unit change).
+    expect(html).toContain(`<td class="n">${(129.7 * 60 / (2 * Math.PI)).toPrecision(6)}</td>`);
+    expect(html).toContain('<td>line[0]</td><td class="n">95.0000</td><td class="n">129.700</td>');
+  });
+
+  it('prints no dynamics part without them', () => {
+    const html = renderSheet({ model: MODEL as Model, solution: solveModel(MODEL) as Solution, revision: null, version: '1', generated: 'now' });
+    expect(html).not.toContain('Dynamics');
+  });
+});
