@@ -147,8 +147,11 @@ function method(model: Model): string {
   const items: string[] = [
     'Saint-Venant torsion of circular bars: T = G J dφ/dz, τ = T r / J, J = π/32 (d⁴ − dᵢ⁴); bonded concentric layers share dφ/dz, so T = dφ/dz · Σ G<sub>i</sub> J<sub>i</sub> and τ<sub>i</sub> = G<sub>i</sub> r T / ΣGJ. Source: Gere &amp; Goodno, <i>Mechanics of Materials</i>, torsion of circular bars.',
     'Each uniform segment is a torsional spring k = G J / L between its end stations (stiffness method): K φ = f with K assembled from the springs, consistent loads from the distributed torques; fixed supports, rigid meshes and rigid couplings eliminated exactly as constraints (φ = α x + β); then T = k (φ<sub>end</sub> − φ<sub>start</sub>) and the reactions. Statically indeterminate torsional members: Gere &amp; Goodno, <i>Mechanics of Materials</i>, §3.8.',
-    'Gear mesh: g = r<sub>a</sub> φ<sub>a</sub> − s r<sub>b</sub> φ<sub>b</sub> − offset (s = −1 for "opposite", +1 for "same"); compliant: F = stiffness · g, torque −F r<sub>a</sub> on shaft a and +s F r<sub>b</sub> on shaft b. Coupling: c = φ<sub>a</sub> − φ<sub>b</sub> − misfit, torque −k c on a, +k c on b.',
   ];
+  if (model.gearMeshes?.length || model.couplings?.length)
+    items.push(
+      'Gear mesh: g = r<sub>a</sub> φ<sub>a</sub> − s r<sub>b</sub> φ<sub>b</sub> − offset (s = −1 for "opposite", +1 for "same"); compliant: F = stiffness · g, torque −F r<sub>a</sub> on shaft a and +s F r<sub>b</sub> on shaft b. Coupling: c = φ<sub>a</sub> − φ<sub>b</sub> − misfit, torque −k c on a, +k c on b.',
+    );
   if (tapered) items.push('Tapered segment: flexibility ∫ dz / (G J(z)) with the exact shape function; solid taper k = 3π G d<sub>A</sub>³ d<sub>B</sub>³ / (32 L (d<sub>A</sub>² + d<sub>A</sub> d<sub>B</sub> + d<sub>B</sub>²)). Source: Gere &amp; Goodno, tapered bar in torsion.');
   if (shapes.has('rectangle') || shapes.has('ellipse'))
     items.push('Rectangle: exact Saint-Venant series, J = β h b³, β = ⅓ (1 − (192/π⁵)(b/h) Σ<sub>n odd</sub> tanh(nπh/2b)/n⁵), peak stress at the middle of the long side; ellipse: J = π a³ c³/(a² + c²), τ = 2T/(π a c²). Source: Timoshenko &amp; Goodier, <i>Theory of Elasticity</i>, torsion.');
