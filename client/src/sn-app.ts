@@ -32,6 +32,8 @@ import { ReviewLiveController } from './review-live.js';
 import type { ReviewDetail } from './sn-review-panel.js';
 import './sn-review-panel.js';
 import './sn-live-notice.js';
+import './sheet-action.js';
+import './sn-compare.js';
 
 type Panel = 'none' | 'library' | 'save' | 'save-copy' | 'conflict';
 
@@ -53,12 +55,12 @@ export class SnApp extends LitElement {
     .overlay { position: fixed; inset: 0; background: rgba(20, 30, 36, 0.35); z-index: 10; display: flex; align-items: flex-start; justify-content: center; padding-top: 8vh; }
     .overlay > * { width: min(860px, 94vw); }
     .overlay sn-save-dialog { width: min(440px, 94vw); }
-    .overlay sn-conflict-dialog { width: min(480px, 94vw); }
+    .overlay sn-conflict-dialog { width: min(820px, 94vw); }
     .toast { position: fixed; bottom: 14px; left: 50%; transform: translateX(-50%); background: #1d3a4a; color: #fff; padding: 6px 14px; border-radius: 4px; z-index: 20; font-size: 13px; }
     .loading { padding: 40px; text-align: center; color: #6b665e; }
     @media (max-width: 1000px) { main { grid-template-columns: 1fr; } .editor-card { position: static; max-height: none; } }
     @media print {
-      sn-top-bar, .editor-col, .overlay, .toast { display: none !important; }
+      sn-top-bar, .editor-col, .overlay, .toast, .review { display: none !important; }
       main { display: block; padding: 0; }
       .card { border: none; padding: 0; margin: 0 0 10px; }
     }
@@ -173,6 +175,11 @@ export class SnApp extends LitElement {
                 <sn-results .solution=${this.solver.solution} .model=${m} .system=${this.system} .state=${state}
                   .message=${bannerReason(m, issues, this.solver.message)} .selected=${this.selected}></sn-results>
               </div>
+              <div class="card review">
+                <h2>Review</h2>
+                <sn-sheet-action .modelId=${doc.id ?? ''} .revision=${doc.viewing ?? doc.revision} ?dirty=${dirty} .model=${m}></sn-sheet-action>
+                <sn-compare .modelId=${doc.id ?? ''} .latest=${doc.revision} .system=${this.system}></sn-compare>
+              </div>
               <sn-cautions></sn-cautions>
             </div>
           </main>`}
@@ -205,7 +212,7 @@ export class SnApp extends LitElement {
         </div>`;
       case 'conflict':
         return html`<div class="overlay">
-          <sn-conflict-dialog .baseRevision=${doc.revision} .currentRevision=${this.library.conflictRevision}
+          <sn-conflict-dialog .baseRevision=${doc.revision} .currentRevision=${this.library.conflictRevision} .modelId=${doc.id ?? ''} .mine=${this.model} .system=${this.system}
             @sn-save-mine=${this.onSaveMine} @sn-reload-latest=${this.onReloadLatest} @sn-close=${this.closePanel}></sn-conflict-dialog>
         </div>`;
       default:

@@ -1,9 +1,20 @@
-import { LitElement, css, html } from 'lit';
+import { LitElement, css, html, nothing } from 'lit';
+import type { Model } from '../../shared-types/model.js';
+import type { UnitSystem } from '../../shared-types/present.js';
+import { api } from './api.js';
+import { compareModels, compareStored, type ComparisonAnswer } from './sheet-api.js';
+import './sn-compare-tables.js';
 
 /**
  * Said when someone else saved the model after it was opened: nothing was
  * overwritten; the user saves theirs as a new model or opens the latest. Takes
  * the focus when it opens, keeps Tab inside, and closes on Escape.
+ *
+ * So that the user decides knowing what the other person changed, it shows two
+ * comparisons (shared-types/compare.ts through the API, both solved by the
+ * server): what changed in the library from the user's base revision to the
+ * latest (GET /api/models/{id}/compare), and the user's edit against the latest
+ * (POST /api/compare with the latest model and the edit).
  *
  * @fires sn-save-mine - save the user's model as a new library entry
  * @fires sn-reload-latest - drop the user's changes and open the latest revision
@@ -12,7 +23,10 @@ import { LitElement, css, html } from 'lit';
 export class SnConflictDialog extends LitElement {
   static override styles = css`
     :host { display: block; }
-    .conflict { background: #fff; border-radius: 6px; padding: 14px 18px; max-width: 480px; box-shadow: 0 6px 24px rgba(0,0,0,0.18); }
+    .conflict { background: #fff; border-radius: 6px; padding: 14px 18px; box-shadow: 0 6px 24px rgba(0,0,0,0.18); max-height: 84vh; overflow-y: auto; }
+    .compare { border-top: 1px solid #e4e0d8; margin-top: 10px; padding-top: 4px; }
+    .compare h3 { font-size: 13.5px; margin: 8px 0 2px; }
+    .muted { color: #6b665e; font-size: 12.5px; }
     h2 { font-size: 15px; margin: 0 0 6px; color: #8c1d18; }
     p { font-size: 13.5px; }
     button { font: inherit; font-size: 13px; padding: 4px 12px; margin: 4px 6px 0 0; border-radius: 3px; border: 1px solid #c8c4bb; background: #fff; cursor: pointer; }
@@ -23,6 +37,12 @@ export class SnConflictDialog extends LitElement {
   static override properties = {
     baseRevision: { type: Number },
     currentRevision: { type: Number },
+    modelId: { type: String },
+    mine: { attribute: false },
+    system: { type: String },
+    theirs: { state: true },
+    yours: { state: true },
+    compareError: { state: true },
   };
 
   /** The revision the user's changes were made on. */
@@ -30,10 +50,49 @@ export class SnConflictDialog extends LitElement {
   /** The library's latest revision (0 when the server did not say). */
   declare currentRevision: number;
 
+  /** The library id of the model (for the comparisons; '' shows none). */
+  declare modelId: string;
+  /** The user's edit, not saved. */
+  declare mine: Model | null;
+  declare system: UnitSystem;
+  /** Base revision → latest: what the other person changed. */
+  declare private theirs: ComparisonAnswer | null;
+  /** Latest → the user's edit. */
+  declare private yours: ComparisonAnswer | null;
+  declare private compareError: string;
+
   constructor() {
     super();
     this.baseRevision = 0;
     this.currentRevision = 0;
+    this.modelId = '';
+    this.mine = null;
+    this.system = 'si';
+    this.theirs = null;
+    this.yours = null;
+    this.compareError = '';
+  }
+
+  override connectedCallback(): void {
+    super.connectedCallback();
+    void this.loadComparisons();
+  }
+
+  /** Fetches both comparisons; a failure leaves the dialog's choices as they are and says why. */
+  private async loadComparisons(): Promise<void> {
+    if (!this.modelId || !this.mine) return;
+    try {
+      const latest = this.currentRevision > 0 ? await api.getRevision(this.modelId, this.currentRevision) : await api.getModel(this.modelId);
+      const [theirs, yours] = await Promise.all([
+        this.baseRevision > 0 && this.baseRevision !== latest.revision ? compareStored(this.modelId, this.baseRevision, latest.revision) : Promise.resolve(null),
+        compareModels(latest.model, this.mine),
+      ]);
+      this.theirs = theirs;
+      this.yours = yours;
+      if (this.currentRevision === 0) this.currentRevision = latest.revision;
+    } catch (e) {
+      this.compareError = `The comparison could not be made: ${e instanceof Error ? e.message : String(e)}`;
+    }
   }
 
   override render() {
@@ -41,9 +100,25 @@ export class SnConflictDialog extends LitElement {
       <h2 id="conflict-title">Someone else saved this model first</h2>
       <p id="conflict-text">Your changes were made on revision ${this.baseRevision}; the library now holds revision ${this.currentRevision || 'newer'}.
         Nothing was overwritten.</p>
+      ${this.renderComparisons()}
       <button class="primary" data-action="save-as-copy" @click=${() => this.fire('sn-save-mine')}>Save mine as a new model</button>
       <button data-action="reload-latest" @click=${() => this.fire('sn-reload-latest')}>Open the latest (drop my changes)</button>
       <button data-action="cancel" @click=${() => this.fire('sn-close')}>Cancel</button>
+    </div>`;
+  }
+
+  private renderComparisons() {
+    if (!this.modelId || !this.mine) return nothing;
+    if (this.compareError) return html`<p class="muted" role="status">${this.compareError}</p>`;
+    if (!this.yours) return html`<p class="muted">Comparing your edit with the latest revision…</p>`;
+    const latest = `revision ${this.currentRevision}`;
+    return html`<div class="compare">
+      ${this.theirs
+        ? html`<section class="theirs"><h3>What changed from revision ${this.baseRevision} to ${latest}</h3>
+            <sn-compare-tables .comparison=${this.theirs} .system=${this.system} .fromLabel=${`revision ${this.baseRevision}`} .toLabel=${latest}></sn-compare-tables></section>`
+        : nothing}
+      <section class="yours"><h3>Your edit compared with ${latest}</h3>
+        <sn-compare-tables .comparison=${this.yours} .system=${this.system} .fromLabel=${latest} .toLabel=${'your edit'}></sn-compare-tables></section>
     </div>`;
   }
 

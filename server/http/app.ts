@@ -21,6 +21,8 @@ import eventsRoutes from './routes/events.js';
 import modelsRoutes from './routes/models.js';
 import reviewRoutes from './routes/review.js';
 import sessionRoutes from './routes/session.js';
+import sheetRoutes from './routes/sheet.js';
+import compareRoutes from './routes/compare.js';
 import solveRoutes from './routes/solve.js';
 import type { SizeLimits } from './solve-core.js';
 import { RouteTable, type RegisteredRoute } from './route-table.js';
@@ -255,6 +257,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(reviewRoutes, { store: opts.store, notices });
   await app.register(eventsRoutes, { store: opts.store, notices, auth, keepAliveMs: opts.eventsKeepAliveMs });
   await app.register(demosRoutes, { demos });
+  await app.register(sheetRoutes, { store: opts.store, pool, limits, workerThreshold, rateLimitPerMinute, version: opts.version ?? packageVersion() });
+  await app.register(compareRoutes, { store: opts.store, pool, limits, workerThreshold, rateLimitPerMinute });
   await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir, auth, routes });
 
   return app as unknown as FastifyInstance;
