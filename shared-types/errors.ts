@@ -50,6 +50,8 @@ export const ERROR_CODES = {
   SN_METHOD: { status: 405, summary: 'The path exists but not with this method; the Allow header lists the methods it has.' },
   SN_BAD_REQUEST: { status: 400, summary: 'The request itself is malformed: a path escape that is not UTF-8, or a broken request line or header.' },
   SN_PATH_TOO_LONG: { status: 414, summary: 'A part of the path is longer than the server reads (1000 characters).' },
+  // Dynamics (natural frequencies, issue 12).
+  SN_DYN_NO_INERTIA: { status: 422, summary: 'A model with dynamics has no inertia, or a group of shafts free to spin has none: no natural frequency exists.' },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
 } as const satisfies Record<string, ErrorCodeInfo>;
 

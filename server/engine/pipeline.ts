@@ -193,7 +193,7 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
 
 /** Stations a resolved model can have at most (each point on a shaft may be one). */
 export function stationEstimate(model: ResolvedModel): number {
-  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length + model.raisers.length;
+  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length + model.raisers.length + (model.dynamics?.excitations.length ?? 0);
   for (const shaft of model.shafts) n += shaft.segments.length;
   return n + 2 * (model.distributed.length + model.meshes.length + model.couplings.length);
 }
