@@ -169,7 +169,7 @@ function dynamicsOnly(model: ResolvedModel, layout: StationLayout, reduction: Re
   return withDynamics(
     {
       model: view,
-      layout: { ...layout, shaftStart: new Int32Array(nShafts + 1) },
+      layout: { ...layout, dofCount: 0, shaftStart: new Int32Array(nShafts + 1) },
       rec,
       maxResidual: 0,
       warnings: [...recoveryWarnings(model, reduction), ...model.warnings, omitted],
