@@ -344,3 +344,40 @@ describe('speeds to avoid', () => {
     expect(tight.checks.filter((c) => c.kind === 'crossing')).toHaveLength(0);
   });
 });
+
+describe('a solid linear taper fixed at its wide end, free at its narrow end', () => {
+  // With the radius linear in z, Ip ∝ x⁴ (x measured from the cone's apex) and (x⁴φ')' + k²x⁴φ = 0,
+  // k = ω·√(ρ/G), whose solutions are j1(kx)/x and y1(kx)/x (spherical Bessel functions of order 1;
+  // Abramowitz & Stegun 10.1.11–10.1.12 for j1, y1 and 10.1.22 for their derivatives). The frequency
+  // equation: φ(a) = 0 at the wide end x = a, φ'(b) = 0 at the narrow end x = b.
+  const L = 0.8;
+  const dA = 0.06;
+  const dB = 0.03;
+  const a = (L * dA) / (dA - dB); // x of the wide end: the apex lies beyond the narrow end
+  const b = a - L;
+  const j1 = (t: number) => Math.sin(t) / (t * t) - Math.cos(t) / t;
+  const y1 = (t: number) => -Math.cos(t) / (t * t) - Math.sin(t) / t;
+  const j1p = (t: number) => Math.sin(t) / t - (2 * j1(t)) / t;
+  const y1p = (t: number) => -Math.cos(t) / t - (2 * y1(t)) / t;
+  // d/dx of Z(kx)/x = (k·x·Z'(kx) − Z(kx)) / x².
+  const dZ = (Z: (t: number) => number, Zp: (t: number) => number, k: number, x: number) => (k * x * Zp(k * x) - Z(k * x)) / (x * x);
+  const det = (k: number) => (j1(k * a) / a) * dZ(y1, y1p, k, b) - (y1(k * a) / a) * dZ(j1, j1p, k, b);
+  // The roots of det in k, bracketed by a fine scan (the test's own root finder).
+  const roots: number[] = [];
+  for (let k = 0.01; roots.length < 3; k += 0.01) if (det(k) > 0 !== det(k + 0.01) > 0) roots.push(bisect(det, k, k + 0.01));
+  for (const inner of [[], [0.3]]) {
+    it(`the lowest three frequencies${inner.length > 0 ? ', cut by a station inside' : ''}`, () => {
+      const sol = solveModel({
+        format: 'shaftnet/1',
+        name: 'cone',
+        materials: [{ id: 'steel', G, density: RHO }],
+        sections: [{ id: 'd60', shape: 'solid', d: dA }, { id: 'd30', shape: 'solid', d: dB }],
+        shafts: [{ id: 's', segments: [{ length: L, section: 'd60', sectionEnd: 'd30', material: 'steel' }] }],
+        supports: [{ id: 'A', shaft: 's', at: 0, kind: 'fixed' }],
+        discs: inner.map((at, i) => ({ id: `p${i}`, shaft: 's', at, inertia: 0 })),
+        dynamics: { modes: 3 },
+      });
+      (sol.modes ?? []).forEach((m, i) => expectRel(m.angularFrequency, roots[i] * WAVE));
+    });
+  }
+});
