@@ -279,7 +279,9 @@ function dynamicsNonFinite(sv: Solved): NonFinite | null {
         if (zeroIfFinite(a, 0, a.length) !== 0) return { pointer: '/dynamics', shaft: sv.model.shafts.findIndex((s) => s.id === sh.id), what: `the shape of ${what}`, value: a[firstBad(a, 0, a.length)] };
       }
     }
-    for (const x of [...(m.strain ?? []), ...m.kinetic]) if (!Number.isFinite(x.share)) return at(`the energy share of "${x.item}" in ${what}`, x.share);
+    for (const a of [m.strain ?? new Float64Array(0), m.kinetic]) {
+      if (zeroIfFinite(a, 0, a.length) !== 0) return at(`an energy share of ${what}`, a[firstBad(a, 0, a.length)]);
+    }
   }
   for (const c of d.crossings) if (!Number.isFinite(c.speed)) return at(`the crossing speed of mode ${c.mode}, order ${c.order}`, c.speed);
   return null;

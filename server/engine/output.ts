@@ -38,7 +38,7 @@ import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Recovered } from './recover.js';
 import type { CombinationSolved, Envelope } from './combinations.js';
-import type { Crossing, DynamicsSolved, ModeColumns } from './dynamics/modes.js';
+import type { Crossing, DynamicsSolved } from './dynamics/modes.js';
 
 /** A finished solve, in columns. */
 export interface Solved {
@@ -416,12 +416,12 @@ function walkSolution(sv: Solved, w: Writer): void {
 
 /** The modes (each shaft's stations and drawing, the energy shares) and, with a speed, the crossings. */
 function writeDynamics(w: Writer, d: DynamicsSolved, withSpeed: boolean): void {
-  const shares = (list: ModeColumns['kinetic']) => {
+  const shares = (items: readonly string[], values: Float64Array) => {
     w.list();
-    for (const x of list) {
+    for (let k = 0; k < values.length; k++) {
       w.open(SHARE);
-      w.str(x.item);
-      w.num(x.share);
+      w.str(items[k]);
+      w.num(values[k]);
       w.close();
     }
     w.close();
@@ -447,8 +447,8 @@ function writeDynamics(w: Writer, d: DynamicsSolved, withSpeed: boolean): void {
     w.close();
     w.open(ENERGY);
     if (m.strain === null) w.optNum(null);
-    else shares(m.strain);
-    shares(m.kinetic);
+    else shares(d.items.strain, m.strain);
+    shares(d.items.kinetic, m.kinetic);
     w.close();
     w.close();
   }

@@ -38,8 +38,22 @@ export interface ModeColumns {
   readonly angularFrequency: number;
   readonly rigidBody: boolean;
   readonly shafts: ReadonlyArray<{ readonly id: string; readonly stationZ: Float64Array; readonly rotation: Float64Array; readonly z: Float64Array; readonly shape: Float64Array }>;
-  readonly strain: ReadonlyArray<{ readonly item: string; readonly share: number }> | null;
-  readonly kinetic: ReadonlyArray<{ readonly item: string; readonly share: number }>;
+  /** Strain-energy shares, one per item of `EnergyItems.strain` (null: a rigid-body mode). */
+  readonly strain: Float64Array | null;
+  /** Kinetic-energy shares, one per item of `EnergyItems.kinetic`. */
+  readonly kinetic: Float64Array;
+}
+
+/**
+ * The parts that hold energy, named as the solution names them, the same for every mode: strain in
+ * every segment ("shaft[j]"), spring support, compliant mesh and coupling (their ids); kinetic in
+ * every disc (its id) and every segment with inertia.
+ */
+export interface EnergyItems {
+  readonly strain: readonly string[];
+  readonly kinetic: readonly string[];
+  /** Kinetic item of each segment (global segment index), −1 for a segment without inertia. */
+  readonly kineticOfSegment: Int32Array;
 }
 
 /** A mode meeting an order of the reference speed. */
@@ -56,6 +70,7 @@ export interface Crossing {
 }
 
 export interface DynamicsSolved {
+  readonly items: EnergyItems;
   readonly modes: readonly ModeColumns[];
   readonly crossings: readonly Crossing[];
   /** Groups of shafts free to turn (rigid-body modes): statics cannot be solved when there are any. */
@@ -74,7 +89,8 @@ export function solveDynamics(model: ResolvedModel, layout: StationLayout, sprin
   });
   const shaftsOfGroup = (g: readonly number[]) => [...new Set(g.map((u) => model.shafts[layout.shaftOf[dofOfVar[u]]].id))];
   const found = findModes(sys, dyn, rigidGroups, shaftsOfGroup);
-  const modes = found.modes.map((m) => modeColumns(sys, m));
+  const items = energyItems(model, springs);
+  const modes = found.modes.map((m) => modeColumns(sys, m, items));
   const crossings: Crossing[] = [];
   if (dyn.speed !== null) {
     const low = dyn.speed.min * (1 - dyn.margin);
@@ -91,7 +107,35 @@ export function solveDynamics(model: ResolvedModel, layout: StationLayout, sprin
   if (dyn.speed !== null && dyn.orders.length === 0) {
     warnings.push({ code: 'SN_DYN_NO_ORDERS', message: 'an operating speed is given without "orders": no crossings are looked for (no excitation is assumed)' });
   }
-  return { modes, crossings, rigidGroups: rigidGroups.length, warnings };
+  return { items, modes, crossings, rigidGroups: rigidGroups.length, warnings };
+}
+
+/** The energy items of a model (see EnergyItems). */
+function energyItems(model: ResolvedModel, springs: SpringSet): EnergyItems {
+  const strain: string[] = [];
+  const discs = model.discs.map((d) => d.id);
+  const segs: string[] = [];
+  let nSeg = 0;
+  for (const shaft of model.shafts) nSeg += shaft.segments.length;
+  const kineticOfSegment = new Int32Array(nSeg).fill(-1);
+  let g = 0;
+  for (const shaft of model.shafts) {
+    shaft.segments.forEach((seg, j) => {
+      const name = `${shaft.id}[${j}]`;
+      strain.push(name);
+      if ((seg.rhoIp ?? 0) > 0 || (seg.taper?.density ?? 0) > 0) {
+        kineticOfSegment[g] = discs.length + segs.length;
+        segs.push(name);
+      }
+      g++;
+    });
+  }
+  for (let x = 0; x < springs.count - springs.elemCount; x++) {
+    const ref = springs.ref[x];
+    const kind = springs.kind[x];
+    strain.push(kind === 'support' ? model.supports[ref].id : kind === 'mesh' ? model.meshes[ref].id : model.couplings[ref].id);
+  }
+  return { strain, kinetic: [...discs, ...segs], kineticOfSegment };
 }
 
 /** Rotation of every station in a mode (0 where held), from the reduced unknowns. */
@@ -103,7 +147,7 @@ function stationRotations(sys: DynamicSystem, x: Float64Array): Float64Array {
 }
 
 /** One mode's stations, drawing, scale and energy shares. */
-function modeColumns(sys: DynamicSystem, mode: ModeFound): ModeColumns {
+function modeColumns(sys: DynamicSystem, mode: ModeFound, items: EnergyItems): ModeColumns {
   const { model, layout } = sys;
   const { shaftStart, z, elemLeft } = layout;
   const w2 = mode.omega * mode.omega;
@@ -140,20 +184,10 @@ function modeColumns(sys: DynamicSystem, mode: ModeFound): ModeColumns {
   for (let d = 0; d < phi.length; d++) if (Math.abs(phi[d]) > Math.abs(big)) big = phi[d];
   if (big === 0) for (const sh of shafts) for (const v of sh.shape) if (Math.abs(v) > Math.abs(big)) big = v;
   const f = big === 0 ? 1 : 1 / big;
-  // Energies (twice; unscaled: shares only).
-  const strainOf: number[] = [];
-  const kineticOf: number[] = [];
-  const strainItems: string[] = [];
-  const kineticItems: string[] = [];
-  model.shafts.forEach((shaft, s) => {
-    shaft.segments.forEach((seg, j) => {
-      strainItems.push(`${shaft.id}[${j}]`);
-      strainOf.push(0);
-      const inertial = (seg.rhoIp ?? 0) > 0 || (seg.taper?.density ?? 0) > 0;
-      kineticItems.push(inertial ? `${shaft.id}[${j}]` : '');
-      kineticOf.push(0);
-    });
-  });
+  // Energies (twice; unscaled: shares only), in the order of the items.
+  const nSeg = items.kineticOfSegment.length;
+  const strainOf = new Float64Array(items.strain.length);
+  const kineticOf = new Float64Array(items.kinetic.length);
   const segIndex = new Int32Array(model.shafts.length + 1);
   model.shafts.forEach((sh, s) => (segIndex[s + 1] = segIndex[s] + sh.segments.length));
   for (let e = 0; e < sys.elemCount; e++) {
@@ -171,34 +205,25 @@ function modeColumns(sys: DynamicSystem, mode: ModeFound): ModeColumns {
       strain = w2 * kinetic;
     }
     strainOf[g] += strain;
-    kineticOf[g] += kinetic;
+    const kg = items.kineticOfSegment[g];
+    if (kg >= 0) kineticOf[kg] += kinetic;
   }
   const springs = sys.springs;
   const ne = springs.elemCount;
   for (let x = 0; x < springs.count - ne; x++) {
-    const kind = springs.kind[x];
-    const ref = springs.ref[x];
-    const id = kind === 'support' ? model.supports[ref].id : kind === 'mesh' ? model.meshes[ref].id : model.couplings[ref].id;
     const j = springs.j[x];
     const stretch = springs.p[x] * phi[springs.i[x]] + (j >= 0 ? springs.q[x] * phi[j] : 0);
-    strainItems.push(id);
-    strainOf.push(springs.k[ne + x] * stretch * stretch);
+    strainOf[nSeg + x] = springs.k[ne + x] * stretch * stretch;
   }
-  const discItems: string[] = [];
-  const discOf: number[] = [];
-  for (const disc of model.discs) {
+  model.discs.forEach((disc, k) => {
     const p = phi[layout.stationAt(disc.shaft, disc.z)];
-    discItems.push(disc.id);
-    discOf.push(disc.inertia * p * p);
-  }
-  const shares = (items: string[], values: number[]) => {
+    kineticOf[k] = disc.inertia * p * p;
+  });
+  const shares = (values: Float64Array) => {
     let total = 0;
-    for (const v of values) total += Math.max(v, 0);
-    const out: Array<{ item: string; share: number }> = [];
-    items.forEach((item, k) => {
-      if (item !== '') out.push({ item, share: total > 0 ? Math.max(values[k], 0) / total : 0 });
-    });
-    return out;
+    for (let k = 0; k < values.length; k++) total += Math.max(values[k], 0);
+    for (let k = 0; k < values.length; k++) values[k] = total > 0 ? Math.max(values[k], 0) / total : 0;
+    return values;
   };
   return {
     frequency: mode.omega / (2 * Math.PI),
@@ -210,7 +235,7 @@ function modeColumns(sys: DynamicSystem, mode: ModeFound): ModeColumns {
       for (let k = 0; k < sh.shape.length; k++) sh.shape[k] = sh.shape[k] * f + 0;
       return { id: sh.id, stationZ: z.slice(shaftStart[s], shaftStart[s + 1]), rotation, z: sh.z, shape: sh.shape };
     }),
-    strain: mode.rigid ? null : shares(strainItems, strainOf),
-    kinetic: shares([...discItems, ...kineticItems], [...discOf, ...kineticOf]),
+    strain: mode.rigid ? null : shares(strainOf),
+    kinetic: shares(kineticOf),
   };
 }

@@ -44,13 +44,22 @@ export class DynamicSystem {
   readonly mAx: Float64Array;
   readonly mDiag: Float64Array;
   private readonly sym: LdlSymbolic;
+  /** The factor of the last successful evaluation (null after a lost pivot), and the storage every factor reuses. */
   private factor: LdlFactor | null = null;
+  private storage: LdlFactor | null = null;
   private readonly scratch = new Workspace();
   private readonly y: Float64Array;
   /** Last ω² assembled. */
   private assembled = Number.NaN;
   /** Per element at the last ω² assembled (for energies and shapes). */
   readonly dyn: ElementDyn[];
+  /** Per element: the unknowns of its ends (−1: held), their α, and its entry's two places in Ax (−1: none). */
+  private readonly eu: Int32Array;
+  private readonly ev: Int32Array;
+  private readonly eai: Float64Array;
+  private readonly eaj: Float64Array;
+  private readonly ep1: Int32Array;
+  private readonly ep2: Int32Array;
 
   constructor(
     readonly model: ResolvedModel,
@@ -149,12 +158,29 @@ export class DynamicSystem {
     this.mDiag = new Float64Array(n);
     this.sym = ldlSymbolic(this.csc, this.scratch);
     this.y = new Float64Array(n);
+    this.eu = new Int32Array(ne);
+    this.ev = new Int32Array(ne);
+    this.eai = new Float64Array(ne);
+    this.eaj = new Float64Array(ne);
+    this.ep1 = new Int32Array(ne).fill(-1);
+    this.ep2 = new Int32Array(ne).fill(-1);
+    for (let e = 0; e < ne; e++) {
+      const i = elemLeft[e];
+      this.eu[e] = varOf[i];
+      this.ev[e] = varOf[i + 1];
+      this.eai[e] = varOf[i] >= 0 ? red.alpha[i] : 0;
+      this.eaj[e] = varOf[i + 1] >= 0 ? red.alpha[i + 1] : 0;
+      const t = this.entry[e];
+      if (t >= 0) {
+        this.ep1[e] = this.pos1[t];
+        this.ep2[e] = this.pos2[t];
+      }
+    }
   }
 
   /** Assembles K(ω²) and M(ω²) (and every element's numbers) unless they are the last assembled. */
   assemble(w2: number): void {
     if (w2 === this.assembled) return;
-    const { elemLeft } = this.layout;
     const { varOf, alpha } = this.red;
     const { diag, mDiag, mAx } = this;
     const Ax = this.csc.Ax;
@@ -191,11 +217,37 @@ export class DynamicSystem {
         mAx[this.pos2[t]] += mv;
       }
     };
+    // The elements (the hot loop: their ends' unknowns and places precomputed). The element's p = −1,
+    // q = 1 of the spring form are folded into its matrix: ends i and i + 1 as they are.
+    const { eu, ev, eai, eaj, ep1, ep2 } = this;
     for (let e = 0; e < ne; e++) {
       const d = this.elementAt(e, w2);
-      const i = elemLeft[e];
-      // The element's p = −1, q = 1 of the spring form are folded into its matrix: ends i and i + 1 as they are.
-      put(e, i, i + 1, 1, 1, d.a1, d.a2, d.b, d.m1, d.m2, d.mb);
+      const u = eu[e];
+      const v = ev[e];
+      const ai = eai[e];
+      const aj = eaj[e];
+      if (u >= 0 && u === v) {
+        diag[u] += d.a1 * ai * ai + d.a2 * aj * aj + 2 * d.b * ai * aj;
+        mDiag[u] += d.m1 * ai * ai + d.m2 * aj * aj + 2 * d.mb * ai * aj;
+        continue;
+      }
+      if (u >= 0) {
+        diag[u] += d.a1 * ai * ai;
+        mDiag[u] += d.m1 * ai * ai;
+      }
+      if (v >= 0) {
+        diag[v] += d.a2 * aj * aj;
+        mDiag[v] += d.m2 * aj * aj;
+      }
+      const p1 = ep1[e];
+      if (p1 >= 0) {
+        const kv = d.b * ai * aj;
+        const mv = d.mb * ai * aj;
+        Ax[p1] += kv;
+        Ax[ep2[e]] += kv;
+        mAx[p1] += mv;
+        mAx[ep2[e]] += mv;
+      }
     }
     const s = this.springs;
     for (let x = 0; x < s.count - ne; x++) {
@@ -233,7 +285,13 @@ export class DynamicSystem {
     let j0 = 0;
     for (let e = 0; e < this.elemCount; e++) j0 += this.dyn[e].clamped;
     try {
-      this.factor = ldlNumeric(this.sym, this.csc, this.diag, this.scratch, this.factor ? { indefinite: true, into: this.factor } : { indefinite: true });
+      // The first factor is allocated for good; later ones go into its storage, their scratch from a
+      // session of the private workspace (given back when it ends: no garbage per trial ω).
+      const into = this.storage;
+      this.factor = into
+        ? this.scratch.session(() => ldlNumeric(this.sym, this.csc, this.diag, this.scratch, { indefinite: true, into }))
+        : ldlNumeric(this.sym, this.csc, this.diag, this.scratch, { indefinite: true });
+      this.storage = this.factor;
     } catch (err) {
       if (err instanceof SingularMatrixError) {
         this.factor = null;
