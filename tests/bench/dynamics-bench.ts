@@ -33,16 +33,37 @@ function withDynamics(model: Record<string, unknown>, modes: number): Record<str
   return { ...model, materials, dynamics: { modes } };
 }
 
-/** Best of RUNS: the dynamics phase and the whole solve (parsing and units excluded), ms. */
-function timeEngine(model: Record<string, unknown>): { dynamics: number; total: number; frequencies: number[]; stations: number } {
+/** CPU time of this process so far, ms (user + system): the machine is shared, so wall time overstates. */
+function cpuMs(): number {
+  const u = process.cpuUsage();
+  return (u.user + u.system) / 1000;
+}
+
+/**
+ * Best of RUNS: the dynamics phase (wall and CPU time; the phase starts after the stations, so it
+ * holds the elastic parts and the reduction too) and the whole solve (parsing and units excluded), ms.
+ */
+function timeEngine(model: Record<string, unknown>): { dynamics: number; dynamicsCpu: number; total: number; frequencies: number[]; stations: number } {
   const resolved = normaliseModel(model);
-  let best = { dynamics: Infinity, total: Infinity, frequencies: [] as number[], stations: 0 };
+  let best = { dynamics: Infinity, dynamicsCpu: Infinity, total: Infinity, frequencies: [] as number[], stations: 0 };
   for (let r = 0; r < RUNS; r++) {
     let dyn = 0;
+    let dynCpu = 0;
+    let lastCpu = cpuMs();
     const t0 = performance.now();
-    const sol = solveResolved(resolved, { diagramPoints: 0, onPhase: (p, ms) => (p === 'dynamics' ? (dyn = ms) : undefined) });
+    const sol = solveResolved(resolved, {
+      diagramPoints: 0,
+      onPhase: (p, ms) => {
+        const now = cpuMs();
+        if (p === 'dynamics') {
+          dyn = ms;
+          dynCpu = now - lastCpu;
+        }
+        lastCpu = now;
+      },
+    });
     const total = performance.now() - t0;
-    if (dyn < best.dynamics) best = { dynamics: dyn, total, frequencies: (sol.modes ?? []).map((m) => m.frequency), stations: sol.stats.stations };
+    if (dyn < best.dynamics) best = { dynamics: dyn, dynamicsCpu: dynCpu, total, frequencies: (sol.modes ?? []).map((m) => m.frequency), stations: sol.stats.stations };
   }
   return best;
 }
@@ -51,12 +72,12 @@ console.log(calibrationLine());
 
 const tree = withDynamics(generate(['tree', '100', '100']), 20);
 const t = timeEngine(tree);
-console.log(`tree 100 x 100 (${t.stations} stations), lowest 20 frequencies: dynamics ${t.dynamics.toFixed(0)} ms, whole solve ${t.total.toFixed(0)} ms (goal: dynamics under 1000 ms)`);
+console.log(`tree 100 x 100 (${t.stations} stations), lowest 20 frequencies: dynamics ${t.dynamics.toFixed(0)} ms (CPU ${t.dynamicsCpu.toFixed(0)} ms), whole solve ${t.total.toFixed(0)} ms (goal: dynamics under 1000 ms)`);
 console.log(`  f1 … f20 = ${t.frequencies[0].toPrecision(6)} … ${t.frequencies[19].toPrecision(6)} Hz`);
 
 const chain = withDynamics(generate(['chain', '100000']), 10);
 const c = timeEngine(chain);
-console.log(`chain 1e5 segments (${c.stations} stations), lowest 10 frequencies: dynamics ${c.dynamics.toFixed(0)} ms, whole solve ${c.total.toFixed(0)} ms`);
+console.log(`chain 1e5 segments (${c.stations} stations), lowest 10 frequencies: dynamics ${c.dynamics.toFixed(0)} ms (CPU ${c.dynamicsCpu.toFixed(0)} ms), whole solve ${c.total.toFixed(0)} ms`);
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-dyn-bench-'));
 try {
   const file = path.join(dir, 'chain.json');

@@ -194,6 +194,8 @@ function converge(sys: DynamicSystem, lo0: number, k: number, hi0: number): Mode
   const kx = new Float64Array(n);
   let sigma = lo > 0 && hi / lo > 8 ? Math.sqrt(lo * hi) : 0.5 * (lo + hi);
   let lastWidth = hi - lo;
+  // True once inverse iteration has run at a σ within Newton's tolerance of the root: x is the mode.
+  let settled = false;
   for (let it = 0; it < 300; it++) {
     const ev = evaluateNear(sys, sigma);
     sigma = ev.omega;
@@ -222,12 +224,27 @@ function converge(sys: DynamicSystem, lo0: number, k: number, hi0: number): Mode
       const above = next * (1 + 0.5 * ROOT_TOL);
       if (below > lo && sys.countBelow(below) <= k) lo = below;
       if (above < hi && sys.countBelow(above) > k) hi = above;
-      if (hi - lo <= ROOT_TOL * hi) break;
+      if (hi - lo <= ROOT_TOL * hi) {
+        settled = true;
+        break;
+      }
     }
     sigma = next;
   }
   const omega = 0.5 * (lo + hi);
+  if (settled && n > 0 && !clampedAt(sys, omega)) return [{ omega, rigid: false, x, interior: [] }];
   return shapesAt(sys, omega, 1, x);
+}
+
+/** True when some element vibrates clamped (β = nπ) at ω. */
+function clampedAt(sys: DynamicSystem, omega: number): boolean {
+  for (let e = 0; e < sys.elemCount; e++) {
+    if (!(sys.c[e] > 0)) continue;
+    const q = (Math.sqrt(sys.c[e]) * omega) / Math.PI;
+    const nn = Math.round(q);
+    if (nn >= 1 && Math.abs(q - nn) < CLAMPED_TOL * nn) return true;
+  }
+  return false;
 }
 
 /** `m` equal roots at ω (a cluster the count cannot split to ROOT_TOL). */
