@@ -166,6 +166,40 @@ describe('two discs on a massless shaft, no support (free–free)', () => {
   });
 });
 
+describe('a geared pair with no support', () => {
+  // Rigid-body mode through a compliant mesh (contract kinematics g = r_a·φ_a − s·r_b·φ_b, "opposite"
+  // s = −1): no stretch when φ_b = −(r_a/r_b)·φ_a. Kinetic shares J_a·φ_a² : J_b·φ_b². The elastic mode:
+  // two inertias through the mesh spring k_t, ω² = k_t·(r_a²/J_a + r_b²/J_b) (closed form, two
+  // inertias joined by a spring in the tangential coordinate).
+  const [ra, rb, Ja, Jb, kt] = [0.05, 0.125, 0.02, 0.3, 2e8];
+  it('the rigid-body mode turns the gears in the ratio of their radii; the elastic frequency is the closed form', () => {
+    const sol = solveModel({
+      format: 'shaftnet/1',
+      name: 'free geared pair',
+      materials: [{ id: 'steel', G }],
+      sections: [{ id: 'd60', shape: 'solid', d: D }],
+      shafts: [
+        { id: 'a', segments: [{ length: 0.1, section: 'd60', material: 'steel' }] },
+        { id: 'b', segments: [{ length: 0.1, section: 'd60', material: 'steel' }] },
+      ],
+      gearMeshes: [{ id: 'G', a: { shaft: 'a', at: 0.1, radius: ra }, b: { shaft: 'b', at: 0, radius: rb }, sense: 'opposite', stiffness: kt }],
+      discs: [{ id: 'Ja', shaft: 'a', at: 0.1, inertia: Ja }, { id: 'Jb', shaft: 'b', at: 0, inertia: Jb }],
+      dynamics: { modes: 2 },
+    });
+    const [rigid, elastic] = sol.modes ?? [];
+    expect(rigid.rigidBody).toBe(true);
+    const phiA = rigid.shafts[0].rotation[1];
+    const phiB = rigid.shafts[1].rotation[0];
+    expectRel(phiB / phiA, -ra / rb, 1e-12);
+    const ea = Ja * phiA * phiA;
+    const eb = Jb * phiB * phiB;
+    expectRel(rigid.energy.kinetic[0].share, ea / (ea + eb), 1e-12);
+    // The discs sit at the mesh's stations and the massless shafts run free beyond them, so the shafts
+    // carry no torque: ω² = k_t·(r_a²/J_a + r_b²/J_b).
+    expectRel(elastic.angularFrequency, Math.sqrt(kt * (ra * ra / Ja + rb * rb / Jb)));
+  });
+});
+
 describe('shaft fixed at one end with a disc at the other', () => {
   // Closed form: β·tan β = J_shaft/J_disc, J_shaft = ρ·Ip·L, ω = β·√(G/ρ)/L (Thomson, torsional vibration
   // of a shaft with an end mass, from memory). For a ratio of 1 applied-mathematics handbooks tabulate

@@ -20,6 +20,7 @@ import { ModelError } from '../../../shared-types/errors.js';
 import type { Warning } from '../../../shared-types/solution.js';
 import type { ResolvedDynamics } from './types.js';
 import type { DynamicSystem } from './system.js';
+import { SingularMatrixError } from '../sparse-solver.js';
 
 /** Relative width to which every root is bracketed by the count, dimensionless (the contract asks 1e-9). */
 export const ROOT_TOL = 1e-10;
@@ -99,7 +100,7 @@ export function findModes(sys: DynamicSystem, dyn: ResolvedDynamics, rigidGroups
     }
   }
   const modes: ModeFound[] = [];
-  rigidGroups.slice(0, Math.min(r, want)).forEach((g) => modes.push({ omega: 0, rigid: true, x: rigidMode(sys, g, scale), interior: [] }));
+  rigidGroups.slice(0, Math.min(r, want)).forEach((g) => modes.push({ omega: 0, rigid: true, x: rigidMode(sys, g), interior: [] }));
   // Isolate the elastic roots r … want − 1 in (0, top].
   const stack: Array<[number, number, number, number]> = [[0, r, top, sys.countBelow(top)]];
   while (stack.length > 0) {
@@ -165,22 +166,62 @@ function evaluateNear(sys: DynamicSystem, omega: number): { count: number; omega
     const c = sys.evaluate(w * w);
     if (c !== null) return { count: c, omega: w };
   }
-  throw new Error(`dynamic stiffness singular near ${omega} rad/s`);
+  throw new SingularMatrixError(-1, 0);
 }
 
-/** The rigid-body mode of one group: inverse iteration below zero (ω² = −δ), where K is definite on the group. */
-function rigidMode(sys: DynamicSystem, group: readonly number[], scale: number): Float64Array {
-  const n = sys.n;
-  const shift = -1e-6 * scale * scale;
-  let x: Float64Array = new Float64Array(n);
-  for (const u of group) x[u] = 1;
-  if (sys.evaluate(shift) === null) return x;
-  const b = new Float64Array(n);
-  for (let it = 0; it < 4; it++) {
-    sys.multiply(x, b, true);
-    x = sys.solve(b, new Float64Array(n));
-    if (!scaleUnit(x)) break;
+/**
+ * The rigid-body mode of one group free to turn, exactly: every spring inside the group keeps its
+ * stretch c_u·x_u + c_v·x_v at zero, so x_v = −(c_u/c_v)·x_u, spread from one unknown of the group by
+ * breadth-first search over its springs (the ratios agree around every loop: the group is not held).
+ */
+function rigidMode(sys: DynamicSystem, group: readonly number[]): Float64Array {
+  const { varOf, alpha } = sys.red;
+  const s = sys.springs;
+  const ne = s.elemCount;
+  const inGroup = new Set(group);
+  const links = new Map<number, Array<[number, number]>>();
+  for (let m = 0; m < s.count; m++) {
+    let i: number;
+    let j: number;
+    let p: number;
+    let q: number;
+    if (m < ne) {
+      i = sys.layout.elemLeft[m];
+      j = i + 1;
+      p = -1;
+      q = 1;
+    } else {
+      i = s.i[m - ne];
+      j = s.j[m - ne];
+      p = s.p[m - ne];
+      q = s.q[m - ne];
+    }
+    if (j < 0) continue;
+    const u = varOf[i];
+    const v = varOf[j];
+    if (u < 0 || v < 0 || u === v || !inGroup.has(u)) continue;
+    const cu = p * alpha[i];
+    const cv = q * alpha[j];
+    if (cu === 0 || cv === 0) continue;
+    if (!links.has(u)) links.set(u, []);
+    if (!links.has(v)) links.set(v, []);
+    (links.get(u) as Array<[number, number]>).push([v, -cu / cv]);
+    (links.get(v) as Array<[number, number]>).push([u, -cv / cu]);
   }
+  const x = new Float64Array(sys.n);
+  const seen = new Set<number>([group[0]]);
+  x[group[0]] = 1;
+  const queue = [group[0]];
+  for (let h = 0; h < queue.length; h++) {
+    const u = queue[h];
+    for (const [v, r] of links.get(u) ?? []) {
+      if (seen.has(v)) continue;
+      seen.add(v);
+      x[v] = r * x[u];
+      queue.push(v);
+    }
+  }
+  scaleUnit(x);
   return x;
 }
 

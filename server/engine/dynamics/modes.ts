@@ -20,6 +20,8 @@ import type { SpringSet } from '../assemble.js';
 import type { Reduction } from '../constraints.js';
 import type { Warning } from '../../../shared-types/solution.js';
 import { DynamicSystem } from './system.js';
+import { SingularMatrixError } from '../sparse-solver.js';
+import { ModelError } from '../../../shared-types/errors.js';
 import { findModes, type ModeFound } from './frequencies.js';
 import { uniformShape } from './element.js';
 
@@ -88,7 +90,19 @@ export function solveDynamics(model: ResolvedModel, layout: StationLayout, sprin
     if (u >= 0 && dofOfVar[u] < 0) dofOfVar[u] = d;
   });
   const shaftsOfGroup = (g: readonly number[]) => [...new Set(g.map((u) => model.shafts[layout.shaftOf[dofOfVar[u]]].id))];
-  const found = findModes(sys, dyn, rigidGroups, shaftsOfGroup);
+  let found: ReturnType<typeof findModes>;
+  try {
+    found = findModes(sys, dyn, rigidGroups, shaftsOfGroup);
+  } catch (err) {
+    if (!(err instanceof SingularMatrixError)) throw err;
+    throw new ModelError([
+      {
+        code: 'SN_ILL_CONDITIONED',
+        pointer: '/dynamics',
+        message: 'the dynamic stiffness stays singular to working precision near a trial frequency: check for stiffnesses, sizes or inertias many orders of magnitude apart (units?)',
+      },
+    ]);
+  }
   const items = energyItems(model, springs);
   const modes = found.modes.map((m) => modeColumns(sys, m, items));
   const crossings: Crossing[] = [];
