@@ -6,7 +6,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { ERROR_CODES, ModelError, type ErrorCode } from '../../shared-types/errors.js';
-import { solveModel } from '../../server/engine/index.js';
+import { solveModel, solveModelJson } from '../../server/engine/index.js';
 
 const demoText = readFileSync(new URL('../../server/demos/geared-drive-vibration.json', import.meta.url), 'utf8');
 
@@ -119,5 +119,29 @@ describe('dynamics input', () => {
     const sol = solveModel(demo((m) => delete m.dynamics.orders));
     expect(sol.crossings).toEqual([]);
     expect(sol.warnings.map((w) => w.code)).toEqual(['SN_DYN_NO_ORDERS']);
+  });
+
+  it('both writers agree byte for byte: with the statics omitted, and with load cases', () => {
+    const text = (model: unknown) => {
+      let out = '';
+      solveModelJson(model, (t) => (out += t));
+      return out;
+    };
+    const free = demo((m) => {
+      m.supports = [];
+      m.torques = [];
+    });
+    const omitted = solveModel(free);
+    expect(omitted.warnings.map((w) => w.code)).toEqual(['SN_STATICS_OMITTED']);
+    expect(omitted.modes?.[0].rigidBody).toBe(true);
+    expect(text(free)).toBe(JSON.stringify(omitted));
+    const cases = demo((m) => {
+      m.loadCases = [{ id: 'run' }];
+      for (const t of m.torques) t.case = 'run';
+    });
+    const withCases = solveModel(cases);
+    expect(withCases.modes).toEqual(solveModel(demo()).modes);
+    expect(withCases.checks.filter((c) => c.kind === 'crossing')).toHaveLength(1);
+    expect(text(cases)).toBe(JSON.stringify(withCases));
   });
 });
