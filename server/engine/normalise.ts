@@ -178,7 +178,7 @@ const MIN_SEGMENT_FRACTION = 2e-12;
 
 /** Dynamics: modes found without `modes` (contract default), the most one may ask, orders' bound, margin's default. */
 const DEFAULT_MODES = 6;
-const MAX_MODES = 1000;
+const MAX_MODES = 200;
 const MAX_ORDER = 1000;
 const DEFAULT_MARGIN = 0.1; // ±10 % (common practice, no source)
 

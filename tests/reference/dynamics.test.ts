@@ -221,6 +221,42 @@ describe('shaft fixed at one end with a disc at the other', () => {
   }
 });
 
+describe('two identical shafts, each fixed with an end disc: every frequency twice', () => {
+  // Closed form as above (β·tan β = J_shaft/J_disc), each root a double root of the whole model: the
+  // count steps by two there, and the two modes found are orthogonal (each on its own shaft, or any
+  // mass-orthogonal pair of their combinations).
+  const L = 0.7;
+  const Jshaft = RHO * IP * L;
+  it('the lowest three roots, each twice, with mass-orthogonal shapes', () => {
+    const shaft = (id: string) => ({ id, segments: [{ length: L, section: 'd60', material: 'steel' }] });
+    const sol = solveModel({
+      format: 'shaftnet/1',
+      name: 'twins',
+      materials: [{ id: 'steel', G, density: RHO }],
+      sections: [{ id: 'd60', shape: 'solid', d: D }],
+      shafts: [shaft('p'), shaft('q')],
+      supports: [{ id: 'A', shaft: 'p', at: 0, kind: 'fixed' }, { id: 'B', shaft: 'q', at: 0, kind: 'fixed' }],
+      discs: [{ id: 'Jp', shaft: 'p', at: L, inertia: Jshaft }, { id: 'Jq', shaft: 'q', at: L, inertia: Jshaft }],
+      dynamics: { modes: 6 },
+    });
+    const modes = sol.modes ?? [];
+    expect(modes).toHaveLength(6);
+    modes.forEach((m, i) => {
+      const k = Math.floor(i / 2);
+      const beta = bisect((b) => b * Math.tan(b) - 1, k * Math.PI + 1e-12, k * Math.PI + Math.PI / 2 - 1e-12);
+      expectRel(m.angularFrequency, (beta * WAVE) / L);
+    });
+    // Each pair: the end rotations (p, q) of the two modes are orthogonal (equal inertias, equal shapes).
+    for (let k = 0; k < 3; k++) {
+      const [a, b] = [modes[2 * k], modes[2 * k + 1]];
+      const end = (m: typeof a) => [m.shafts[0].rotation[1], m.shafts[1].rotation[1]];
+      const [ap, aq] = end(a);
+      const [bp, bq] = end(b);
+      expect(Math.abs(ap * bp + aq * bq)).toBeLessThanOrEqual(1e-6 * Math.hypot(ap, aq) * Math.hypot(bp, bq));
+    }
+  });
+});
+
 describe('a geared pair against its reduction by the ratio squared', () => {
   // Shaft 1 fixed at z = 0, disc J1 and gear r1 at its end; gear r2 at the start of shaft 2, disc J2 at
   // its end. A rigid mesh makes φ2 = ∓(r1/r2)·φ1, so shaft 2 and its disc seen from shaft 1 have

@@ -29,7 +29,7 @@ const SHIFT = 1e-9;
 /** Highest circular frequency searched, rad/s (1e9 rad/s, far beyond any shaft's torsion). */
 const OMEGA_LIMIT = 1e9;
 /** Most modes found with maxFrequency (the rest are reported as a count in a warning). */
-export const MAX_FOUND = 2000;
+export const MAX_FOUND = 200;
 /** |β/π − n| under which an element counts as vibrating clamped at a root, dimensionless. */
 const CLAMPED_TOL = 1e-7;
 
