@@ -19,6 +19,7 @@ import {
   toDisplay,
 } from '../shared-types/present.js';
 import type { Solved } from './engine/index.js';
+import { formatDynamicsReport } from './report-dynamics.js';
 
 function table(head: string[], rows: string[][]): string {
   const widths = head.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
@@ -110,20 +111,21 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
   if (s.stressRaisers !== undefined && s.stressRaisers.length > 0) out.push(raiserTable(s, units), '');
   out.push('Total twist per shaft (max rotation - min rotation)');
   out.push(table(['shaft', `twist [${u.angle}]`], s.shafts.map((sh) => [sh.id, deg(sh.totalTwist)])), '');
+  if (s.modes !== undefined) out.push(formatDynamicsReport(s, (model as { dynamics?: { speed?: { shaft?: string } } }).dynamics?.speed?.shaft));
   if (s.checks.length > 0) {
     out.push('Checks, worst first');
     out.push(
       table(
         ['check', 'where', 'value', 'limit', 'utilisation', 'result'],
         s.checks.map((c) => {
-          const kind: FieldKind = c.kind === 'shear' || c.kind === 'localPeak' ? 'stress' : c.kind === 'twistRate' ? 'twistRate' : 'angle';
+          const kind: FieldKind = c.kind === 'shear' || c.kind === 'localPeak' ? 'stress' : c.kind === 'twistRate' ? 'twistRate' : c.kind === 'crossing' ? 'angularSpeed' : 'angle';
           return [
             c.kind,
-            `${c.shaft}${c.segment === undefined ? '' : `[${c.segment}]`}${c.raiser === undefined ? '' : ` ${c.raiser}`}${c.material ? ` ${c.material}` : ''}`,
+            `${c.shaft}${c.segment === undefined ? '' : `[${c.segment}]`}${c.raiser === undefined ? '' : ` ${c.raiser}`}${c.material ? ` ${c.material}` : ''}${c.mode === undefined ? '' : ` mode ${c.mode} order ${c.order}`}`,
             `${show(c.value, kind)} ${u[kind]}`,
             `${show(c.limit, kind)} ${u[kind]}`,
             formatNumber(c.utilisation, 3),
-            c.pass ? 'ok' : 'EXCEEDS',
+            c.pass ? 'ok' : c.kind === 'crossing' ? 'RESONANCE' : 'EXCEEDS',
           ];
         }),
       ),
@@ -199,6 +201,7 @@ export function formatCombinationsReport(model: { name?: string }, s: Solution, 
     }
     out.push(table(['segment', `max |T| [${u.torque}]`, 'in', 'layer', `max tau [${u.stress}]`, 'util.', 'in'], rows), '');
   }
+  if (s.modes !== undefined) out.push(formatDynamicsReport(s, (model as { dynamics?: { speed?: { shaft?: string } } }).dynamics?.speed?.shaft));
   for (const w of s.warnings) out.push(`warning ${w.code}: ${w.message}`);
   out.push('', ...CAUTIONS.map((c) => `Caution: ${c}`));
   return out.join('\n');

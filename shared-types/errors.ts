@@ -55,6 +55,8 @@ export const ERROR_CODES = {
   SN_FOUR_EYES: { status: 403, summary: 'Nobody checks, approves or returns a revision they authored, and the approver is not its checker.' },
   SN_REVIEW_STALE: { status: 409, summary: 'A review state was sent for a revision that is no longer the latest of its model.' },
   SN_REVIEW_STATE: { status: 409, summary: 'That review state cannot follow the revision\'s current one (approved and returned are final).' },
+  // Dynamics (natural frequencies, issue 12).
+  SN_DYN_NO_INERTIA: { status: 422, summary: 'A model with dynamics has no inertia, or a group of shafts free to spin has none: no natural frequency exists.' },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
 } as const satisfies Record<string, ErrorCodeInfo>;
 

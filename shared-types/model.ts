@@ -228,6 +228,33 @@ export const Limits = Type.Object(
 );
 export type Limits = Static<typeof Limits>;
 
+/** A harmonic torque of `order` × the reference shaft's speed, at a point (dynamics). */
+export const Excitation = Type.Object(
+  { id: Id, shaft: Ref('shaft'), at: Quantity, amplitude: Quantity, order: Type.Number({ description: 'Cycles per revolution of the reference shaft (> 0).' }) },
+  strict,
+);
+export type Excitation = Static<typeof Excitation>;
+
+/**
+ * Torsional dynamics (contract, "Dynamics"): natural frequencies and modes, speeds to avoid in the
+ * operating range of `speed.shaft`, and the forced response to the excitations.
+ */
+export const Dynamics = Type.Object(
+  {
+    /** How many of the lowest natural frequencies to find (default 6; rigid-body modes count). */
+    modes: Type.Optional(Type.Number({ description: 'Lowest natural frequencies to find, a positive integer (default 6).' })),
+    /** Every mode up to this frequency instead of `modes`. */
+    maxFrequency: Type.Optional(Quantity),
+    speed: Type.Optional(Type.Object({ shaft: Ref('shaft'), min: Quantity, max: Quantity }, strict)),
+    orders: Type.Optional(Type.Array(Type.Number(), { maxItems: 64, description: 'Excitation orders per revolution of speed.shaft.' })),
+    margin: Type.Optional(Type.Number({ description: 'Relative widening of the operating range around each crossing (0.1 = ±10 %).' })),
+    damping: Type.Optional(Type.Number({ description: 'Damping ratio ζ of every elastic part (hysteretic: k(1 + 2iζ)).' })),
+    excitations: Type.Optional(Type.Array(Excitation)),
+  },
+  strict,
+);
+export type Dynamics = Static<typeof Dynamics>;
+
 export const Model = Type.Object(
   {
     format: Type.Literal(MODEL_FORMAT),
@@ -246,6 +273,7 @@ export const Model = Type.Object(
     limits: Type.Optional(Limits),
     loadCases: Type.Optional(Type.Array(LoadCase, { minItems: 1 })),
     combinations: Type.Optional(Type.Array(Combination, { minItems: 1 })),
+    dynamics: Type.Optional(Dynamics),
   },
   { $id: 'Model', additionalProperties: false, description: 'A Shaftnet model, format shaftnet/1.' },
 );

@@ -199,7 +199,7 @@ export function formatQuantity(si: number | null | undefined, kind: FieldKind, s
 
 /** What the results are and are not: every report, printout and results view carries these. */
 export const CAUTIONS: readonly string[] = [
-  'Linear-elastic Saint-Venant torsion with free warping: no yielding, no buckling, no dynamics. Restrained warping of non-circular (above all open) sections is not modelled; tubes and open sections use thin-wall theory.',
+  'Linear-elastic Saint-Venant torsion with free warping: no yielding, no buckling. Vibration only with the model\'s dynamics: linear, small vibration; the damping is an estimate you supply; no excitation is assumed unless you give it. Restrained warping of non-circular (above all open) sections is not modelled; tubes and open sections use thin-wall theory.',
   'Stress concentration only where you modelled it (stress raisers: shoulder fillets by a published fit, other features by your factor) and no fatigue: every other stress shown is nominal.',
   'Results must be checked by a qualified engineer against the codes and standards that apply where the machine is built and used.',
 ];

@@ -174,6 +174,9 @@ const table: Array<[QuantityKind, string, number]> = [
   ['power', 'hp', HP],
   ['angularSpeed', 'rad/s', 1],
   ['angularSpeed', 'rpm', (2 * Math.PI) / 60],
+  // A frequency is a rate of the same kind (dynamics): one cycle per second is 2π rad/s.
+  ['angularSpeed', 'Hz', 2 * Math.PI],
+  ['angularSpeed', 'kHz', 2000 * Math.PI],
 ];
 
 /** Every unit the format accepts, keyed by its canonical symbol. */
@@ -358,7 +361,7 @@ const KIND_WORDS: Record<QuantityKind, string> = {
   areaMoment: 'second moment of area',
   sectionModulus: 'section modulus',
   power: 'power',
-  angularSpeed: 'rotational speed',
+  angularSpeed: 'rotational speed or frequency',
 };
 
 /** A reader's word for a kind, for messages. */

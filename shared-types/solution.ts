@@ -122,7 +122,7 @@ export const CouplingResult = Type.Object({
 export type CouplingResult = Static<typeof CouplingResult>;
 
 export const CheckResult = Type.Object({
-  kind: Type.Union([Type.Literal('shear'), Type.Literal('twistRate'), Type.Literal('totalTwist'), Type.Literal('localPeak')]),
+  kind: Type.Union([Type.Literal('shear'), Type.Literal('twistRate'), Type.Literal('totalTwist'), Type.Literal('localPeak'), Type.Literal('crossing')]),
   shaft: Type.String(),
   segment: Type.Optional(Type.Integer()),
   material: Type.Optional(Type.String()),
@@ -133,6 +133,13 @@ export const CheckResult = Type.Object({
   pass: Type.Boolean(),
   /** localPeak checks: the stress raiser's id. */
   raiser: Type.Optional(Type.String()),
+  /**
+   * crossing checks (dynamics): the mode (1-based, as in `modes`) and the order whose crossing speed
+   * (`value`, rad/s) lies in the operating range widened by the margin; `limit` is the nearer edge of
+   * that band, `utilisation` 1 at the edge rising to 2 at its centre; it never passes.
+   */
+  mode: Type.Optional(Type.Integer()),
+  order: Type.Optional(Num),
 });
 export type CheckResult = Static<typeof CheckResult>;
 
@@ -231,6 +238,48 @@ export const EnvelopeResult = Type.Object({
 });
 export type EnvelopeResult = Static<typeof EnvelopeResult>;
 
+/** A share of a mode's strain or kinetic energy: a segment ("shaft[j]"), spring support, mesh, coupling or disc. */
+export const EnergyShare = Type.Object({ item: Type.String(), share: Num });
+export type EnergyShare = Static<typeof EnergyShare>;
+
+/** A natural mode (contract, "Dynamics"): scaled so that its largest |φ| at the stations is +1. */
+export const ModeResult = Type.Object({
+  /** Hz; 0 for a rigid-body mode. */
+  frequency: Num,
+  /** rad/s. */
+  angularFrequency: Num,
+  rigidBody: Type.Boolean(),
+  shafts: Type.Array(
+    Type.Object({
+      id: Type.String(),
+      /** The stations' z, m, and the mode's rotation there (rad, scaled), in station order. */
+      z: Type.Array(Num),
+      rotation: Type.Array(Num),
+      /** The shape along the shaft for drawing: the stations and exact interior points where it curves. */
+      diagram: Type.Object({ z: Type.Array(Num), rotation: Type.Array(Num) }),
+    }),
+  ),
+  energy: Type.Object({
+    /** Shares of the strain energy (sum 1) over segments, spring supports, compliant meshes and couplings; null for a rigid-body mode. */
+    strain: Type.Union([Type.Array(EnergyShare), Type.Null()]),
+    /** Shares of the kinetic energy (sum 1) over discs and segments with inertia. */
+    kinetic: Type.Array(EnergyShare),
+  }),
+});
+export type ModeResult = Static<typeof ModeResult>;
+
+/** A mode meeting an excitation order: order × speed = the mode's frequency (contract, "Speeds to avoid"). */
+export const CrossingResult = Type.Object({
+  /** 1-based index into `modes`. */
+  mode: Type.Integer(),
+  order: Num,
+  /** Speed of the reference shaft, rad/s. */
+  speed: Num,
+  /** min·(1 − margin) ≤ speed ≤ max·(1 + margin): a failing check of kind 'crossing'. */
+  inRange: Type.Boolean(),
+});
+export type CrossingResult = Static<typeof CrossingResult>;
+
 export const Solution = Type.Object(
   {
     format: Type.Literal(SOLUTION_FORMAT),
@@ -255,6 +304,10 @@ export const Solution = Type.Object(
     /** A model with load cases: every combination's results, and the envelope over them. */
     combinations: Type.Optional(Type.Array(CombinationResult)),
     envelope: Type.Optional(EnvelopeResult),
+    /** Only with `dynamics`: the natural modes, lowest first (rigid-body modes at 0 Hz among them). */
+    modes: Type.Optional(Type.Array(ModeResult)),
+    /** Only with `dynamics` and a `speed`: every non-rigid mode with every order. */
+    crossings: Type.Optional(Type.Array(CrossingResult)),
     warnings: Type.Array(Warning),
     stats: Type.Object({
       stations: Type.Integer(),

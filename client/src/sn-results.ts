@@ -21,6 +21,7 @@ const CHECK_KIND: Record<AnyCheck['kind'], { label: string; kind: FieldKind }> =
   twistRate: { label: 'Twist rate', kind: 'twistRate' },
   totalTwist: { label: 'Total twist', kind: 'angle' },
   localPeak: { label: 'Local peak', kind: 'stress' },
+  crossing: { label: 'Resonance in running range', kind: 'angularSpeed' },
 };
 
 /** Checks listed before "Show all": the worst ones. */

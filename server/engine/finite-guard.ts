@@ -27,7 +27,7 @@ import type { Solved } from './output.js';
 
 /** Throws SN_ILL_CONDITIONED when any number the solution would carry is NaN or ±Infinity. */
 export function assertFiniteResults(sv: Solved): void {
-  const found = firstNonFinite(sv) ?? combinationNonFinite(sv);
+  const found = firstNonFinite(sv) ?? combinationNonFinite(sv) ?? dynamicsNonFinite(sv);
   if (found === null) return;
   const shaft = found.shaft >= 0 ? sv.model.shafts[found.shaft].id : undefined;
   const issue: ModelIssue = {
@@ -264,4 +264,25 @@ function atSegment(sv: Solved, g: number, what: string, a?: Float64Array, value?
   const s = ownerOf(sv.rec.segBase, nShafts + 1, g);
   const k = g - sv.rec.segBase[s];
   return { pointer: pointer('shafts', s, 'segments', k), shaft: s, what: `${what} of segment ${k}`, value: a === undefined ? (value as number) : a[g] };
+}
+
+/** With dynamics: the first non-finite number of a mode (frequency, shape, energy share) or a crossing speed. */
+function dynamicsNonFinite(sv: Solved): NonFinite | null {
+  const d = sv.dynamics;
+  if (d === undefined) return null;
+  const at = (what: string, value: number): NonFinite => ({ pointer: '/dynamics', shaft: -1, what, value });
+  for (const [k, m] of d.modes.entries()) {
+    const what = `mode ${k + 1}`;
+    if (!Number.isFinite(m.angularFrequency)) return at(`the frequency of ${what}`, m.angularFrequency);
+    for (const sh of m.shafts) {
+      for (const a of [sh.rotation, sh.shape]) {
+        if (zeroIfFinite(a, 0, a.length) !== 0) return { pointer: '/dynamics', shaft: sv.model.shafts.findIndex((s) => s.id === sh.id), what: `the shape of ${what}`, value: a[firstBad(a, 0, a.length)] };
+      }
+    }
+    for (const a of [m.strain ?? new Float64Array(0), m.kinetic]) {
+      if (zeroIfFinite(a, 0, a.length) !== 0) return at(`an energy share of ${what}`, a[firstBad(a, 0, a.length)]);
+    }
+  }
+  for (const c of d.crossings) if (!Number.isFinite(c.speed)) return at(`the crossing speed of mode ${c.mode}, order ${c.order}`, c.speed);
+  return null;
 }

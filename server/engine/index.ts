@@ -93,6 +93,13 @@ export function modelSize(model: unknown): { stations: number; shafts: number } 
     len('torques') +
     len('discs') +
     len('stressRaisers') +
-    2 * (len('distributedTorques') + len('gearMeshes') + len('couplings'));
+    2 * (len('distributedTorques') + len('gearMeshes') + len('couplings')) +
+    dynamicExcitations(m.dynamics);
   return { stations, shafts: shafts.length };
+}
+
+/** Excitations of a model's `dynamics` (each one a station), 0 when absent or not a list. */
+function dynamicExcitations(d: unknown): number {
+  const e = d !== null && typeof d === 'object' ? (d as { excitations?: unknown }).excitations : undefined;
+  return Array.isArray(e) ? e.length : 0;
 }

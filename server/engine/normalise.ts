@@ -13,12 +13,15 @@ import { buildSectionLayers, type SectionLayer } from './sections.js';
 import { sectionProperties, shapeProblems, type ShapeInput, type ShapeProperties } from './shapes.js';
 import { taperProblems, taperStiffness, type TaperInput } from './taper.js';
 import { shoulderFactor, shoulderRangeProblem } from './stress-raisers.js';
+import type { ResolvedDynamics, ResolvedExcitation } from './dynamics/types.js';
 
 export interface ResolvedMaterial {
   readonly id: string;
   readonly G: number;
   readonly allowableShear: number | null;
   readonly shearYield: number | null;
+  /** kg/m³, or null when not given (the shafts' own inertia is then left out of dynamics). */
+  readonly density: number | null;
 }
 
 export interface ResolvedSegment {
@@ -35,6 +38,12 @@ export interface ResolvedSegment {
   readonly shape?: { readonly polarMoment: number | null; readonly torsionalModulus: number; readonly plasticModulus?: number | null };
   /** A tapered segment (`layers`, `rigidity` and `shearFactor` are then those at its start). */
   readonly taper?: ResolvedTaper;
+  /**
+   * Rotary inertia per length ρ·Ip summed over the layers, kg·m (dynamics); 0 where no density (or,
+   * for a non-circular section, no polar moment) is given. A taper's varies: ρ·Ip(z) from its geometry
+   * and `taper.density`.
+   */
+  readonly rhoIp?: number;
 }
 
 /** A tapered segment: its geometry from the segment's start, its one material and its exact stiffness. */
@@ -46,6 +55,8 @@ export interface ResolvedTaper {
   readonly sectionEndId: string;
   /** The layer at the end (one ring). */
   readonly layersEnd: readonly SectionLayer[];
+  /** Density of its material, kg/m³ (0 without one): ρ·Ip(z) per length for dynamics. */
+  readonly density?: number;
 }
 
 /**
@@ -151,6 +162,8 @@ export interface ResolvedModel {
   readonly combinations: readonly ResolvedCombination[];
   /** True when the model lists its combinations (else each case is one, and is named by /loadCases/i). */
   readonly combinationsGiven: boolean;
+  /** The model's `dynamics`, resolved; null without it. */
+  readonly dynamics: ResolvedDynamics | null;
 }
 
 /** Smallest positive normal double: below it numbers lose precision and products underflow. */
@@ -162,6 +175,12 @@ const MIN_NORMAL = 2.2250738585072014e-308;
  * segment would have no element and no results. Twice that, for the round-off of the summed ends.
  */
 const MIN_SEGMENT_FRACTION = 2e-12;
+
+/** Dynamics: modes found without `modes` (contract default), the most one may ask, orders' bound, margin's default. */
+const DEFAULT_MODES = 6;
+const MAX_MODES = 200;
+const MAX_ORDER = 1000;
+const DEFAULT_MARGIN = 0.1; // ±10 % (common practice, no source)
 
 /** The model schema, compiled once for the program (shared-types/schema-issues.ts). */
 const validator = MODEL_VALIDATOR;
@@ -281,9 +300,89 @@ class Resolver {
       totalTwist: m.limits?.totalTwist === undefined ? null : this.positive(m.limits.totalTwist, 'angle', '/limits/totalTwist'),
     };
     const combinations = this.combinations(torques, distributed);
+    const dynamics = this.dynamics(discs);
     if (this.issues.length > 0) throw new ModelError(this.issues);
     const loadCases = (m.loadCases ?? []).map((c) => (c.name === undefined ? { id: c.id } : { id: c.id, name: c.name }));
-    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits, loadCases, combinations, combinationsGiven: m.loadCases !== undefined && m.combinations !== undefined };
+    return { name: m.name, shafts: this.shafts, supports, torques, distributed, meshes, couplings, discs, raisers, warnings: this.warnings, limits, loadCases, combinations, combinationsGiven: m.loadCases !== undefined && m.combinations !== undefined, dynamics };
+  }
+
+  /**
+   * The model's `dynamics` (contract, "Dynamics"), every issue at its pointer; null without it.
+   * Warns where inertia the engineer may expect is left out (a material without density, a
+   * non-circular section without its polar moment).
+   */
+  private dynamics(discs: readonly ResolvedDisc[]): ResolvedDynamics | null {
+    const d = this.m.dynamics;
+    if (d === undefined) return null;
+    const base = '/dynamics';
+    let modes = DEFAULT_MODES;
+    if (d.modes !== undefined) {
+      if (!(Number.isInteger(d.modes) && d.modes >= 1 && d.modes <= MAX_MODES)) {
+        this.issue('SN_OUT_OF_RANGE', base + '/modes', `"modes" must be a whole number from 1 to ${MAX_MODES} (got ${String(d.modes)})`);
+      } else modes = d.modes;
+    }
+    const maxFrequency = d.maxFrequency === undefined ? null : this.positive(d.maxFrequency, 'angularSpeed', base + '/maxFrequency');
+    let speed: ResolvedDynamics['speed'] = null;
+    if (d.speed !== undefined) {
+      const sp = base + '/speed';
+      const shaft = this.shaftIndex.get(d.speed.shaft);
+      if (shaft === undefined) this.issue('SN_UNRESOLVED', sp + '/shaft', `no shaft with id "${d.speed.shaft}"`);
+      const min = this.positive(d.speed.min, 'angularSpeed', sp + '/min');
+      const max = this.positive(d.speed.max, 'angularSpeed', sp + '/max');
+      if (min > max) this.issue('SN_RANGE_ORDER', sp + '/max', '"max" must not be below "min"');
+      speed = { shaft: shaft ?? -1, min, max };
+    }
+    const orders = (d.orders ?? []).map((o, k) => {
+      if (!(Number.isFinite(o) && o > 0 && o <= MAX_ORDER)) {
+        this.issue(Number.isFinite(o) && o <= 0 ? 'SN_NOT_POSITIVE' : 'SN_OUT_OF_RANGE', `${base}/orders/${k}`, `an order is a number of cycles per revolution, greater than zero and at most ${MAX_ORDER} (got ${String(o)})`);
+      }
+      return o;
+    });
+    if (d.orders !== undefined && d.speed === undefined) this.issue('SN_SCHEMA', base + '/speed', '"orders" are per revolution of the reference shaft: give "speed" (shaft, min, max)');
+    const fraction = (v: number | undefined, key: string, what: string, fallback: number): number => {
+      if (v === undefined) return fallback;
+      if (!(Number.isFinite(v) && v >= 0 && v < 1)) this.issue('SN_OUT_OF_RANGE', `${base}/${key}`, `${what} must lie from 0 up to (not including) 1 (got ${String(v)})`);
+      return v;
+    };
+    const margin = fraction(d.margin, 'margin', '"margin" (a fraction: 0.1 is ±10 %)', DEFAULT_MARGIN);
+    const damping = fraction(d.damping, 'damping', 'the damping ratio ζ', 0);
+    const seen = new Map<string, number>();
+    (d.excitations ?? []).forEach((e, i) => {
+      const first = seen.get(e.id);
+      if (first === undefined) seen.set(e.id, i);
+      else this.issue('SN_DUPLICATE_ID', pointer('dynamics', 'excitations', i, 'id'), `id "${e.id}" is already used by ${pointer('dynamics', 'excitations', first)}`);
+    });
+    const excitations = (d.excitations ?? []).map((e, i): ResolvedExcitation => {
+      const ep = pointer('dynamics', 'excitations', i);
+      const at = this.point(e.shaft, e.at, ep);
+      const amplitude = this.q(e.amplitude, 'torque', ep + '/amplitude');
+      if (!(Number.isFinite(e.order) && e.order > 0 && e.order <= MAX_ORDER)) {
+        this.issue(Number.isFinite(e.order) && e.order <= 0 ? 'SN_NOT_POSITIVE' : 'SN_OUT_OF_RANGE', ep + '/order', `an order is greater than zero and at most ${MAX_ORDER} (got ${String(e.order)})`);
+      }
+      return { id: e.id, ...at, amplitude, order: e.order };
+    });
+    if (excitations.length > 0 && d.speed === undefined) this.issue('SN_SCHEMA', base + '/speed', 'excitations run at orders of the reference speed: give "speed" (shaft, min, max)');
+    // Inertia left out: say where, once per material or section.
+    const noDensity = new Set<string>();
+    const noPolar = new Set<string>();
+    let inertial = discs.some((x) => x.inertia > 0);
+    for (const shaft of this.shafts) {
+      for (const seg of shaft.segments) {
+        if ((seg.rhoIp ?? 0) > 0) inertial = true;
+        for (const l of seg.layers) if (this.materials.get(l.materialId)?.density === null) noDensity.add(l.materialId);
+        if (seg.shape && seg.shape.polarMoment === null) noPolar.add(seg.sectionId);
+      }
+    }
+    if (noDensity.size > 0) {
+      this.warnings.push({ code: 'SN_DYN_NO_DENSITY', message: `material${noDensity.size === 1 ? '' : 's'} ${[...noDensity].map((x) => `"${x}"`).join(', ')} give${noDensity.size === 1 ? 's' : ''} no density: the shafts' own inertia there is left out of the dynamics` });
+    }
+    if (noPolar.size > 0) {
+      this.warnings.push({ code: 'SN_DYN_NO_DENSITY', message: `section${noPolar.size === 1 ? '' : 's'} ${[...noPolar].map((x) => `"${x}"`).join(', ')} give${noPolar.size === 1 ? 's' : ''} no polarMoment: their inertia is left out of the dynamics` });
+    }
+    if (!inertial && this.issues.length === 0) {
+      this.issue('SN_DYN_NO_INERTIA', base, 'the model has no inertia: give discs, or a density on the materials of its shafts, to have natural frequencies');
+    }
+    return { modes, maxFrequency, speed, orders, margin, damping, excitations };
   }
 
   /** The index of a load's case: −1 without load cases; every load names one when they exist. */
@@ -395,12 +494,13 @@ class Resolver {
       this.issue('SN_MATERIAL', mat.E === undefined ? base + '/E' : base + '/nu', 'give the shear modulus G, or both E and nu');
     }
     const optional = (v: unknown, key: string) => (v === undefined ? null : this.positive(v, 'stress', `${base}/${key}`));
-    if (mat.density !== undefined) this.positive(mat.density, 'density', base + '/density');
+    const density = mat.density === undefined ? null : this.positive(mat.density, 'density', base + '/density');
     this.materials.set(mat.id, {
       id: mat.id,
       G,
       allowableShear: optional(mat.allowableShear, 'allowableShear'),
       shearYield: optional(mat.shearYield, 'shearYield'),
+      density: density !== null && density > 0 ? density : null,
     });
   }
 
@@ -438,7 +538,10 @@ class Resolver {
           this.issue('SN_OUT_OF_RANGE', sp + '/length', `a length of ${length} m makes the stiffness G·J/L out of numeric range: check its unit`);
         }
       }
-      const out: ResolvedSegment = { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor };
+      // ρ·Ip per length (dynamics): rings by their own polar moments; a non-circular section by its polarMoment.
+      const density = (l: SectionLayer) => this.materials.get(l.materialId)?.density ?? 0;
+      const rhoIp = props === undefined ? layers.reduce((sum, l) => sum + density(l) * l.J, 0) : layers.length === 1 ? density(layers[0]) * (props.polarMoment ?? 0) : 0;
+      const out: ResolvedSegment = { index: j, sectionId: seg.section, z0, z1: z + carry, layers, rigidity, shearFactor, rhoIp };
       if (shape) return { ...out, shape };
       return taper ? { ...out, taper } : out;
     });
@@ -565,7 +668,7 @@ class Resolver {
     for (const p of problems) this.issue('SN_SECTION_GEOMETRY', sp + '/sectionEnd', `taper from "${this.m.sections[si].id}" to "${endId}": ${p.message}`);
     if (problems.length > 0) return undefined;
     const G = layers[0].G;
-    return { input, G, stiffness: taperStiffness(input, G), sectionEndId: endId, layersEnd };
+    return { input, G, stiffness: taperStiffness(input, G), sectionEndId: endId, layersEnd, density: this.materials.get(layers[0].materialId)?.density ?? 0 };
   }
 
   /** The layer of a non-circular section: its effective J and outer radius J/Wt (τmax = G·r·θ). */

@@ -26,6 +26,9 @@ import {
   type SegmentResult,
   type ShaftResult,
   type Solution,
+  type ModeResult,
+  type EnergyShare,
+  type CrossingResult,
   type Station,
   type StressRaiserResult,
   type Warning,
@@ -35,6 +38,7 @@ import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
 import type { Recovered } from './recover.js';
 import type { CombinationSolved, Envelope } from './combinations.js';
+import type { Crossing, DynamicsSolved } from './dynamics/modes.js';
 
 /** A finished solve, in columns. */
 export interface Solved {
@@ -48,6 +52,8 @@ export interface Solved {
   readonly overload?: Overload;
   /** A model with load cases: the combination shown at the top level, every combination, and the envelope. */
   readonly cases?: { readonly combination: string; readonly combinations: readonly CombinationSolved[]; readonly envelope: Envelope };
+  /** A model with dynamics: its modes and crossings. */
+  readonly dynamics?: DynamicsSolved;
 }
 
 /** The field names of one kind of object, in the order they are written. The first is never left out. */
@@ -102,6 +108,8 @@ const SOLUTION = rec<Solution>(
   'overload',
   'combinations',
   'envelope',
+  'modes',
+  'crossings',
   'warnings',
   'stats',
 );
@@ -133,7 +141,7 @@ const GEAR_MESH = rec<GearMeshResult>('gearMesh', 'force', 'torqueA', 'torqueB',
 const COUPLING = rec<CouplingResult>('coupling', 'torqueA', 'torqueB', 'twist');
 const EQUILIBRIUM = rec<Solution['equilibrium']>('maxResidual', 'shafts');
 const RESIDUAL = rec<Solution['equilibrium']['shafts'][number]>('shaft', 'residual');
-const CHECK = rec<CheckResult>('kind', 'shaft', 'value', 'limit', 'utilisation', 'pass', 'segment', 'layer', 'material', 'raiser');
+const CHECK = rec<CheckResult>('kind', 'shaft', 'value', 'limit', 'utilisation', 'pass', 'segment', 'layer', 'material', 'raiser', 'mode', 'order');
 const RAISER = rec<StressRaiserResult>(
   'id',
   'shaft',
@@ -177,6 +185,12 @@ const E_SEGMENT = rec<Item<Item<EnvelopeResult['shafts']>['segments']>>('index',
 const E_LAYER = rec<Item<Item<Item<EnvelopeResult['shafts']>['segments']>['layers']>>('material', 'maxShear', 'utilisation', 'combination');
 
 const CHECK_KINDS = ['shear', 'twistRate', 'totalTwist', 'localPeak'] as const;
+const MODE = rec<ModeResult>('frequency', 'angularFrequency', 'rigidBody', 'shafts', 'energy');
+const MODE_SHAFT = rec<Item<ModeResult['shafts']>>('id', 'z', 'rotation', 'diagram');
+const MODE_DIAGRAM = rec<Item<ModeResult['shafts']>['diagram']>('z', 'rotation');
+const ENERGY = rec<ModeResult['energy']>('strain', 'kinetic');
+const SHARE = rec<EnergyShare>('item', 'share');
+const CROSSING = rec<CrossingResult>('mode', 'order', 'speed', 'inRange');
 
 /**
  * What the walk writes with. Each value is the next field of the innermost
@@ -341,7 +355,7 @@ function walkSolution(sv: Solved, w: Writer): void {
   });
   w.close();
   w.close();
-  writeChecks(w, model, r);
+  writeChecks(w, model, r, sv.dynamics);
   if (r.raisers === undefined) w.absent();
   else {
     const rr = r.raisers;
@@ -375,6 +389,10 @@ function walkSolution(sv: Solved, w: Writer): void {
     writeCombinations(w, model, sv.cases.combinations);
     writeEnvelope(w, sv, sv.cases.envelope);
   }
+  if (sv.dynamics === undefined) {
+    w.absent();
+    w.absent();
+  } else writeDynamics(w, sv.dynamics, model.dynamics?.speed !== null);
   w.list();
   for (const x of sv.warnings) {
     w.open(WARNING);
@@ -396,12 +414,94 @@ function walkSolution(sv: Solved, w: Writer): void {
   w.close();
 }
 
-/** The checks of one load state, worst first. */
-function writeChecks(w: Writer, model: ResolvedModel, r: Recovered): void {
+/** The modes (each shaft's stations and drawing, the energy shares) and, with a speed, the crossings. */
+function writeDynamics(w: Writer, d: DynamicsSolved, withSpeed: boolean): void {
+  const shares = (items: readonly string[], values: Float64Array) => {
+    w.list();
+    for (let k = 0; k < values.length; k++) {
+      w.open(SHARE);
+      w.str(items[k]);
+      w.num(values[k]);
+      w.close();
+    }
+    w.close();
+  };
+  w.list();
+  for (const m of d.modes) {
+    w.open(MODE);
+    w.num(m.frequency);
+    w.num(m.angularFrequency);
+    w.bool(m.rigidBody);
+    w.list();
+    for (const sh of m.shafts) {
+      w.open(MODE_SHAFT);
+      w.str(sh.id);
+      w.series(sh.stationZ, 0, sh.stationZ.length);
+      w.series(sh.rotation, 0, sh.rotation.length);
+      w.open(MODE_DIAGRAM);
+      w.series(sh.z, 0, sh.z.length);
+      w.series(sh.shape, 0, sh.shape.length);
+      w.close();
+      w.close();
+    }
+    w.close();
+    w.open(ENERGY);
+    if (m.strain === null) w.optNum(null);
+    else shares(d.items.strain, m.strain);
+    shares(d.items.kinetic, m.kinetic);
+    w.close();
+    w.close();
+  }
+  w.close();
+  if (!withSpeed) {
+    w.absent();
+    return;
+  }
+  w.list();
+  for (const c of d.crossings) {
+    w.open(CROSSING);
+    w.num(c.mode);
+    w.num(c.order);
+    w.num(c.speed);
+    w.bool(c.inRange);
+    w.close();
+  }
+  w.close();
+}
+
+/** A failing crossing as a check: 1 at the edge of the widened range, 2 at its centre. */
+function crossingUtilisation(c: Crossing): number {
+  const half = 0.5 * (c.high - c.low);
+  return half > 0 ? 1 + Math.min(c.speed - c.low, c.high - c.speed) / half : 2;
+}
+
+function writeCrossingCheck(w: Writer, shaft: string, c: Crossing): void {
+  w.open(CHECK);
+  w.str('crossing');
+  w.str(shaft);
+  w.num(c.speed);
+  w.num(c.speed - c.low <= c.high - c.speed ? c.low : c.high);
+  w.num(crossingUtilisation(c));
+  w.bool(false);
+  w.absent();
+  w.absent();
+  w.absent();
+  w.absent();
+  w.num(c.mode);
+  w.num(c.order);
+  w.close();
+}
+
+/** The checks of one load state, worst first; with dynamics, the failing crossings merged in by utilisation. */
+function writeChecks(w: Writer, model: ResolvedModel, r: Recovered, dynamics?: DynamicsSolved): void {
   w.list();
   const c = r.checks;
+  const speedShaft = model.dynamics?.speed ? model.shafts[model.dynamics.speed.shaft].id : '';
+  const failing = (dynamics?.crossings ?? []).filter((x) => x.inRange).sort((a, b) => crossingUtilisation(b) - crossingUtilisation(a));
+  let next = 0;
   for (let k = 0; k < c.listed.length; k++) {
     const m = c.listed[k];
+    while (next < failing.length && crossingUtilisation(failing[next]) > c.utilisation[m]) writeCrossingCheck(w, speedShaft, failing[next++]);
     const shaft = model.shafts[c.shaft[m]];
     const kind = c.kind[m];
     w.open(CHECK);
@@ -418,6 +518,8 @@ function writeChecks(w: Writer, model: ResolvedModel, r: Recovered): void {
       w.absent();
       w.str(seg.layers[seg.layers.length - 1].materialId);
       w.str(model.raisers[c.segment[m]].id);
+      w.absent();
+      w.absent();
       w.close();
       continue;
     }
@@ -431,8 +533,11 @@ function writeChecks(w: Writer, model: ResolvedModel, r: Recovered): void {
       w.absent();
     }
     w.absent();
+    w.absent();
+    w.absent();
     w.close();
   }
+  while (next < failing.length) writeCrossingCheck(w, speedShaft, failing[next++]);
   w.close();
 }
 

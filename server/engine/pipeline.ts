@@ -13,7 +13,7 @@ import { ModelError } from '../../shared-types/errors.js';
 import type { Warning } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
 import { buildStations, type StationLayout } from './stations.js';
-import { assertNoMechanism, elasticParts, loadVector, reducedRhs, reducedSystem, type ElasticParts, type ReducedSystem } from './assemble.js';
+import { assertNoMechanism, elasticParts, findMechanisms, loadVector, reducedRhs, reducedSystem, type ElasticParts, type ReducedSystem } from './assemble.js';
 import { reduceConstraints, type Reduction } from './constraints.js';
 import { ldlNumeric, ldlSymbolic, SingularMatrixError, toFullCSC, type LdlFactor } from './sparse-solver.js';
 import { denseFactor } from './dense-solver.js';
@@ -22,10 +22,11 @@ import { buildChecks, elementTorques, expandRotations, jointTorques, recoverShaf
 import type { Solved } from './output.js';
 import { recoverRaisers } from './raisers.js';
 import type { Workspace } from './workspace.js';
+import { solveDynamics, type DynamicsSolved } from './dynamics/modes.js';
 import { addToEnvelope, combinedLayout, combinedModel, emptyEnvelope, shownCombination, type CombinationSolved } from './combinations.js';
 
 /** The phases of a solve, reported to `onPhase` with their durations. */
-export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'output';
+export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'dynamics' | 'output';
 
 /** What the pipeline reads of the solve's options. */
 export interface PipelineOptions {
@@ -62,11 +63,15 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   // The constraints eliminated, φ = α·x + β: read until the rotations are expanded.
   const shaftName = (dof: number) => model.shafts[layout.shaftOf[dof]].id;
   const reduction = ws.stage(() => reduceConstraints(layout.dofCount, parts.edges, shaftName, ws));
+  // Natural frequencies, modes and crossings (contract, "Dynamics"): from the same parts and reduction.
+  const dynamics = model.dynamics ? ws.stage(() => solveDynamics(model, layout, parts.springs, reduction, findMechanisms(parts.springs, reduction, ws))) : undefined;
+  if (dynamics) lap('dynamics');
+  if (dynamics && dynamics.rigidGroups > 0) return dynamicsOnly(model, layout, reduction, dynamics);
   ws.stage(() => assertNoMechanism(model, layout, parts.springs, reduction, ws));
   // K·x = f: the entries until the compressed columns are made, the diagonal and f until solved.
   const system = ws.stage(() => reducedSystem(parts.springs, parts.load, reduction, ws));
   lap('assemble');
-  if (model.loadCases.length > 0) return solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap });
+  if (model.loadCases.length > 0) return withDynamics(solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap }), dynamics);
 
   const warnings: Warning[] = [];
   const { xs, factorNonzeros } = solveLoads(model, layout, options, ws, parts, reduction, system, [{ load: parts.load, rhs: () => system.rhs }], warnings);
@@ -98,14 +103,80 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
       message: `equilibrium holds only to ${maxResidual.toExponential(1)} N·m against torques of ${torqueScale.toExponential(1)} N·m: sizes or stiffnesses many orders of magnitude apart cost digits (check the units)`,
     });
   }
+  return withDynamics(
+    {
+      model,
+      layout,
+      rec,
+      maxResidual,
+      warnings: [...recoveryWarnings(model, reduction), ...model.warnings, ...warnings],
+      stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
+    },
+    dynamics,
+  );
+}
+
+/** A solve with its dynamics' results, warnings and failing crossings (counted among the checks). */
+function withDynamics(solved: Solved, dynamics: DynamicsSolved | undefined): Solved {
+  if (!dynamics) return solved;
+  const failing = dynamics.crossings.filter((c) => c.inRange).length;
   return {
-    model,
-    layout,
-    rec,
-    maxResidual,
-    warnings: [...recoveryWarnings(model, reduction), ...model.warnings, ...warnings],
-    stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
+    ...solved,
+    dynamics,
+    warnings: [...solved.warnings, ...dynamics.warnings],
+    stats: { ...solved.stats, checksEvaluated: solved.stats.checksEvaluated + failing },
   };
+}
+
+/**
+ * A model free to spin, with dynamics (contract, binding reading): its dynamics are solved and its
+ * statics, which have no solution, are omitted with a warning.
+ */
+function dynamicsOnly(model: ResolvedModel, layout: StationLayout, reduction: Reduction, dynamics: DynamicsSolved): Solved {
+  const omitted: Warning = {
+    code: 'SN_STATICS_OMITTED',
+    message: 'some shafts are free to spin (rigid-body modes at 0 Hz): the static part (torques, reactions, stresses, checks) has no solution and is omitted; the dynamics are solved',
+  };
+  // The static part, empty: shafts without stations or segments, no reactions, no checks.
+  const nShafts = model.shafts.length;
+  const none = new Float64Array(0);
+  const zeros = new Float64Array(nShafts);
+  const view: ResolvedModel = { ...model, shafts: model.shafts.map((sh) => ({ ...sh, segments: [] })), raisers: [], loadCases: [], combinations: [] };
+  const rec: Recovered = {
+    phi: none,
+    TL: none,
+    TR: none,
+    segBase: new Int32Array(nShafts + 1),
+    segMaxAbs: none,
+    segAt: none,
+    segTwist: none,
+    segRate: none,
+    layerBase: new Int32Array(1),
+    layerMaxShear: none,
+    totalTwist: zeros,
+    residual: zeros,
+    diagStart: new Int32Array(nShafts),
+    diagCount: new Int32Array(nShafts),
+    dZ: none,
+    dT: none,
+    dPhi: none,
+    dTau: none,
+    reactions: [],
+    gearMeshes: [],
+    couplings: [],
+    checks: { total: 0, listed: new Int32Array(0), kind: new Uint8Array(0), shaft: new Int32Array(0), segment: new Int32Array(0), layer: new Int32Array(0), value: none, limit: none, utilisation: none },
+  };
+  return withDynamics(
+    {
+      model: view,
+      layout: { ...layout, dofCount: 0, shaftStart: new Int32Array(nShafts + 1) },
+      rec,
+      maxResidual: 0,
+      warnings: [...recoveryWarnings(model, reduction), ...model.warnings, omitted],
+      stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros: 0, checksEvaluated: 0 },
+    },
+    dynamics,
+  );
 }
 
 /** What the combinations' solve takes over from the assembly. */
@@ -193,7 +264,7 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
 
 /** Stations a resolved model can have at most (each point on a shaft may be one). */
 export function stationEstimate(model: ResolvedModel): number {
-  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length + model.raisers.length;
+  let n = model.shafts.length + model.supports.length + model.torques.length + model.discs.length + model.raisers.length + (model.dynamics?.excitations.length ?? 0);
   for (const shaft of model.shafts) n += shaft.segments.length;
   return n + 2 * (model.distributed.length + model.meshes.length + model.couplings.length);
 }

@@ -2,7 +2,7 @@
  * Stations: the points along each shaft where the solution is sampled exactly.
  *
  * Every segment end, support, point torque, end of a distributed torque, gear,
- * coupling, disc and stress raiser becomes a station; consecutive stations of a shaft bound an
+ * coupling, disc, stress raiser and dynamic excitation becomes a station; consecutive stations of a shaft bound an
  * element of one segment (uniform, or a sub-taper of a tapered one) and linear distributed torque. Each station has
  * one rotation unknown (a "dof"), numbered shaft by shaft, z ascending.
  */
@@ -45,6 +45,7 @@ export function buildStations(model: ResolvedModel, ws: Workspace): StationLayou
     for (const p of model.torques) visit(p.shaft, p.z);
     for (const p of model.discs) visit(p.shaft, p.z);
     for (const p of model.raisers) visit(p.shaft, p.z);
+    if (model.dynamics) for (const p of model.dynamics.excitations) visit(p.shaft, p.z);
     for (const d of model.distributed) {
       visit(d.shaft, d.from);
       visit(d.shaft, d.to);

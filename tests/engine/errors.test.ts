@@ -93,7 +93,7 @@ describe('quantity errors', () => {
     ['a length where a modulus belongs', (m) => (m.materials[0].G = '79.3 mm'), 'SN_UNIT_KIND', '/materials/0/G'],
     ['a torque where an angle belongs', (m) => (m.couplings[0].misfit = '0.5 N*m'), 'SN_UNIT_KIND', '/couplings/0/misfit'],
     ['a rotational stiffness where a linear one belongs', (m) => (m.gearMeshes[0].stiffness = '400 N*m/rad'), 'SN_UNIT_KIND', '/gearMeshes/0/stiffness'],
-    ['a unit of frequency, not in the catalogue', (m) => (m.torques[1].speed = '24 Hz'), 'SN_UNIT_UNKNOWN', '/torques/1/speed'],
+    ['a unit of speed, not in the catalogue', (m) => (m.torques[1].speed = '24 rps'), 'SN_UNIT_UNKNOWN', '/torques/1/speed'],
     ['words instead of a number', (m) => (m.sections[0].d = 'forty mm'), 'SN_QUANTITY_SYNTAX', '/sections/0/d'],
     ['"NaN mm" (NaN cannot be a JSON number, but can be typed)', (m) => (m.torques[0].at = 'NaN mm'), 'SN_NOT_FINITE', '/torques/0/at'],
     ['"Infinity N*m"', (m) => (m.torques[0].torque = 'Infinity N*m'), 'SN_NOT_FINITE', '/torques/0/torque'],

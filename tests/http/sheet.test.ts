@@ -10,6 +10,7 @@
  * a unit of the printed result's last digit plus what the half units of the derived values it used
  * can move it (first-order propagation: relative errors times their powers). Nothing looser.
  */
+import fs from 'node:fs';
 import { createHash } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { renderSheet } from '../../server/sheet/sheet.js';
@@ -421,20 +422,23 @@ describe('limits', () => {
 });
 
 describe('results carried by later features', () => {
-  it('prints modes, crossings and the forced response when the solution carries them (contract names)', () => {
+  it('prints the modes and crossings the engine found, and a forced response when the solution carries one', () => {
+    // The invented demo with dynamics (server/demos/geared-drive-vibration.json), solved for real.
+    const demo = JSON.parse(fs.readFileSync(new URL('../../server/demos/geared-drive-vibration.json', import.meta.url), 'utf8'));
+    const solved = solveModel(demo) as Solution;
+    expect(solved.modes?.length).toBeGreaterThan(1);
+    expect(solved.crossings?.length).toBeGreaterThan(0);
     const solution = {
-      ...(solveModel(MODEL) as Solution),
-      // Invented values in the contract's shape: the sheet prints what it is given.
-      modes: [{ frequency: 41.3 }, { frequency: 187.25 }],
-      crossings: [{ mode: 1, order: 2, speed: 129.7, inRange: true }],
+      ...solved,
+      // The forced-response part in the contract's shape, values invented: the sheet prints what it is given.
       forcedResponse: { segments: [{ item: 'line[0]', peakTorque: 95, peakSpeed: 129.7 }] },
-    };
-    const html = renderSheet({ model: MODEL as Model, solution, revision: null, version: '1', generated: 'now' });
+    } as Solution;
+    const html = renderSheet({ model: demo as Model, solution, revision: null, version: '1', generated: 'now' });
     expect(html).toContain('<h3>modes</h3>');
-    expect(html).toContain('<td class="n">41.3000</td>');
-    expect(html).toContain('<td class="n">187.250</td>');
-    // 129.7 rad/s in rpm: 129.7 × 60 / (2π) = 1238.54… (closed form of the unit change).
-    expect(html).toContain(`<td class="n">${(129.7 * 60 / (2 * Math.PI)).toPrecision(6)}</td>`);
+    for (const m of solved.modes ?? []) expect(html).toContain(`<td class="n">${m.frequency.toPrecision(6)}</td>`);
+    // A crossing's speed in rpm: s × 60 / (2π) (closed form of the unit change).
+    const c = (solved.crossings ?? [])[0];
+    expect(html).toContain(`<td class="n">${(c.speed * 60 / (2 * Math.PI)).toPrecision(6)}</td>`);
     expect(html).toContain('<td>line[0]</td><td class="n">95.0000</td><td class="n">129.700</td>');
   });
 
