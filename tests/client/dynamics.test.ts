@@ -359,7 +359,7 @@ describe.runIf(hasBrowser)('the dynamics panel in Chromium', () => {
     const saved = await fetch(`${started.url}/api/models`, {
       method: 'POST',
       headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ model: { ...model(), shafts: model().shafts.slice(0, 1) }, author: 'test', message: 'panel' }), // one supported shaft
+      body: JSON.stringify({ model: { ...model(), materials: [{ id: 'steel', G: '79.3 GPa', density: '7850 kg/m^3' }], shafts: model().shafts.slice(0, 1) }, author: 'test', message: 'panel' }), // one supported shaft with its own inertia, so its dynamics solve
     });
     expect(saved.status, await saved.clone().text()).toBe(201);
     const { id } = (await saved.json()) as { id: string };
