@@ -199,6 +199,8 @@ export const CombinationResult = Type.Object({
   ),
   checks: Type.Array(CheckResult),
   equilibrium: Type.Object({ maxResidual: Num }),
+  /** Only when some material has shearYield (collapse: see API.md for which combinations get it). */
+  overload: Type.Optional(Overload),
 });
 export type CombinationResult = Static<typeof CombinationResult>;
 

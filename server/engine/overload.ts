@@ -33,6 +33,9 @@ import type { StationLayout } from './stations.js';
 import type { Solved } from './output.js';
 import { solvePipeline, type PipelineOptions } from './pipeline.js';
 import { Workspace } from './workspace.js';
+import { assembledStateModel, hasAssembledState } from './combinations.js';
+
+export { assembledStateModel, hasAssembledState } from './combinations.js';
 
 /** The part of a loaded HiGHS instance used here: `solve` of CPLEX LP text (synchronous). */
 export interface LpSolver {
@@ -68,27 +71,6 @@ export interface EndTorques {
 /** True when some material of the model has a shear yield stress (only then is overload reported). */
 export function hasShearYield(model: ResolvedModel): boolean {
   return model.shafts.some((s) => s.segments.some((g) => g.layers.some((l) => l.shearYield !== null)));
-}
-
-/** True when the model has an assembled state: a prescribed rotation, a misfit or a mesh offset. */
-export function hasAssembledState(model: ResolvedModel): boolean {
-  return (
-    model.supports.some((s) => s.rotation !== 0) ||
-    model.meshes.some((g) => g.offset !== 0) ||
-    model.couplings.some((c) => c.misfit !== 0)
-  );
-}
-
-/**
- * The model with its loads set to zero, the assembled state kept. Point and distributed torques stay
- * (with zero value) so that the stations, and so the elements, are those of the model.
- */
-export function assembledStateModel(model: ResolvedModel): ResolvedModel {
-  return {
-    ...model,
-    torques: model.torques.map((t) => ({ ...t, torque: 0 })),
-    distributed: model.distributed.map((d) => ({ ...d, start: 0, end: 0 })),
-  };
 }
 
 /** Said beside the overload of a model with load cases: the shown combination's only (not computed per combination yet). */

@@ -136,12 +136,20 @@ describe('superposition over load cases (linearity: closed form)', () => {
       expectClose(sol.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)), plain.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)), scale, 'segment peaks');
       const shear = (s: Solution) => s.shafts.flatMap((sh) => sh.segments.flatMap((g) => g.layers.map((l) => l.maxShear)));
       expectClose(shear(sol), shear(plain), maxAbs(shear(plain)), 'layer stresses');
-      // The per-combination summary says the same as the top level.
+      // The per-combination summary (from the superposed columns) says the same as the top level (its own solve), to round-off.
       const mine = sol.combinations?.find((x) => x.id === c.id);
-      expect(mine?.checks).toEqual(sol.checks);
-      expect(mine?.reactions).toEqual(sol.reactions.map((r) => ({ support: r.support, torque: r.torque })));
-      expect(mine?.segments.map((g) => g.maxAbsTorque)).toEqual(sol.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)));
-      expect(mine?.equilibrium.maxResidual).toBe(sol.equilibrium.maxResidual);
+      if (!mine) throw new Error(`no combination ${c.id}`);
+      const key = (k: Solution['checks'][number]) => `${k.kind} ${k.shaft} ${k.segment ?? ''} ${k.layer ?? ''} ${k.raiser ?? ''}`;
+      const byKey = (list: Solution['checks']) => [...list].sort((x, y) => (key(x) < key(y) ? -1 : key(x) > key(y) ? 1 : 0));
+      expect(byKey(mine.checks).map(key)).toEqual(byKey(sol.checks).map(key));
+      // Utilisations to round-off of the largest of the model (any combination's).
+      const utilScale = maxAbs((sol.combinations ?? []).flatMap((x) => x.checks.map((k) => k.utilisation)));
+      expectClose(byKey(mine.checks).map((k) => k.utilisation), byKey(sol.checks).map((k) => k.utilisation), utilScale, 'check utilisations');
+      expect(mine.reactions.map((r) => r.support)).toEqual(sol.reactions.map((r) => r.support));
+      expectClose(mine.reactions.map((r) => r.torque), sol.reactions.map((r) => r.torque), scale, 'summary reactions');
+      expectClose(mine.segments.map((g) => g.maxAbsTorque), sol.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)), scale, 'summary segment peaks');
+      expectClose(mine.segments.map((g) => g.twist), sol.shafts.flatMap((s) => s.segments.map((g) => g.twist)), rot, 'summary segment twists');
+      expect(mine.equilibrium.maxResidual).toBeLessThanOrEqual(1e-9 * scale);
     }
   });
 });
@@ -150,12 +158,19 @@ describe('the envelope is the extremes over the combinations', () => {
   it.each(SEEDS.slice(0, 8))('seed %i', (seed) => {
     const m = casedModel(seed);
     const shown = m.combinations.map((c: Json) => solveModel(m, { combination: c.id }));
-    const env = (shown[0] as Solution).envelope;
-    if (!env) throw new Error('no envelope');
+    const sol = shown[0] as Solution;
+    const env = sol.envelope;
+    const combos = sol.combinations;
+    if (!env || !combos) throw new Error('no envelope');
     const ids: string[] = m.combinations.map((c: Json) => c.id);
-    // Reactions: min/max and the combination that attains each.
+    // Round-off scales of the solves one by one against the superposed columns.
+    const scale = maxAbs(...shown.map((s: Solution) => [...s.reactions.map((r) => r.torque), ...s.shafts.flatMap((sh) => sh.segments.map((g) => g.maxAbsTorque))]));
+    const rot = maxAbs(...shown.map((s: Solution) => s.shafts.flatMap((sh) => sh.stations.map((st) => st.rotation))));
+    // Reactions: exactly the extremes of the combinations' own lists, with the combination that attains each;
+    // and those lists are the separately shown solves to 1e-12 (superposition).
     env.reactions.forEach((r, n) => {
-      const values = shown.map((s: Solution) => s.reactions[n].torque);
+      const values = combos.map((c) => c.reactions[n].torque);
+      expectClose(values, shown.map((s: Solution) => s.reactions[n].torque), scale, 'reactions');
       expect(r.min).toBe(Math.min(...values));
       expect(r.max).toBe(Math.max(...values));
       expect(values[ids.indexOf(r.minCombination)]).toBe(r.min);
@@ -168,19 +183,28 @@ describe('the envelope is the extremes over the combinations', () => {
           const v = shown.map((_x: Solution, k: number) => pick(st(k)[d]));
           return v[0] === null ? null : f(...(v as number[]));
         });
+      const close = (got: Array<number | null>, want: Array<number | null>, sc: number, what: string) => {
+        expect(got.map((x) => x === null)).toEqual(want.map((x) => x === null));
+        expectClose(got.map((x) => x ?? 0), want.map((x) => x ?? 0), sc, what);
+      };
       expect(sh.stations.z).toEqual(st(0).map((x) => x.z));
-      expect(sh.stations.torqueLeftMin).toEqual(ext((x) => x.torqueLeft, Math.min));
-      expect(sh.stations.torqueLeftMax).toEqual(ext((x) => x.torqueLeft, Math.max));
-      expect(sh.stations.torqueRightMin).toEqual(ext((x) => x.torqueRight, Math.min));
-      expect(sh.stations.torqueRightMax).toEqual(ext((x) => x.torqueRight, Math.max));
-      expect(sh.stations.rotationMin).toEqual(ext((x) => x.rotation, Math.min));
-      expect(sh.stations.rotationMax).toEqual(ext((x) => x.rotation, Math.max));
+      close(sh.stations.torqueLeftMin, ext((x) => x.torqueLeft, Math.min), scale, 'T(z−) min');
+      close(sh.stations.torqueLeftMax, ext((x) => x.torqueLeft, Math.max), scale, 'T(z−) max');
+      close(sh.stations.torqueRightMin, ext((x) => x.torqueRight, Math.min), scale, 'T(z+) min');
+      close(sh.stations.torqueRightMax, ext((x) => x.torqueRight, Math.max), scale, 'T(z+) max');
+      close(sh.stations.rotationMin, ext((x) => x.rotation, Math.min), rot, 'rotation min');
+      close(sh.stations.rotationMax, ext((x) => x.rotation, Math.max), rot, 'rotation max');
       sh.segments.forEach((g, k) => {
-        const peaks = shown.map((x: Solution) => x.shafts[s].segments[k].maxAbsTorque);
+        const mineOf = (c: (typeof combos)[number]) => c.segments.find((x) => x.shaft === sh.id && x.index === k);
+        const peaks = combos.map((c) => mineOf(c)?.maxAbsTorque ?? NaN);
+        expectClose(peaks, shown.map((x: Solution) => x.shafts[s].segments[k].maxAbsTorque), scale, 'segment peaks');
         expect(g.maxAbsTorque).toBe(Math.max(...peaks));
         expect(peaks[ids.indexOf(g.combination)]).toBe(g.maxAbsTorque);
         g.layers.forEach((l, j) => {
-          const taus = shown.map((x: Solution) => x.shafts[s].segments[k].layers[j].maxShear);
+          const taus = combos.map((c) => mineOf(c)?.layers[j].maxShear ?? NaN);
+          // Round-off of τ is that of T times the layer's τ per unit torque (read where T is not zero).
+          const perTorque = Math.max(0, ...shown.map((x: Solution) => x.shafts[s].segments[k]).filter((x: Json) => x.maxAbsTorque > 0).map((x: Json) => x.layers[j].maxShear / x.maxAbsTorque));
+          expectClose(taus, shown.map((x: Solution) => x.shafts[s].segments[k].layers[j].maxShear), scale * perTorque, 'layer stresses');
           expect(l.maxShear).toBe(Math.max(...taus));
           expect(taus[ids.indexOf(l.combination)]).toBe(l.maxShear);
           const allowable = (shown[0] as Solution).shafts[s].segments[k].layers[j].allowableShear;
