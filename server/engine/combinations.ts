@@ -70,6 +70,9 @@ export interface CombinationSolved {
 
 /** Extremes over the combinations, with the index of the combination that governs each. */
 export interface Envelope {
+  /** Per span (Superposition.spans; else empty): the extreme T, spread over the stations by `finishEnvelope`. */
+  readonly spanMin: Float64Array;
+  readonly spanMax: Float64Array;
   /** Per dof: rotation, T(z−) (of the element to the left) and T(z+) (to the right); ±Infinity where a side does not exist. */
   readonly rotationMin: Float64Array;
   readonly rotationMax: Float64Array;
@@ -234,10 +237,27 @@ export class Superposition {
   private readonly segPeak: Float64Array;
   private readonly roots = new Float64Array(2);
 
+  /**
+   * Spans (a model without tapers and distributed torques): runs of elements between stations where
+   * T may jump (a point torque, a support, a connection). T is one number along a span in every
+   * column, and φ grows by T·h/GJ element by element, so a combination needs its T and its φ at the
+   * start of each span (a sum over the columns) and one multiply-add per station. Null otherwise.
+   */
+  readonly spans: {
+    readonly T: Float64Array;
+    readonly P: Float64Array;
+    readonly of: Int32Array;
+    readonly flex: Float64Array;
+    readonly elemOf: Int32Array;
+    readonly t: Float64Array;
+    readonly p: Float64Array;
+  } | null = null;
+
   constructor(
     readonly model: ResolvedModel,
     readonly layout: StationLayout,
     readonly columns: readonly StateColumn[],
+    jumps?: Uint8Array,
   ) {
     const nShafts = model.shafts.length;
     this.segBase = new Int32Array(nShafts + 1);
@@ -293,6 +313,7 @@ export class Superposition {
     this.L = pack(elems, (c) => c.TL);
     this.R = this.distributed ? pack(elems, (c) => c.TR) : null;
     if (!this.distributed) this.st = { ...this.st, TR: this.st.TL };
+    if (!this.hasTaper && !this.distributed && jumps) this.spans = this.makeSpans(jumps);
     this.elemTaper = new Uint8Array(elems);
     for (let e = 0; e < elems; e++) this.elemTaper[e] = this.segments[this.segBase[layout.shaftOf[layout.elemLeft[e]]] + layout.elemSegment[e]].taper ? 1 : 0;
     this.segPhiFrom = f(nSeg);
@@ -300,8 +321,47 @@ export class Superposition {
     this.segPeak = f(this.hasTaper ? nSeg : 0);
   }
 
+  /** The spans of a model without tapers and distributed torques (see `spans`). */
+  private makeSpans(jumps: Uint8Array): NonNullable<Superposition['spans']> {
+    const { layout, columns, first: c0, C } = this;
+    const { shaftStart, z, elemSegment } = layout;
+    const of = new Int32Array(layout.dofCount);
+    const elemOf = new Int32Array(layout.elemLeft.length);
+    const flex = new Float64Array(layout.dofCount);
+    const starts: number[] = [];
+    for (let s = 0; s + 1 < shaftStart.length; s++) {
+      const first = shaftStart[s];
+      const last = shaftStart[s + 1] - 1;
+      const g0 = this.segBase[s];
+      for (let d = first; d <= last; d++) {
+        // A span starts at the shaft's first station and at every station inside where T may jump.
+        if (d === first || (jumps[d] && d < last)) starts.push(d);
+        const span = starts.length - 1;
+        of[d] = span;
+        if (d > first && of[d - 1] === span) {
+          const e = d - 1 - s;
+          flex[d] = flex[d - 1] + (z[d] - z[d - 1]) / this.segments[g0 + elemSegment[e]].rigidity;
+        }
+        if (d < last) elemOf[d - s] = span;
+      }
+    }
+    // Per span and column: T of its first element and φ at its first station.
+    const n = starts.length;
+    const T = new Float64Array(n * C);
+    const P = new Float64Array(n * C);
+    starts.forEach((d, span) => {
+      const e = d - layout.shaftOf[d];
+      for (let c = 0; c < C; c++) {
+        const col = columns[c + c0];
+        T[span * C + c] = col.TL[e];
+        P[span * C + c] = col.phi[d];
+      }
+    });
+    return { T, P, of, flex, elemOf, t: new Float64Array(n), p: new Float64Array(n) };
+  }
+
   /** Combination with column weights `w`: every result of it, into the scratch (valid until the next call). */
-  evaluate(w: Float64Array): CombinationState {
+  evaluate(w: Float64Array, all = true): CombinationState {
     const st = this.st;
     const cols = this.columns;
     const combine = (out: Float64Array, pick: (c: StateColumn) => Float64Array, from: number) => {
@@ -323,19 +383,33 @@ export class Superposition {
         out[i] = x;
       }
     };
-    spread(st.phi, this.P);
-    spread(st.TL, this.L);
-    if (this.R) spread(st.TR, this.R);
+    const sp = this.spans;
+    if (sp) {
+      spread(sp.t, sp.T);
+      spread(sp.p, sp.P);
+      const { phi, TL } = st;
+      const { of, flex, elemOf, t, p } = sp;
+      for (let d = 0; d < phi.length; d++) phi[d] = p[of[d]] + t[of[d]] * flex[d];
+      for (let e = 0; e < TL.length; e++) TL[e] = t[elemOf[e]];
+    } else {
+      spread(st.phi, this.P);
+      spread(st.TL, this.L);
+      if (this.R) spread(st.TR, this.R);
+    }
     if (this.distributed) {
       combine(st.t1, (c) => c.t1, 1);
       combine(st.t2, (c) => c.t2, 1);
     }
     combine(st.reaction, (c) => c.reaction, 0);
     combine(st.meshForce, (c) => c.meshForce, 0);
-    combine(st.meshA, (c) => c.meshA, 0);
-    combine(st.meshB, (c) => c.meshB, 0);
+    // For the envelope alone (`all` false), the torques on the gears and the couplings' side b are
+    // left for `connection` to sum where an extreme needs them.
+    if (all) {
+      combine(st.meshA, (c) => c.meshA, 0);
+      combine(st.meshB, (c) => c.meshB, 0);
+      combine(st.couplingB, (c) => c.couplingB, 0);
+    }
     combine(st.couplingA, (c) => c.couplingA, 0);
-    combine(st.couplingB, (c) => c.couplingB, 0);
     combine(st.residual, (c) => c.sums, 0);
     let maxResidual = 0;
     for (let s = 0; s < st.residual.length; s++) {
@@ -347,6 +421,13 @@ export class Superposition {
     if (this.skeleton === undefined && this.model.raisers.length === 0) this.skeleton = this.checks(st);
     st.raisers = this.model.raisers.length > 0 ? recoverRaisers(this.model, { ...this.layout, elemT1: st.t1, elemT2: st.t2 }, st) : undefined;
     return st;
+  }
+
+  /** One number of one connection (column `pick`, entry n) in the combination with column weights `w`. */
+  connection(w: Float64Array, pick: (c: StateColumn) => Float64Array, n: number): number {
+    let x = pick(this.columns[0])[n];
+    for (let c = 1; c < this.columns.length; c++) if (w[c] !== 0) x += w[c] * pick(this.columns[c])[n];
+    return x;
   }
 
   /** The reactions of the combination with column weights `w` alone, into `out`. */
@@ -557,7 +638,10 @@ export function emptyEnvelope(sup: Superposition): Envelope {
   const i = (n: number) => new Int32Array(n);
   const segments = sup.segments.length;
   const layers = sup.layerBase[segments];
+  const spans = sup.spans ? sup.spans.t.length : 0;
   return {
+    spanMin: f(spans, Infinity),
+    spanMax: f(spans, -Infinity),
     rotationMin: f(layout.dofCount, Infinity),
     rotationMax: f(layout.dofCount, -Infinity),
     leftMin: f(layout.dofCount, Infinity),
@@ -601,12 +685,29 @@ export function emptyEnvelope(sup: Superposition): Envelope {
   };
 }
 
-/** Takes combination `k`'s results into the envelope (the first combination wins ties). */
-export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationState, k: number): void {
+/**
+ * Takes combination `k` (column weights `w`, evaluated into `r`) into the envelope (the first
+ * combination wins ties).
+ */
+export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationState, k: number, w: Float64Array): void {
   const { shaftStart } = sup.layout;
   const { phi, TL, TR } = r;
   const { rotationMin, rotationMax, leftMin, leftMax, rightMin, rightMax } = env;
-  for (let s = 0; s + 1 < shaftStart.length; s++) {
+  const sp = sup.spans;
+  if (sp) {
+    // T is one number per span: its extremes per span, spread over the stations once all are in.
+    const { t } = sp;
+    const { spanMin, spanMax } = env;
+    for (let n = 0; n < t.length; n++) {
+      spanMin[n] = Math.min(spanMin[n], t[n]);
+      spanMax[n] = Math.max(spanMax[n], t[n]);
+    }
+    for (let d = 0; d < phi.length; d++) {
+      rotationMin[d] = Math.min(rotationMin[d], phi[d]);
+      rotationMax[d] = Math.max(rotationMax[d], phi[d]);
+    }
+  }
+  for (let s = 0; s + 1 < shaftStart.length && !sp; s++) {
     const first = shaftStart[s];
     const last = shaftStart[s + 1] - 1;
     rotationMin[first] = Math.min(rotationMin[first], phi[first]);
@@ -668,8 +769,8 @@ export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationS
       env.meshMaxAbs[n] = Math.abs(r.meshForce[n]);
       env.meshCombination[n] = k;
       env.meshForce[n] = r.meshForce[n];
-      env.meshA[n] = r.meshA[n];
-      env.meshB[n] = r.meshB[n];
+      env.meshA[n] = sup.connection(w, (c) => c.meshA, n);
+      env.meshB[n] = sup.connection(w, (c) => c.meshB, n);
     }
   }
   for (let n = 0; n < r.couplingA.length; n++) {
@@ -677,7 +778,7 @@ export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationS
       env.couplingMaxAbs[n] = Math.abs(r.couplingA[n]);
       env.couplingCombination[n] = k;
       env.couplingA[n] = r.couplingA[n];
-      env.couplingB[n] = r.couplingB[n];
+      env.couplingB[n] = sup.connection(w, (c) => c.couplingB, n);
     }
   }
   for (let n = 0; n < r.reaction.length; n++) {
@@ -693,12 +794,36 @@ export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationS
   }
 }
 
+/** After the last combination: the extremes of T kept per span, spread over the stations. */
+export function finishEnvelope(env: Envelope, sup: Superposition): void {
+  const sp = sup.spans;
+  if (!sp) return;
+  const { shaftStart } = sup.layout;
+  for (let s = 0; s + 1 < shaftStart.length; s++) {
+    const first = shaftStart[s];
+    const last = shaftStart[s + 1] - 1;
+    for (let d = first; d <= last; d++) {
+      if (d > first) {
+        const n = sp.elemOf[d - 1 - s];
+        env.leftMin[d] = env.spanMin[n];
+        env.leftMax[d] = env.spanMax[n];
+      }
+      if (d < last) {
+        const n = sp.elemOf[d - s];
+        env.rightMin[d] = env.spanMin[n];
+        env.rightMax[d] = env.spanMax[n];
+      }
+    }
+  }
+}
+
 /** True when every number a combination lists is finite (NaN·0 and ±∞·0 are NaN; finite·0 is ±0). */
 export function combinationFinite(r: CombinationState): boolean {
   // Twist rates of tapers follow from |T| and J (NaN marks a uniform segment's): not walked.
   let s = r.maxResidual * 0;
   s += timesZero(r.segMaxAbs) + timesZero(r.segTwist) + timesZero(r.layerMaxShear) + timesZero(r.totalTwist);
-  s += timesZero(r.reaction) + timesZero(r.meshForce) + timesZero(r.meshA) + timesZero(r.meshB) + timesZero(r.couplingA) + timesZero(r.couplingB);
+  // A gear's and a coupling side's torque are a mesh force times a radius, and side a's torque with the sign changed.
+  s += timesZero(r.reaction) + timesZero(r.meshForce) + timesZero(r.couplingA);
   if (r.raisers) s += timesZero(r.raisers.peak);
   return s === 0;
 }

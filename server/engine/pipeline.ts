@@ -32,6 +32,7 @@ import {
   combinedLayout,
   combinedModel,
   emptyEnvelope,
+  finishEnvelope,
   hasAssembledState,
   listsAbridged,
   shownCombination,
@@ -161,6 +162,7 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
 
   // Every column recovered once: rotations, element end torques, what supports and connections carry, shaft sums.
   let next = 1;
+  let jumps: Uint8Array | undefined;
   const columns: StateColumn[] = states.map((st, c) => {
     if (c === 0 && !withAssembled) return zeroColumn(model, layout, ws);
     const x = xs[next++];
@@ -168,7 +170,10 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
     ws.release(x);
     const ends = ws.stage(() => elementTorques(st.model, st.layout, st.springs, phi, ws));
     const joints = ws.stage(() => jointTorques(st.model, st.layout, { ...parts, springs: st.springs, load: st.load }, phi, ws));
-    ws.release(joints.jumps, joints.residual, st.load);
+    // Where T may jump is the same in every column (every load's station counts, whatever its value).
+    if (jumps === undefined) jumps = joints.jumps;
+    else ws.release(joints.jumps);
+    ws.release(joints.residual, st.load);
     return {
       phi,
       TL: ends.TL,
@@ -200,18 +205,19 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
   for (let n = 0; n < rec.residual.length; n++) maxResidual = Math.max(maxResidual, rec.residual[n]);
 
   // Every combination from the columns, into the envelope.
-  const superposition = new Superposition(model, layout, columns);
+  const superposition = new Superposition(model, layout, columns, jumps);
   const envelope = emptyEnvelope(superposition);
   const lost: string[] = [];
   const combinations: CombinationSolved[] = model.combinations.map((c, k) => {
     const weights = columnWeights(c);
-    const r = superposition.evaluate(weights);
-    addToEnvelope(envelope, superposition, r, k);
+    const r = superposition.evaluate(weights, false);
+    addToEnvelope(envelope, superposition, r, k, weights);
     let torqueScale = 0;
     for (let g = 0; g < r.segMaxAbs.length; g++) torqueScale = Math.max(torqueScale, r.segMaxAbs[g]);
     if (r.maxResidual > 1e-8 * torqueScale) lost.push(c.id);
     return { id: c.id, ...(c.name === undefined ? {} : { name: c.name }), weights, maxResidual: r.maxResidual, finite: combinationFinite(r) };
   });
+  finishEnvelope(envelope, superposition);
   const { springs, load } = parts;
   ws.release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load, reduction.varOf, reduction.alpha, reduction.beta);
   lap('recover');
