@@ -251,6 +251,13 @@ export class Superposition {
     readonly elemOf: Int32Array;
     readonly t: Float64Array;
     readonly p: Float64Array;
+    /** Runs of elements of one segment in one span, in order: their segment, span and the z where they start. */
+    readonly pairSeg: Int32Array;
+    readonly pairSpan: Int32Array;
+    readonly pairZ: Float64Array;
+    /** Per segment: its first and last station. */
+    readonly segFrom: Int32Array;
+    readonly segTo: Int32Array;
   } | null = null;
 
   constructor(
@@ -357,7 +364,39 @@ export class Superposition {
         P[span * C + c] = col.phi[d];
       }
     });
-    return { T, P, of, flex, elemOf, t: new Float64Array(n), p: new Float64Array(n) };
+    const pairSeg: number[] = [];
+    const pairSpan: number[] = [];
+    const pairZ: number[] = [];
+    const segFrom = new Int32Array(this.segments.length);
+    const segTo = new Int32Array(this.segments.length);
+    for (let s = 0; s + 1 < shaftStart.length; s++) {
+      for (let d = shaftStart[s]; d < shaftStart[s + 1] - 1; d++) {
+        const e = d - s;
+        const g = this.segBase[s] + elemSegment[e];
+        const q = pairSeg.length - 1;
+        if (q < 0 || pairSeg[q] !== g || pairSpan[q] !== elemOf[e]) {
+          pairSeg.push(g);
+          pairSpan.push(elemOf[e]);
+          pairZ.push(z[d]);
+        }
+        if (q < 0 || pairSeg[q] !== g) segFrom[g] = d;
+        segTo[g] = d + 1;
+      }
+    }
+    return {
+      T,
+      P,
+      of,
+      flex,
+      elemOf,
+      t: new Float64Array(n),
+      p: new Float64Array(n),
+      pairSeg: Int32Array.from(pairSeg),
+      pairSpan: Int32Array.from(pairSpan),
+      pairZ: Float64Array.from(pairZ),
+      segFrom,
+      segTo,
+    };
   }
 
   /** Combination with column weights `w`: every result of it, into the scratch (valid until the next call). */
@@ -390,7 +429,8 @@ export class Superposition {
       const { phi, TL } = st;
       const { of, flex, elemOf, t, p } = sp;
       for (let d = 0; d < phi.length; d++) phi[d] = p[of[d]] + t[of[d]] * flex[d];
-      for (let e = 0; e < TL.length; e++) TL[e] = t[elemOf[e]];
+      // The element end torques are read only by the stress raisers here (peaks and the envelope go by span).
+      if (this.model.raisers.length > 0) for (let e = 0; e < TL.length; e++) TL[e] = t[elemOf[e]];
     } else {
       spread(st.phi, this.P);
       spread(st.TL, this.L);
@@ -499,7 +539,35 @@ export class Superposition {
       segPeak.fill(0);
     }
     const plain = !this.hasTaper && !this.distributed;
-    for (let s = 0; s < model.shafts.length; s++) {
+    const sp = this.spans;
+    if (sp) {
+      // By span: each run of a segment in a span has one |T| (the first run of the largest wins, at its start).
+      const { pairSeg, pairSpan, pairZ, t, segFrom, segTo } = sp;
+      for (let g = 0; g < this.segments.length; g++) segAt[g] = this.segments[g].z0;
+      for (let q = 0; q < pairSeg.length; q++) {
+        const g = pairSeg[q];
+        const a = Math.abs(t[pairSpan[q]]);
+        if (a > segMax[g]) {
+          segMax[g] = a;
+          segAt[g] = pairZ[q];
+        }
+      }
+      for (let g = 0; g < this.segments.length; g++) {
+        segPhiFrom[g] = phi[segFrom[g]];
+        segPhiTo[g] = phi[segTo[g]];
+      }
+      for (let s = 0; s < model.shafts.length; s++) {
+        let phiMin = phi[shaftStart[s]];
+        let phiMax = phiMin;
+        for (let d = shaftStart[s] + 1; d < shaftStart[s + 1]; d++) {
+          const x = phi[d];
+          if (x < phiMin) phiMin = x;
+          if (x > phiMax) phiMax = x;
+        }
+        totalTwist[s] = phiMax - phiMin;
+      }
+    }
+    for (let s = 0; s < model.shafts.length && !sp; s++) {
       const shaft = model.shafts[s];
       const first = shaftStart[s];
       const last = shaftStart[s + 1] - 1;
