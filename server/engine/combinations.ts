@@ -219,6 +219,10 @@ export class Superposition {
   readonly segShaft: Int32Array;
   /** G·J of each global segment; NaN for a tapered one. */
   readonly rigidity: Float64Array;
+  /** G·r (outer radius) of each global layer. */
+  private readonly layerGr: Float64Array;
+  /** Where each global segment starts, m. */
+  private readonly segZ0: Float64Array;
   readonly hasTaper: boolean;
   /** True when some case has a distributed torque (then T is curved inside elements). */
   readonly distributed: boolean;
@@ -279,6 +283,8 @@ export class Superposition {
     for (let sh = 0; sh < nShafts; sh++) this.segShaft.fill(sh, this.segBase[sh], this.segBase[sh + 1]);
     this.layerBase = new Int32Array(segments.length + 1);
     segments.forEach((sg, g) => (this.layerBase[g + 1] = this.layerBase[g] + sg.layers.length));
+    this.segZ0 = Float64Array.from(segments, (sg) => sg.z0);
+    this.layerGr = Float64Array.from(segments.flatMap((sg) => sg.layers.map((l) => l.G * l.rOuter)));
     this.hasTaper = segments.some((sg) => sg.taper !== undefined);
     this.distributed = model.distributed.length > 0;
     const nSeg = segments.length;
@@ -543,7 +549,7 @@ export class Superposition {
     if (sp) {
       // By span: each run of a segment in a span has one |T| (the first run of the largest wins, at its start).
       const { pairSeg, pairSpan, pairZ, t, segFrom, segTo } = sp;
-      for (let g = 0; g < this.segments.length; g++) segAt[g] = this.segments[g].z0;
+      segAt.set(this.segZ0);
       for (let q = 0; q < pairSeg.length; q++) {
         const g = pairSeg[q];
         const a = Math.abs(t[pairSpan[q]]);
@@ -682,19 +688,17 @@ export class Superposition {
       totalTwist[s] = phiMax - phiMin;
     }
     const { segTwist, layerMaxShear } = st;
-    const { layerBase } = this;
-    for (let g = 0; g < this.segments.length; g++) {
-      const sg = this.segments[g];
+    const { layerBase, layerGr, rigidity } = this;
+    for (let g = 0; g < segTwist.length; g++) {
       segTwist[g] = segPhiTo[g] - segPhiFrom[g];
-      if (sg.taper) {
+      // τ = G·r·|T| / ΣGJ per layer (the arithmetic of recoverShafts); a taper's peak is its own.
+      const gj = rigidity[g];
+      if (Number.isNaN(gj)) {
         layerMaxShear[layerBase[g]] = segPeak[g];
         continue;
       }
       const maxAbs = segMax[g];
-      for (let j = 0; j < sg.layers.length; j++) {
-        const l = sg.layers[j];
-        layerMaxShear[layerBase[g] + j] = (l.G * l.rOuter * maxAbs) / sg.rigidity;
-      }
+      for (let l = layerBase[g]; l < layerBase[g + 1]; l++) layerMaxShear[l] = (layerGr[l] * maxAbs) / gj;
     }
   }
 }
