@@ -79,7 +79,7 @@ export function hasShearYield(model: ResolvedModel): boolean {
  * beyond it, the combination shown and the COLLAPSE_FEWEST with the lowest first-yield factors
  * (the loads nearest to yield; common practice, no source), each an LP over the whole model.
  */
-export const COLLAPSE_ALL_UP_TO = 200_000;
+export const COLLAPSE_ALL_UP_TO = 20_000;
 export const COLLAPSE_FEWEST = 5;
 
 /** Cautions written beside every reported overload. */

@@ -11,6 +11,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { Model } from '../../shared-types/model.js';
 import type { Solution } from '../../shared-types/solution.js';
 import { loadLpSolver, solveModel, type LpSolver } from '../../server/engine/index.js';
+import { COLLAPSE_ALL_UP_TO, COLLAPSE_FEWEST } from '../../server/engine/overload.js';
 import { randomModel } from './random-models.js';
 
 let lp: LpSolver;
@@ -145,10 +146,10 @@ describe('overload of many combinations (random systems with load cases)', () =>
     }
   });
 
-  it('over 200,000 combinations × elements: collapse for the one shown and the five nearest to yield, "omitted" for the rest', () => {
+  it('over COLLAPSE_ALL_UP_TO combinations × elements: collapse for the one shown and the COLLAPSE_FEWEST nearest to yield, "omitted" for the rest', () => {
     const m = cased(7101, 1);
     const elements = solveModel(m).shafts.reduce((n, s) => n + s.stations.length - 1, 0);
-    const n = Math.ceil(200_001 / elements);
+    const n = Math.floor(COLLAPSE_ALL_UP_TO / elements) + 1;
     const many = cased(7101, n);
     const sol = solveModel(many, { lp, combination: 'c3' });
     const combos = sol.combinations ?? [];
@@ -158,7 +159,7 @@ describe('overload of many combinations (random systems with load cases)', () =>
     const nearest = combos
       .filter((c) => c.id !== 'c3' && c.overload?.firstYieldFactor != null)
       .sort((a, b) => (a.overload?.firstYieldFactor as number) - (b.overload?.firstYieldFactor as number))
-      .slice(0, 5)
+      .slice(0, COLLAPSE_FEWEST)
       .map((c) => c.id);
     expect(new Set(sought)).toEqual(new Set(['c3', ...nearest]));
     for (const c of combos) if (c.overload?.collapse === 'omitted') expect(c.overload.collapseFactor).toBeNull();
