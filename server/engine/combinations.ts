@@ -821,7 +821,14 @@ export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationS
       for (let l = l0; l < l1; l++) env.segLayers[l] = r.layerMaxShear[l];
     }
     let stress = -Infinity;
-    for (let l = l0; l < l1; l++) stress = Math.max(stress, r.layerMaxShear[l]);
+    for (let l = l0; l < l1; l++) {
+      const tau = r.layerMaxShear[l];
+      stress = Math.max(stress, tau);
+      if (tau > env.layerMaxShear[l]) {
+        env.layerMaxShear[l] = tau;
+        env.layerCombination[l] = k;
+      }
+    }
     if (stress > env.stressMax[g]) {
       env.stressMax[g] = stress;
       env.stressCombination[g] = k;
@@ -833,7 +840,6 @@ export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationS
     }
   }
   most(r.segRate, env.segRateMax, env.segRateCombination);
-  most(r.layerMaxShear, env.layerMaxShear, env.layerCombination);
   most(r.totalTwist, env.twistMax, env.twistCombination);
   if (r.raisers) most(r.raisers.peak, env.raiserMax, env.raiserCombination);
   for (let n = 0; n < r.meshForce.length; n++) {
