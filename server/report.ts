@@ -133,9 +133,32 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
     );
   }
   out.push(`Equilibrium: largest |sum of torques| on a shaft = ${formatNumber(s.equilibrium.maxResidual, 2)} N*m`);
+  if (s.overload) out.push(overloadLine(s.overload, units));
   for (const w of s.warnings) out.push(`warning ${w.code}: ${w.message}`);
   out.push('', ...CAUTIONS.map((c) => `Caution: ${c}`));
   return out.join('\n');
+}
+
+/**
+ * The overload factors in one line: "Overload: the loads can grow 1.84x to first yield (input at
+ * z = 250 mm, layer steel), 2.61x to collapse (fully plastic: input at z = 250 mm)".
+ */
+export function overloadLine(o: NonNullable<Solution['overload']>, units: UnitSystem): string {
+  const u = DISPLAY_UNITS[units];
+  const at = (p: { shaft: string; z: number | null }) => (p.z === null ? `${p.shaft}, the whole segment` : `${p.shaft} at z = ${formatNumber(toDisplay(p.z, 'length', units), 4)} ${u.length}`);
+  const first =
+    o.firstYieldFactor === null || o.firstYield === null
+      ? 'no factor to first yield'
+      : `${formatNumber(o.firstYieldFactor, 4)}x to first yield (${at(o.firstYield)}, layer ${o.firstYield.layer})`;
+  const last =
+    o.collapseFactor !== null
+      ? `${formatNumber(o.collapseFactor, 4)}x to collapse${o.plasticAt.length ? ` (fully plastic: ${o.plasticAt.map(at).join('; ')})` : ''}`
+      : o.collapse === 'omitted'
+        ? 'collapse not sought for this combination (see SN_OVERLOAD_OMITTED)'
+        : o.firstYieldFactor === null
+          ? 'no collapse factor (see the warnings)'
+          : 'no collapse mechanism';
+  return `Overload: the loads can grow ${first}, ${last}`.replace('can grow no factor', 'have no factor');
 }
 
 /**
@@ -157,6 +180,7 @@ export function formatCombinationsReport(model: { name?: string }, s: Solution, 
   );
   for (const c of combos) {
     out.push(`Combination ${c.id}${c.name ? ` (${c.name})` : ''}  (equilibrium: largest |sum of torques| on a shaft = ${formatNumber(c.equilibrium.maxResidual, 2)} N*m)`);
+    if (c.overload) out.push(overloadLine(c.overload, units));
     out.push(table(['support', `torque [${u.torque}]`], c.reactions.map((r) => [r.support, T(r.torque)])));
     const rows: string[][] = [];
     for (const g of c.segments) {
@@ -164,7 +188,7 @@ export function formatCombinationsReport(model: { name?: string }, s: Solution, 
         rows.push([k === 0 ? `${g.shaft}[${g.index}]` : '', k === 0 ? T(g.maxAbsTorque) : '', l.material, S(l.maxShear), util(l.utilisation), k === 0 ? show(g.twist, 'angle') : '']);
       });
     }
-    out.push(table(['segment', `max |T| [${u.torque}]`, 'layer', `max tau [${u.stress}]`, 'util.', `twist [${u.angle}]`], rows));
+    if (rows.length > 0) out.push(table(['segment', `max |T| [${u.torque}]`, 'layer', `max tau [${u.stress}]`, 'util.', `twist [${u.angle}]`], rows));
     if (c.checks.length > 0) {
       out.push(
         table(

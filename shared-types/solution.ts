@@ -181,8 +181,11 @@ export const Overload = Type.Object({
   collapseFactor: Type.Union([Num, Type.Null()]),
   /** Places at full plastic torque in every collapse distribution. */
   plasticAt: Type.Array(Type.Object({ shaft: Type.String(), z: Num })),
-  /** 'none' (collapseFactor null) when no collapse mechanism exists, or the factors are omitted (a warning says why). */
-  collapse: Type.Union([Type.Literal('mechanism'), Type.Literal('none')]),
+  /**
+   * 'none' (collapseFactor null) when no collapse mechanism exists, or the factors are omitted (a warning says why);
+   * 'omitted' (collapseFactor null): a combination whose collapse factor was not sought (SN_OVERLOAD_OMITTED).
+   */
+  collapse: Type.Union([Type.Literal('mechanism'), Type.Literal('none'), Type.Literal('omitted')]),
 });
 export type Overload = Static<typeof Overload>;
 
@@ -206,6 +209,8 @@ export const CombinationResult = Type.Object({
   ),
   checks: Type.Array(CheckResult),
   equilibrium: Type.Object({ maxResidual: Num }),
+  /** Only when some material has shearYield (collapse: see API.md for which combinations get it). */
+  overload: Type.Optional(Overload),
 });
 export type CombinationResult = Static<typeof CombinationResult>;
 

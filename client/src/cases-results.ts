@@ -16,7 +16,7 @@ export interface OverloadResult {
   firstYield: { shaft: string; z: number | null; layer: string } | null;
   collapseFactor: number | null;
   plasticAt: Array<{ shaft: string; z: number }>;
-  collapse?: 'mechanism' | 'none';
+  collapse?: 'mechanism' | 'none' | 'omitted';
 }
 
 export interface EnvelopeLayer { material: string; maxShear: number; utilisation: number | null; combination: string }

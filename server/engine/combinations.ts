@@ -1,42 +1,127 @@
 /**
- * Load cases and combinations: the loads of one combination (each case's
- * loads times its factor), and the envelope over the combinations solved.
+ * Load cases and combinations by superposition.
  *
- * A combination is solved with the one factorisation of the model (the
- * pipeline's): its own load vector and right-hand side, the assembled state
- * (prescribed rotations, misfits, offsets) held unfactored. Every result is
- * then recovered from that combination's rotations, so peaks and utilisations,
- * which are not linear in the loads, are exact for it.
+ * The system is linear, so every result that is linear in the loads is a
+ * column per load state: the assembled state alone (prescribed rotations,
+ * misfits, offsets; no loads) and each load case alone (factor 1, no
+ * assembled state). The pipeline solves one right-hand side per column with
+ * its one factorisation and recovers each column once (rotations, element end
+ * torques, reactions, mesh and coupling torques, shaft sums). A combination's
+ * linear results are then the assembled column plus its factors times the
+ * case columns — a few multiply-adds per station — and what is not linear
+ * (peaks of |T|, stresses, the peak of a taper's τ, totals of twist, checks)
+ * is found from those combined numbers by the same rules as for one load
+ * state (`segmentPeaks`, the taper's own peak rule where a taper exists).
+ *
+ * The envelope is one pass over the combinations. What each combination
+ * lists is evaluated again when it is written (`Superposition.evaluate`), so
+ * memory stays that of one combination whatever their number.
  */
 import { ModelError } from '../../shared-types/errors.js';
-import type { ResolvedCombination, ResolvedModel } from './normalise.js';
-import type { Recovered } from './recover.js';
+import type { Warning } from '../../shared-types/solution.js';
+import type { ResolvedCombination, ResolvedModel, ResolvedSegment } from './normalise.js';
+import { buildChecks, MAX_LISTED_CHECKS, elementRotation, elementTorque, quadraticRoots, type CheckColumns, type ShaftColumns } from './recover.js';
+import { recoverRaisers, type RaiserColumns } from './raisers.js';
 import { distributedIntensities, type StationLayout } from './stations.js';
-import type { Workspace } from './workspace.js';
+import { taperElementState, taperTwistRatePeak } from './taper-element.js';
+import { Workspace } from './workspace.js';
+import type { Overload } from './overload.js';
 
-/** One combination solved: its results in columns (station columns of all but the shown one given back). */
+/**
+ * Items (segments, gear meshes and couplings) times combinations up to which every combination
+ * lists every item: about 10 MB of JSON. Beyond it each item is listed under the combination
+ * that governs it (its envelope extreme), so the answer grows with the model, not with
+ * model × combinations; one combination's full tables are those of the solve option `combination`.
+ */
+export const ALL_ITEMS_UP_TO = 100_000;
+
+/** The results of one load state that are linear in its loads (a column of the superposition). */
+export interface StateColumn {
+  /** Rotation of every dof, rad. */
+  readonly phi: Float64Array;
+  /** Element end torques T(z+) at the left, T(z−) at the right end, N·m. */
+  readonly TL: Float64Array;
+  readonly TR: Float64Array;
+  /** Distributed torque at the element ends, N·m/m (zero for the assembled state). */
+  readonly t1: Float64Array;
+  readonly t2: Float64Array;
+  /** Per support, gear mesh and coupling, N·m and N. */
+  readonly reaction: Float64Array;
+  readonly meshForce: Float64Array;
+  readonly meshA: Float64Array;
+  readonly meshB: Float64Array;
+  readonly couplingA: Float64Array;
+  readonly couplingB: Float64Array;
+  /** Per shaft: Σ torques with its sign (the equilibrium residual before its absolute value). */
+  readonly sums: Float64Array;
+}
+
+/** One combination: its weights on the columns (1 on the assembled state, then the case factors). */
 export interface CombinationSolved {
   readonly id: string;
   readonly name?: string;
-  readonly rec: Recovered;
+  readonly weights: Float64Array;
   readonly maxResidual: number;
+  /** False when some number of its results is not finite (the finite guard refuses the answer). */
+  readonly finite: boolean;
+  /** Its overload factors (with shearYield and an LP solver); set after the solve. */
+  overload?: Overload;
 }
 
 /** Extremes over the combinations, with the index of the combination that governs each. */
 export interface Envelope {
-  /** Per dof: rotation, T(z−) (of the element to the left) and T(z+) (to the right); NaN where a side does not exist. */
+  /** Per span (Superposition.spans; else empty): the extreme T, spread over the stations by `finishEnvelope`. */
+  readonly spanMin: Float64Array;
+  readonly spanMax: Float64Array;
+  /** Per dof: rotation, T(z−) (of the element to the left) and T(z+) (to the right); ±Infinity where a side does not exist. */
   readonly rotationMin: Float64Array;
   readonly rotationMax: Float64Array;
   readonly leftMin: Float64Array;
   readonly leftMax: Float64Array;
   readonly rightMin: Float64Array;
   readonly rightMax: Float64Array;
-  /** Per global segment: the largest |T| and its combination. */
+  /** Per global segment: the largest |T| and its combination, with that combination's place, twist and twist rate. */
   readonly segMaxAbs: Float64Array;
   readonly segCombination: Int32Array;
+  readonly segAt: Float64Array;
+  readonly segTwist: Float64Array;
+  readonly segRate: Float64Array;
+  /** Per global layer: its stress in the combination of segCombination. */
+  readonly segLayers: Float64Array;
+  /**
+   * Per global segment: the largest stress of any of its layers and its combination (the same as
+   * segCombination unless the segment is tapered), with that combination's |T|, place, twist,
+   * twist rate and layer stresses.
+   */
+  readonly stressMax: Float64Array;
+  readonly stressCombination: Int32Array;
+  readonly stressAbs: Float64Array;
+  readonly stressAt: Float64Array;
+  readonly stressTwist: Float64Array;
+  readonly stressRate: Float64Array;
+  readonly stressLayers: Float64Array;
+  /** Per global segment of a taper: the largest twist rate and its combination (a uniform one's follows |T|). */
+  readonly segRateMax: Float64Array;
+  readonly segRateCombination: Int32Array;
   /** Per global layer: the largest |τ| and its combination. */
   readonly layerMaxShear: Float64Array;
   readonly layerCombination: Int32Array;
+  /** Per shaft: the largest total twist and its combination. */
+  readonly twistMax: Float64Array;
+  readonly twistCombination: Int32Array;
+  /** Per stress raiser: the largest local peak and its combination. */
+  readonly raiserMax: Float64Array;
+  readonly raiserCombination: Int32Array;
+  /** Per gear mesh and coupling: the largest |force| and |torque on side A|, their combinations and those combinations' numbers. */
+  readonly meshMaxAbs: Float64Array;
+  readonly meshCombination: Int32Array;
+  readonly meshForce: Float64Array;
+  readonly meshA: Float64Array;
+  readonly meshB: Float64Array;
+  readonly couplingMaxAbs: Float64Array;
+  readonly couplingCombination: Int32Array;
+  readonly couplingA: Float64Array;
+  readonly couplingB: Float64Array;
   /** Per support: the extreme reactions and their combinations. */
   readonly reactionMin: Float64Array;
   readonly reactionMax: Float64Array;
@@ -56,7 +141,7 @@ export function shownCombination(model: ResolvedModel, id: string | undefined): 
 }
 
 /** The model with one combination's loads: each load times its case's factor (the list and order kept, so stations agree). */
-export function combinedModel(model: ResolvedModel, c: ResolvedCombination): ResolvedModel {
+export function combinedModel(model: ResolvedModel, c: Pick<ResolvedCombination, 'factors'>): ResolvedModel {
   const f = c.factors;
   return {
     ...model,
@@ -71,69 +156,816 @@ export function combinedLayout(combined: ResolvedModel, layout: StationLayout, w
   return { ...layout, elemT1: t.elemT1, elemT2: t.elemT2 };
 }
 
-/** An empty envelope for a model of `dofs` stations, `segments` segments, `layers` layers and `supports` supports. */
-export function emptyEnvelope(dofs: number, segments: number, layers: number, supports: number): Envelope {
-  const f = (n: number, v: number) => new Float64Array(n).fill(v);
+/** True when the model has an assembled state: a prescribed rotation, a misfit or a mesh offset. */
+export function hasAssembledState(model: ResolvedModel): boolean {
+  return (
+    model.supports.some((s) => s.rotation !== 0) ||
+    model.meshes.some((g) => g.offset !== 0) ||
+    model.couplings.some((c) => c.misfit !== 0)
+  );
+}
+
+/**
+ * The model with its loads set to zero, the assembled state kept. Point and distributed torques stay
+ * (with zero value) so that the stations, and so the elements, are those of the model.
+ */
+export function assembledStateModel(model: ResolvedModel): ResolvedModel {
   return {
-    rotationMin: f(dofs, Infinity),
-    rotationMax: f(dofs, -Infinity),
-    leftMin: f(dofs, Infinity),
-    leftMax: f(dofs, -Infinity),
-    rightMin: f(dofs, Infinity),
-    rightMax: f(dofs, -Infinity),
-    segMaxAbs: f(segments, -Infinity),
-    segCombination: new Int32Array(segments),
-    layerMaxShear: f(layers, -Infinity),
-    layerCombination: new Int32Array(layers),
-    reactionMin: f(supports, Infinity),
-    reactionMax: f(supports, -Infinity),
-    reactionMinAt: new Int32Array(supports),
-    reactionMaxAt: new Int32Array(supports),
+    ...model,
+    torques: model.torques.map((t) => ({ ...t, torque: 0 })),
+    distributed: model.distributed.map((d) => ({ ...d, start: 0, end: 0 })),
   };
 }
 
-/** Takes combination `k`'s results into the envelope (the first combination wins ties). */
-export function addToEnvelope(env: Envelope, layout: StationLayout, r: Recovered, k: number): void {
-  const { shaftStart } = layout;
+/** The factors of load case j alone (1 on it, 0 on the others). */
+export function caseFactors(model: ResolvedModel, j: number): { factors: number[] } {
+  return { factors: model.loadCases.map((_, i) => (i === j ? 1 : 0)) };
+}
+
+/** The weights of a combination on the columns: 1 on the assembled state, then its case factors. */
+export function columnWeights(c: ResolvedCombination): Float64Array {
+  return Float64Array.from([1, ...c.factors]);
+}
+
+/** One combination's results, evaluated from the columns: scratch arrays overwritten by the next evaluation. */
+export interface CombinationState extends Pick<ShaftColumns, 'segMaxAbs' | 'segAt' | 'segTwist' | 'segRate' | 'layerMaxShear' | 'totalTwist'> {
+  readonly phi: Float64Array;
+  readonly TL: Float64Array;
+  readonly TR: Float64Array;
+  readonly t1: Float64Array;
+  readonly t2: Float64Array;
+  readonly reaction: Float64Array;
+  readonly meshForce: Float64Array;
+  readonly meshA: Float64Array;
+  readonly meshB: Float64Array;
+  readonly couplingA: Float64Array;
+  readonly couplingB: Float64Array;
+  /** Per shaft: |Σ torques|, N·m. */
+  readonly residual: Float64Array;
+  maxResidual: number;
+  raisers?: RaiserColumns;
+}
+
+/**
+ * The columns of a solve with load cases and what evaluates a combination from them. Holds one
+ * combination's scratch; nothing else is kept between evaluations.
+ */
+export class Superposition {
+  readonly segBase: Int32Array;
+  readonly layerBase: Int32Array;
+  /** Every segment, numbered across shafts (global index g). */
+  readonly segments: readonly ResolvedSegment[];
+  /** Shaft of each global segment. */
+  readonly segShaft: Int32Array;
+  /** G·J of each global segment; NaN for a tapered one. */
+  readonly rigidity: Float64Array;
+  /** G·r (outer radius) of each global layer. */
+  private readonly layerGr: Float64Array;
+  /** Where each global segment starts, m. */
+  private readonly segZ0: Float64Array;
+  readonly hasTaper: boolean;
+  /** True when some case has a distributed torque (then T is curved inside elements). */
+  readonly distributed: boolean;
+  /** Rotations and element end torques of the columns that can be nonzero, interleaved: entry i of column c at i·C + c. */
+  private readonly C: number;
+  private readonly first: number;
+  private readonly P: Float64Array;
+  private readonly L: Float64Array;
+  /** Null when no case has a distributed torque: then T(z−) at an element's right end is its T(z+) (bit for bit). */
+  private readonly R: Float64Array | null;
+  /** Per element: 1 when its segment is tapered. */
+  private readonly elemTaper: Uint8Array;
+  private st: CombinationState;
+  private readonly segPhiFrom: Float64Array;
+  private readonly segPhiTo: Float64Array;
+  private readonly segPeak: Float64Array;
+  private readonly roots = new Float64Array(2);
+
+  /**
+   * Spans (a model without tapers and distributed torques): runs of elements between stations where
+   * T may jump (a point torque, a support, a connection). T is one number along a span in every
+   * column, and φ grows by T·h/GJ element by element, so a combination needs its T and its φ at the
+   * start of each span (a sum over the columns) and one multiply-add per station. Null otherwise.
+   */
+  readonly spans: {
+    readonly T: Float64Array;
+    readonly P: Float64Array;
+    readonly of: Int32Array;
+    readonly flex: Float64Array;
+    readonly elemOf: Int32Array;
+    readonly t: Float64Array;
+    readonly p: Float64Array;
+    /** Runs of elements of one segment in one span, in order: their segment, span and the z where they start. */
+    readonly pairSeg: Int32Array;
+    readonly pairSpan: Int32Array;
+    readonly pairZ: Float64Array;
+    /** Per segment: its first and last station. */
+    readonly segFrom: Int32Array;
+    readonly segTo: Int32Array;
+  } | null = null;
+
+  constructor(
+    readonly model: ResolvedModel,
+    readonly layout: StationLayout,
+    readonly columns: readonly StateColumn[],
+    jumps?: Uint8Array,
+  ) {
+    const nShafts = model.shafts.length;
+    this.segBase = new Int32Array(nShafts + 1);
+    const segments: ResolvedSegment[] = [];
+    model.shafts.forEach((sh, s) => {
+      this.segBase[s + 1] = this.segBase[s] + sh.segments.length;
+      segments.push(...sh.segments);
+    });
+    this.segments = segments;
+    this.rigidity = Float64Array.from(segments, (sg) => (sg.taper ? Number.NaN : sg.rigidity));
+    this.segShaft = new Int32Array(segments.length);
+    for (let sh = 0; sh < nShafts; sh++) this.segShaft.fill(sh, this.segBase[sh], this.segBase[sh + 1]);
+    this.layerBase = new Int32Array(segments.length + 1);
+    segments.forEach((sg, g) => (this.layerBase[g + 1] = this.layerBase[g] + sg.layers.length));
+    this.segZ0 = Float64Array.from(segments, (sg) => sg.z0);
+    this.layerGr = Float64Array.from(segments.flatMap((sg) => sg.layers.map((l) => l.G * l.rOuter)));
+    this.hasTaper = segments.some((sg) => sg.taper !== undefined);
+    this.distributed = model.distributed.length > 0;
+    const nSeg = segments.length;
+    const f = (n: number) => new Float64Array(n);
+    const elems = layout.elemLeft.length;
+    this.st = {
+      phi: f(layout.dofCount),
+      TL: f(elems),
+      TR: f(elems),
+      t1: this.distributed ? f(elems) : layout.elemT1,
+      t2: this.distributed ? f(elems) : layout.elemT2,
+      reaction: f(model.supports.length),
+      meshForce: f(model.meshes.length),
+      meshA: f(model.meshes.length),
+      meshB: f(model.meshes.length),
+      couplingA: f(model.couplings.length),
+      couplingB: f(model.couplings.length),
+      residual: f(nShafts),
+      maxResidual: 0,
+      segMaxAbs: f(nSeg),
+      segAt: f(nSeg),
+      segTwist: f(nSeg),
+      segRate: f(this.hasTaper ? nSeg : 0),
+      layerMaxShear: f(this.layerBase[nSeg]),
+      totalTwist: f(nShafts),
+    };
+    // The assembled state's column is left out when it is zero (a model without one).
+    this.first = columns[0].phi.every((x) => x === 0) && columns[0].TL.every((x) => x === 0) ? 1 : 0;
+    const C = (this.C = columns.length - this.first);
+    const pack = (n: number, pick: (c: StateColumn) => Float64Array) => {
+      const out = new Float64Array(n * C);
+      for (let c = 0; c < C; c++) {
+        const a = pick(columns[c + this.first]);
+        for (let i = 0; i < n; i++) out[i * C + c] = a[i];
+      }
+      return out;
+    };
+    this.P = pack(layout.dofCount, (c) => c.phi);
+    this.L = pack(elems, (c) => c.TL);
+    this.R = this.distributed ? pack(elems, (c) => c.TR) : null;
+    if (!this.distributed) this.st = { ...this.st, TR: this.st.TL };
+    if (!this.hasTaper && !this.distributed && jumps) this.spans = this.makeSpans(jumps);
+    this.elemTaper = new Uint8Array(elems);
+    for (let e = 0; e < elems; e++) this.elemTaper[e] = this.segments[this.segBase[layout.shaftOf[layout.elemLeft[e]]] + layout.elemSegment[e]].taper ? 1 : 0;
+    this.segPhiFrom = f(nSeg);
+    this.segPhiTo = f(nSeg);
+    this.segPeak = f(this.hasTaper ? nSeg : 0);
+  }
+
+  /** The spans of a model without tapers and distributed torques (see `spans`). */
+  private makeSpans(jumps: Uint8Array): NonNullable<Superposition['spans']> {
+    const { layout, columns, first: c0, C } = this;
+    const { shaftStart, z, elemSegment } = layout;
+    const of = new Int32Array(layout.dofCount);
+    const elemOf = new Int32Array(layout.elemLeft.length);
+    const flex = new Float64Array(layout.dofCount);
+    const starts: number[] = [];
+    for (let s = 0; s + 1 < shaftStart.length; s++) {
+      const first = shaftStart[s];
+      const last = shaftStart[s + 1] - 1;
+      const g0 = this.segBase[s];
+      for (let d = first; d <= last; d++) {
+        // A span starts at the shaft's first station and at every station inside where T may jump.
+        if (d === first || (jumps[d] && d < last)) starts.push(d);
+        const span = starts.length - 1;
+        of[d] = span;
+        if (d > first && of[d - 1] === span) {
+          const e = d - 1 - s;
+          flex[d] = flex[d - 1] + (z[d] - z[d - 1]) / this.segments[g0 + elemSegment[e]].rigidity;
+        }
+        if (d < last) elemOf[d - s] = span;
+      }
+    }
+    // Per span and column: T of its first element and φ at its first station.
+    const n = starts.length;
+    const T = new Float64Array(n * C);
+    const P = new Float64Array(n * C);
+    starts.forEach((d, span) => {
+      const e = d - layout.shaftOf[d];
+      for (let c = 0; c < C; c++) {
+        const col = columns[c + c0];
+        T[span * C + c] = col.TL[e];
+        P[span * C + c] = col.phi[d];
+      }
+    });
+    const pairSeg: number[] = [];
+    const pairSpan: number[] = [];
+    const pairZ: number[] = [];
+    const segFrom = new Int32Array(this.segments.length);
+    const segTo = new Int32Array(this.segments.length);
+    for (let s = 0; s + 1 < shaftStart.length; s++) {
+      for (let d = shaftStart[s]; d < shaftStart[s + 1] - 1; d++) {
+        const e = d - s;
+        const g = this.segBase[s] + elemSegment[e];
+        const q = pairSeg.length - 1;
+        if (q < 0 || pairSeg[q] !== g || pairSpan[q] !== elemOf[e]) {
+          pairSeg.push(g);
+          pairSpan.push(elemOf[e]);
+          pairZ.push(z[d]);
+        }
+        if (q < 0 || pairSeg[q] !== g) segFrom[g] = d;
+        segTo[g] = d + 1;
+      }
+    }
+    return {
+      T,
+      P,
+      of,
+      flex,
+      elemOf,
+      t: new Float64Array(n),
+      p: new Float64Array(n),
+      pairSeg: Int32Array.from(pairSeg),
+      pairSpan: Int32Array.from(pairSpan),
+      pairZ: Float64Array.from(pairZ),
+      segFrom,
+      segTo,
+    };
+  }
+
+  /** Combination with column weights `w`: every result of it, into the scratch (valid until the next call). */
+  evaluate(w: Float64Array, all = true): CombinationState {
+    const st = this.st;
+    const cols = this.columns;
+    const combine = (out: Float64Array, pick: (c: StateColumn) => Float64Array, from: number) => {
+      if (from === 0) out.set(pick(cols[0]));
+      else out.fill(0);
+      for (let c = Math.max(from, 1); c < cols.length; c++) {
+        const wc = w[c];
+        if (wc === 0) continue;
+        const a = pick(cols[c]);
+        for (let i = 0; i < out.length; i++) out[i] += wc * a[i];
+      }
+    };
+    const C = this.C;
+    const wa = w.subarray(this.first);
+    const spread = (out: Float64Array, packed: Float64Array) => {
+      for (let i = 0, b = 0; i < out.length; i++, b += C) {
+        let x = 0;
+        for (let c = 0; c < C; c++) x += wa[c] * packed[b + c];
+        out[i] = x;
+      }
+    };
+    const sp = this.spans;
+    if (sp) {
+      spread(sp.t, sp.T);
+      spread(sp.p, sp.P);
+      const { phi, TL } = st;
+      const { of, flex, elemOf, t, p } = sp;
+      for (let d = 0; d < phi.length; d++) phi[d] = p[of[d]] + t[of[d]] * flex[d];
+      // The element end torques are read only by the stress raisers here (peaks and the envelope go by span).
+      if (this.model.raisers.length > 0) for (let e = 0; e < TL.length; e++) TL[e] = t[elemOf[e]];
+    } else {
+      spread(st.phi, this.P);
+      spread(st.TL, this.L);
+      if (this.R) spread(st.TR, this.R);
+    }
+    if (this.distributed) {
+      combine(st.t1, (c) => c.t1, 1);
+      combine(st.t2, (c) => c.t2, 1);
+    }
+    combine(st.reaction, (c) => c.reaction, 0);
+    combine(st.meshForce, (c) => c.meshForce, 0);
+    // For the envelope alone (`all` false), the torques on the gears and the couplings' side b are
+    // left for `connection` to sum where an extreme needs them.
+    if (all) {
+      combine(st.meshA, (c) => c.meshA, 0);
+      combine(st.meshB, (c) => c.meshB, 0);
+      combine(st.couplingB, (c) => c.couplingB, 0);
+    }
+    combine(st.couplingA, (c) => c.couplingA, 0);
+    combine(st.residual, (c) => c.sums, 0);
+    let maxResidual = 0;
+    for (let s = 0; s < st.residual.length; s++) {
+      st.residual[s] = Math.abs(st.residual[s]);
+      maxResidual = Math.max(maxResidual, st.residual[s]);
+    }
+    st.maxResidual = maxResidual;
+    this.segmentPeaks();
+    if (this.skeleton === undefined && this.model.raisers.length === 0) this.skeleton = this.checks(st);
+    st.raisers = this.model.raisers.length > 0 ? recoverRaisers(this.model, { ...this.layout, elemT1: st.t1, elemT2: st.t2 }, st) : undefined;
+    return st;
+  }
+
+  /** One number of one connection (column `pick`, entry n) in the combination with column weights `w`. */
+  connection(w: Float64Array, pick: (c: StateColumn) => Float64Array, n: number): number {
+    let x = pick(this.columns[0])[n];
+    for (let c = 1; c < this.columns.length; c++) if (w[c] !== 0) x += w[c] * pick(this.columns[c])[n];
+    return x;
+  }
+
+  /** The reactions of the combination with column weights `w` alone, into `out`. */
+  reactions(w: Float64Array, out: Float64Array): Float64Array {
+    out.fill(0);
+    this.columns.forEach((c, j) => {
+      for (let n = 0; n < out.length; n++) out[n] += w[j] * c.reaction[n];
+    });
+    return out;
+  }
+
+  /** The checks of the combination last evaluated, every one (arrays of their own). */
+  checks(st: CombinationState): CheckColumns {
+    const cols = { ...st, segBase: this.segBase, layerBase: this.layerBase } as unknown as ShaftColumns;
+    return buildChecks(this.model, cols, new Workspace(), st.raisers);
+  }
+
+  private skeleton?: CheckColumns;
+
+  /**
+   * The checks `only` (indices into the model's list of checks), each governed by one combination,
+   * worst first: the kinds, places and limits are the model's (`checkList`, built once), the values
+   * the envelope's. Null for a model with stress raisers (a raiser's check follows the side that
+   * governs, which can differ by combination): then `checks` lists them.
+   */
+  someChecks(env: Envelope, only: readonly number[]): CheckColumns | null {
+    const sk = this.skeleton;
+    if (sk === undefined) return null;
+    const { kind, shaft, segment, layer, limit, value, utilisation } = sk;
+    // Each check is listed under the combination that governs it: its value is the envelope's extreme.
+    for (const m of only) {
+      const g = this.segBase[shaft[m]] + segment[m];
+      const k = kind[m];
+      value[m] =
+        k === 0
+          ? env.layerMaxShear[this.layerBase[g] + layer[m]]
+          : k === 1
+            ? this.segments[g].taper
+              ? env.segRateMax[g]
+              : env.segMaxAbs[g] / this.segments[g].rigidity
+            : env.twistMax[shaft[m]];
+      utilisation[m] = value[m] / limit[m];
+    }
+    const listed = [...only].sort((x, y) => utilisation[y] - utilisation[x] || x - y).slice(0, MAX_LISTED_CHECKS);
+    return { ...sk, listed: Int32Array.from(listed) };
+  }
+
+  /**
+   * Every check of the model (kinds, places, limits; values of the state evaluated) for
+   * `someChecks`: made once, from the first combination evaluated. Null with stress raisers.
+   */
+  checkList(): CheckColumns | null {
+    return this.skeleton ?? null;
+  }
+
+  /**
+   * Per segment: the largest |T| and where, the twist, the largest twist rate of a taper; per
+   * layer the largest |τ|; per shaft the total twist (max φ − min φ, interior extremes
+   * included): the rules of `recoverShafts`, without its diagrams.
+   */
+  private segmentPeaks(): void {
+    const { model, layout, st, segPhiFrom, segPhiTo, segPeak, roots } = this;
+    const { z, shaftStart, elemSegment } = layout;
+    const { phi, TL, TR, t1: T1s, t2: T2s, segMaxAbs: segMax, segAt, segRate, totalTwist } = st;
+    segMax.fill(0);
+    segPhiFrom.fill(Number.NaN);
+    if (this.hasTaper) {
+      segRate.fill(Number.NaN);
+      segPeak.fill(0);
+    }
+    const plain = !this.hasTaper && !this.distributed;
+    const sp = this.spans;
+    if (sp) {
+      // By span: each run of a segment in a span has one |T| (the first run of the largest wins, at its start).
+      const { pairSeg, pairSpan, pairZ, t, segFrom, segTo } = sp;
+      segAt.set(this.segZ0);
+      for (let q = 0; q < pairSeg.length; q++) {
+        const g = pairSeg[q];
+        const a = Math.abs(t[pairSpan[q]]);
+        if (a > segMax[g]) {
+          segMax[g] = a;
+          segAt[g] = pairZ[q];
+        }
+      }
+      for (let g = 0; g < this.segments.length; g++) {
+        segPhiFrom[g] = phi[segFrom[g]];
+        segPhiTo[g] = phi[segTo[g]];
+      }
+      for (let s = 0; s < model.shafts.length; s++) {
+        let phiMin = phi[shaftStart[s]];
+        let phiMax = phiMin;
+        for (let d = shaftStart[s] + 1; d < shaftStart[s + 1]; d++) {
+          const x = phi[d];
+          if (x < phiMin) phiMin = x;
+          if (x > phiMax) phiMax = x;
+        }
+        totalTwist[s] = phiMax - phiMin;
+      }
+    }
+    for (let s = 0; s < model.shafts.length && !sp; s++) {
+      const shaft = model.shafts[s];
+      const first = shaftStart[s];
+      const last = shaftStart[s + 1] - 1;
+      const e0 = first - s;
+      const g0 = this.segBase[s];
+      for (let k = 0; k < shaft.segments.length; k++) segAt[g0 + k] = shaft.segments[k].z0;
+      let phiMin = phi[first];
+      let phiMax = phi[first];
+      if (plain) {
+        // Uniform, no distributed torque: T is constant along each element; its peaks at the stations.
+        for (let e = e0; e < e0 + (last - first); e++) {
+          const d = first + (e - e0);
+          const g = g0 + elemSegment[e];
+          if (Number.isNaN(segPhiFrom[g])) segPhiFrom[g] = phi[d];
+          const p1 = phi[d + 1];
+          segPhiTo[g] = p1;
+          const a = Math.abs(TL[e]);
+          if (a > segMax[g]) {
+            segMax[g] = a;
+            segAt[g] = z[d];
+          }
+          if (p1 < phiMin) phiMin = p1;
+          if (p1 > phiMax) phiMax = p1;
+        }
+        totalTwist[s] = phiMax - phiMin;
+        continue;
+      }
+      for (let e = e0; e < e0 + (last - first); e++) {
+        const d = first + (e - e0);
+        const g = g0 + elemSegment[e];
+        if (Number.isNaN(segPhiFrom[g])) segPhiFrom[g] = phi[d];
+        segPhiTo[g] = phi[d + 1];
+        const T1 = TL[e];
+        const T2 = TR[e];
+        const t1 = T1s[e];
+        const t2 = T2s[e];
+        const loaded = t1 !== 0 || t2 !== 0;
+        const sg = this.segments[g];
+        if (this.elemTaper[e] && sg.taper) {
+          const h = z[d + 1] - z[d];
+          const dt = t2 - t1;
+          const { state, input } = taperElementState(sg, sg.taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
+          if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
+          if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
+          if (loaded && dt !== 0) {
+            const x = (-t1 * h) / dt;
+            if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
+          }
+          if (state.peak.shear > segPeak[g]) {
+            segPeak[g] = state.peak.shear;
+            segAt[g] = z[d] + state.peak.z;
+          }
+          const rate = taperTwistRatePeak(input, sg.taper.G, state, t1, t2).rate;
+          if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
+          for (const p of [phi[d], phi[d + 1]]) {
+            if (p < phiMin) phiMin = p;
+            if (p > phiMax) phiMax = p;
+          }
+          if (loaded) {
+            const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+            for (let r = 0; r < nr; r++) {
+              const x = roots[r];
+              if (x > 0 && x < h) {
+                const p = state.rotationAt(x);
+                if (p < phiMin) phiMin = p;
+                if (p > phiMax) phiMax = p;
+              }
+            }
+          }
+          continue;
+        }
+        const a1 = Math.abs(T1);
+        if (a1 > segMax[g]) {
+          segMax[g] = a1;
+          segAt[g] = z[d];
+        }
+        const a2 = Math.abs(T2);
+        if (a2 > segMax[g]) {
+          segMax[g] = a2;
+          segAt[g] = z[d + 1];
+        }
+        const p0 = phi[d];
+        const p1 = phi[d + 1];
+        if (p0 < phiMin) phiMin = p0;
+        if (p0 > phiMax) phiMax = p0;
+        if (p1 < phiMin) phiMin = p1;
+        if (p1 > phiMax) phiMax = p1;
+        if (loaded) {
+          const h = z[d + 1] - z[d];
+          const dt = t2 - t1;
+          if (dt !== 0) {
+            const x = (-t1 * h) / dt;
+            if (x > 0 && x < h) {
+              const T = elementTorque(T1, t1, dt, h, x);
+              if (Math.abs(T) > segMax[g]) {
+                segMax[g] = Math.abs(T);
+                segAt[g] = z[d] + x;
+              }
+            }
+          }
+          const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+          for (let r = 0; r < nr; r++) {
+            const x = roots[r];
+            if (x > 0 && x < h) {
+              const p = elementRotation(p0, T1, t1, dt, h, sg.rigidity, x);
+              if (p < phiMin) phiMin = p;
+              if (p > phiMax) phiMax = p;
+            }
+          }
+        }
+      }
+      totalTwist[s] = phiMax - phiMin;
+    }
+    const { segTwist, layerMaxShear } = st;
+    const { layerBase, layerGr, rigidity } = this;
+    for (let g = 0; g < segTwist.length; g++) {
+      segTwist[g] = segPhiTo[g] - segPhiFrom[g];
+      // τ = G·r·|T| / ΣGJ per layer (the arithmetic of recoverShafts); a taper's peak is its own.
+      const gj = rigidity[g];
+      if (Number.isNaN(gj)) {
+        layerMaxShear[layerBase[g]] = segPeak[g];
+        continue;
+      }
+      const maxAbs = segMax[g];
+      for (let l = layerBase[g]; l < layerBase[g + 1]; l++) layerMaxShear[l] = (layerGr[l] * maxAbs) / gj;
+    }
+  }
+}
+
+/** An empty envelope for the model of `sup`. */
+export function emptyEnvelope(sup: Superposition): Envelope {
+  const { model, layout } = sup;
+  const f = (n: number, v: number) => new Float64Array(n).fill(v);
+  const i = (n: number) => new Int32Array(n);
+  const segments = sup.segments.length;
+  const layers = sup.layerBase[segments];
+  const spans = sup.spans ? sup.spans.t.length : 0;
+  return {
+    spanMin: f(spans, Infinity),
+    spanMax: f(spans, -Infinity),
+    rotationMin: f(layout.dofCount, Infinity),
+    rotationMax: f(layout.dofCount, -Infinity),
+    leftMin: f(layout.dofCount, Infinity),
+    leftMax: f(layout.dofCount, -Infinity),
+    rightMin: f(layout.dofCount, Infinity),
+    rightMax: f(layout.dofCount, -Infinity),
+    segMaxAbs: f(segments, -Infinity),
+    segCombination: i(segments),
+    segAt: f(segments, 0),
+    segTwist: f(segments, 0),
+    segRate: f(segments, 0),
+    segLayers: f(layers, 0),
+    stressMax: f(segments, -Infinity),
+    stressCombination: i(segments),
+    stressAbs: f(segments, 0),
+    stressAt: f(segments, 0),
+    stressTwist: f(segments, 0),
+    stressRate: f(segments, 0),
+    stressLayers: f(layers, 0),
+    segRateMax: f(segments, -Infinity),
+    segRateCombination: i(segments),
+    layerMaxShear: f(layers, -Infinity),
+    layerCombination: i(layers),
+    twistMax: f(model.shafts.length, -Infinity),
+    twistCombination: i(model.shafts.length),
+    raiserMax: f(model.raisers.length, -Infinity),
+    raiserCombination: i(model.raisers.length),
+    meshMaxAbs: f(model.meshes.length, -Infinity),
+    meshCombination: i(model.meshes.length),
+    meshForce: f(model.meshes.length, 0),
+    meshA: f(model.meshes.length, 0),
+    meshB: f(model.meshes.length, 0),
+    couplingMaxAbs: f(model.couplings.length, -Infinity),
+    couplingCombination: i(model.couplings.length),
+    couplingA: f(model.couplings.length, 0),
+    couplingB: f(model.couplings.length, 0),
+    reactionMin: f(model.supports.length, Infinity),
+    reactionMax: f(model.supports.length, -Infinity),
+    reactionMinAt: i(model.supports.length),
+    reactionMaxAt: i(model.supports.length),
+  };
+}
+
+/**
+ * Takes combination `k` (column weights `w`, evaluated into `r`) into the envelope (the first
+ * combination wins ties).
+ */
+export function addToEnvelope(env: Envelope, sup: Superposition, r: CombinationState, k: number, w: Float64Array): void {
+  const { shaftStart } = sup.layout;
   const { phi, TL, TR } = r;
+  const { rotationMin, rotationMax, leftMin, leftMax, rightMin, rightMax } = env;
+  const sp = sup.spans;
+  if (sp) {
+    // T is one number per span: its extremes per span, spread over the stations once all are in.
+    const { t } = sp;
+    const { spanMin, spanMax } = env;
+    for (let n = 0; n < t.length; n++) {
+      spanMin[n] = Math.min(spanMin[n], t[n]);
+      spanMax[n] = Math.max(spanMax[n], t[n]);
+    }
+    for (let d = 0; d < phi.length; d++) {
+      rotationMin[d] = Math.min(rotationMin[d], phi[d]);
+      rotationMax[d] = Math.max(rotationMax[d], phi[d]);
+    }
+  }
+  for (let s = 0; s + 1 < shaftStart.length && !sp; s++) {
+    const first = shaftStart[s];
+    const last = shaftStart[s + 1] - 1;
+    rotationMin[first] = Math.min(rotationMin[first], phi[first]);
+    rotationMax[first] = Math.max(rotationMax[first], phi[first]);
+    // Station d > first reads T(z−) of element d − 1 − s; station d < last reads T(z+) of element d − s.
+    for (let d = first; d < last; d++) {
+      const e = d - s;
+      const p = phi[d + 1];
+      rotationMin[d + 1] = Math.min(rotationMin[d + 1], p);
+      rotationMax[d + 1] = Math.max(rotationMax[d + 1], p);
+      const right = TL[e];
+      rightMin[d] = Math.min(rightMin[d], right);
+      rightMax[d] = Math.max(rightMax[d], right);
+      const left = TR[e];
+      leftMin[d + 1] = Math.min(leftMin[d + 1], left);
+      leftMax[d + 1] = Math.max(leftMax[d + 1], left);
+    }
+  }
+  const most = (value: Float64Array, best: Float64Array, at: Int32Array) => {
+    for (let n = 0; n < value.length; n++) {
+      if (value[n] > best[n]) {
+        best[n] = value[n];
+        at[n] = k;
+      }
+    }
+  };
+  const { layerBase, rigidity } = sup;
+  // A taper's twist rate is its own; a uniform segment's is |T| / GJ (rigidity NaN marks a taper).
+  const rate = (g: number) => (Number.isNaN(rigidity[g]) ? r.segRate[g] : r.segMaxAbs[g] / rigidity[g]);
+  for (let g = 0; g < r.segMaxAbs.length; g++) {
+    const l0 = layerBase[g];
+    const l1 = layerBase[g + 1];
+    if (r.segMaxAbs[g] > env.segMaxAbs[g]) {
+      env.segMaxAbs[g] = r.segMaxAbs[g];
+      env.segCombination[g] = k;
+      env.segAt[g] = r.segAt[g];
+      env.segTwist[g] = r.segTwist[g];
+      env.segRate[g] = rate(g);
+      for (let l = l0; l < l1; l++) env.segLayers[l] = r.layerMaxShear[l];
+    }
+    let stress = -Infinity;
+    for (let l = l0; l < l1; l++) {
+      const tau = r.layerMaxShear[l];
+      stress = Math.max(stress, tau);
+      if (tau > env.layerMaxShear[l]) {
+        env.layerMaxShear[l] = tau;
+        env.layerCombination[l] = k;
+      }
+    }
+    if (stress > env.stressMax[g]) {
+      env.stressMax[g] = stress;
+      env.stressCombination[g] = k;
+      env.stressAbs[g] = r.segMaxAbs[g];
+      env.stressAt[g] = r.segAt[g];
+      env.stressTwist[g] = r.segTwist[g];
+      env.stressRate[g] = rate(g);
+      for (let l = l0; l < l1; l++) env.stressLayers[l] = r.layerMaxShear[l];
+    }
+  }
+  most(r.segRate, env.segRateMax, env.segRateCombination);
+  most(r.totalTwist, env.twistMax, env.twistCombination);
+  if (r.raisers) most(r.raisers.peak, env.raiserMax, env.raiserCombination);
+  for (let n = 0; n < r.meshForce.length; n++) {
+    if (Math.abs(r.meshForce[n]) > env.meshMaxAbs[n]) {
+      env.meshMaxAbs[n] = Math.abs(r.meshForce[n]);
+      env.meshCombination[n] = k;
+      env.meshForce[n] = r.meshForce[n];
+      env.meshA[n] = sup.connection(w, (c) => c.meshA, n);
+      env.meshB[n] = sup.connection(w, (c) => c.meshB, n);
+    }
+  }
+  for (let n = 0; n < r.couplingA.length; n++) {
+    if (Math.abs(r.couplingA[n]) > env.couplingMaxAbs[n]) {
+      env.couplingMaxAbs[n] = Math.abs(r.couplingA[n]);
+      env.couplingCombination[n] = k;
+      env.couplingA[n] = r.couplingA[n];
+      env.couplingB[n] = sup.connection(w, (c) => c.couplingB, n);
+    }
+  }
+  for (let n = 0; n < r.reaction.length; n++) {
+    const x = r.reaction[n];
+    if (x < env.reactionMin[n]) {
+      env.reactionMin[n] = x;
+      env.reactionMinAt[n] = k;
+    }
+    if (x > env.reactionMax[n]) {
+      env.reactionMax[n] = x;
+      env.reactionMaxAt[n] = k;
+    }
+  }
+}
+
+/** After the last combination: the extremes of T kept per span, spread over the stations. */
+export function finishEnvelope(env: Envelope, sup: Superposition): void {
+  const sp = sup.spans;
+  if (!sp) return;
+  const { shaftStart } = sup.layout;
   for (let s = 0; s + 1 < shaftStart.length; s++) {
     const first = shaftStart[s];
     const last = shaftStart[s + 1] - 1;
     for (let d = first; d <= last; d++) {
-      env.rotationMin[d] = Math.min(env.rotationMin[d], phi[d]);
-      env.rotationMax[d] = Math.max(env.rotationMax[d], phi[d]);
       if (d > first) {
-        const t = TR[d - 1 - s];
-        env.leftMin[d] = Math.min(env.leftMin[d], t);
-        env.leftMax[d] = Math.max(env.leftMax[d], t);
+        const n = sp.elemOf[d - 1 - s];
+        env.leftMin[d] = env.spanMin[n];
+        env.leftMax[d] = env.spanMax[n];
       }
       if (d < last) {
-        const t = TL[d - s];
-        env.rightMin[d] = Math.min(env.rightMin[d], t);
-        env.rightMax[d] = Math.max(env.rightMax[d], t);
+        const n = sp.elemOf[d - s];
+        env.rightMin[d] = env.spanMin[n];
+        env.rightMax[d] = env.spanMax[n];
       }
     }
   }
-  for (let g = 0; g < env.segMaxAbs.length; g++) {
-    if (r.segMaxAbs[g] > env.segMaxAbs[g]) {
-      env.segMaxAbs[g] = r.segMaxAbs[g];
-      env.segCombination[g] = k;
-    }
+}
+
+/** True when every number a combination lists is finite (NaN·0 and ±∞·0 are NaN; finite·0 is ±0). */
+export function combinationFinite(r: CombinationState): boolean {
+  // Twist rates of tapers follow from |T| and J (NaN marks a uniform segment's): not walked.
+  let s = r.maxResidual * 0;
+  s += timesZero(r.segMaxAbs) + timesZero(r.segTwist) + timesZero(r.layerMaxShear) + timesZero(r.totalTwist);
+  // A gear's and a coupling side's torque are a mesh force times a radius, and side a's torque with the sign changed.
+  s += timesZero(r.reaction) + timesZero(r.meshForce) + timesZero(r.couplingA);
+  if (r.raisers) s += timesZero(r.raisers.peak);
+  return s === 0;
+}
+
+/** Σ a[i]·0: 0 when every entry is finite, NaN otherwise. */
+function timesZero(a: Float64Array): number {
+  let s = 0;
+  for (let i = 0; i < a.length; i++) s += a[i] * 0;
+  return s;
+}
+
+/** The combination that governs check m of `c` (its envelope extreme). */
+export function checkGovernedBy(env: Envelope, sup: Superposition, c: CheckColumns, m: number): number {
+  const kind = c.kind[m];
+  if (kind === 2) return env.twistCombination[c.shaft[m]];
+  if (kind === 3) return env.raiserCombination[c.segment[m]];
+  const g = sup.segBase[c.shaft[m]] + c.segment[m];
+  if (kind === 0) return env.layerCombination[sup.layerBase[g] + c.layer[m]];
+  return sup.segments[g].taper ? env.segRateCombination[g] : env.segCombination[g];
+}
+
+/** True when the combinations list only the items each governs (the model × combinations is large). */
+export function listsAbridged(model: ResolvedModel, segments: number): boolean {
+  return model.combinations.length * (segments + model.meshes.length + model.couplings.length) > ALL_ITEMS_UP_TO;
+}
+
+/** Said when the combinations list only the items each governs. */
+export function abridgedWarning(model: ResolvedModel, segments: number): Warning {
+  const items = segments + model.meshes.length + model.couplings.length;
+  return {
+    code: 'SN_COMBINATIONS_ABRIDGED',
+    message:
+      `${model.combinations.length} combinations × ${items} segments, gear meshes and couplings exceed ${ALL_ITEMS_UP_TO.toLocaleString('en')}: ` +
+      'each combination lists its reactions, and the segments, meshes, couplings and checks it governs (its envelope extremes) only; ' +
+      'every item of one combination: the solve option "combination" (command line: --combination ID)',
+  };
+}
+
+/** What each combination governs (its envelope extremes): per combination, in model order. */
+export interface Governed {
+  /** Global segment indices: its peak |T| or its largest layer stress. */
+  readonly segments: number[][];
+  readonly meshes: number[][];
+  readonly couplings: number[][];
+  /** Indices into the model's checks; null for a model with stress raisers (filtered per combination). */
+  readonly checks: number[][] | null;
+}
+
+/** Buckets every segment, mesh, coupling and check under the combination(s) that govern it. */
+export function governedItems(env: Envelope, sup: Superposition, combinations: number, checks: CheckColumns | null): Governed {
+  const bucket = () => Array.from({ length: combinations }, (): number[] => []);
+  const segments = bucket();
+  for (let g = 0; g < sup.segments.length; g++) {
+    segments[env.segCombination[g]].push(g);
+    if (env.stressCombination[g] !== env.segCombination[g]) segments[env.stressCombination[g]].push(g);
   }
-  for (let l = 0; l < env.layerMaxShear.length; l++) {
-    if (r.layerMaxShear[l] > env.layerMaxShear[l]) {
-      env.layerMaxShear[l] = r.layerMaxShear[l];
-      env.layerCombination[l] = k;
-    }
+  const meshes = bucket();
+  env.meshCombination.forEach((k, n) => meshes[k].push(n));
+  const couplings = bucket();
+  env.couplingCombination.forEach((k, n) => couplings[k].push(n));
+  let byCheck: number[][] | null = null;
+  if (checks) {
+    byCheck = bucket();
+    for (let m = 0; m < checks.total; m++) byCheck[checkGovernedBy(env, sup, checks, m)].push(m);
   }
-  r.reactions.forEach((x, n) => {
-    if (x.torque < env.reactionMin[n]) {
-      env.reactionMin[n] = x.torque;
-      env.reactionMinAt[n] = k;
-    }
-    if (x.torque > env.reactionMax[n]) {
-      env.reactionMax[n] = x.torque;
-      env.reactionMaxAt[n] = k;
-    }
-  });
+  return { segments, meshes, couplings, checks: byCheck };
 }

@@ -53,17 +53,8 @@ function combinationNonFinite(sv: Solved): NonFinite | null {
   const given = sv.model.combinationsGiven;
   const bad = (x: number) => !Number.isFinite(x);
   for (const [k, c] of cases.combinations.entries()) {
-    const r = c.rec;
-    const values = [
-      c.maxResidual,
-      ...r.segMaxAbs,
-      ...r.segTwist,
-      ...r.layerMaxShear,
-      ...r.reactions.map((x) => x.torque),
-      ...r.gearMeshes.flatMap((g) => [g.force, g.torqueA, g.torqueB]),
-      ...r.couplings.flatMap((x) => [x.torqueA, x.torqueB]),
-    ];
-    const value = values.find(bad);
+    // Each combination checked its own numbers when it went into the envelope.
+    const value = c.finite ? (Number.isFinite(c.maxResidual) ? undefined : c.maxResidual) : Number.NaN;
     if (value !== undefined) return { pointer: given ? pointer('combinations', k) : pointer('loadCases', k), shaft: -1, what: `a result of combination "${c.id}"`, value };
   }
   const e = cases.envelope;

@@ -7,7 +7,7 @@
 import type { GearEnd, Model as ModelT } from '../../shared-types/model.js';
 import { MODEL_VALIDATOR, modelSchemaIssues } from '../../shared-types/schema-issues.js';
 import { ModelError, pointer, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
-import { isProblem, rangeProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
+import { isProblem, QUANTITY_RANGE, rangeProblem, readQuantity, type QuantityKind } from '../../shared-types/quantity.js';
 import type { Warning } from '../../shared-types/solution.js';
 import { buildSectionLayers, type SectionLayer } from './sections.js';
 import { sectionProperties, shapeProblems, type ShapeInput, type ShapeProperties } from './shapes.js';
@@ -417,6 +417,7 @@ class Resolver {
     });
     const given = this.m.combinations;
     if (given === undefined) return cases.map((c, k) => ({ id: c.id, ...(c.name === undefined ? {} : { name: c.name }), factors: cases.map((_, j) => (j === k ? 1 : 0)) }));
+    const largest = largestLoads(cases.length, torques, distributed);
     return given.map((cmb, i) => {
       const factors = cases.map(() => 0);
       for (const [caseId, f] of Object.entries(cmb.factors)) {
@@ -424,7 +425,12 @@ class Resolver {
         const k = cases.findIndex((c) => c.id === caseId);
         if (k < 0) this.issue('SN_UNRESOLVED', ptr, `no load case "${caseId}"`);
         else if (!Number.isFinite(f)) this.issue('SN_NOT_FINITE', ptr, `a factor must be a finite number (got ${String(f)})`);
-        else factors[k] = f;
+        else {
+          // A factored load beyond its physical range would overflow the solve: refused here, naming the factor.
+          const over = factorProblem(f, largest[k]);
+          if (over) this.issue('SN_OUT_OF_RANGE', ptr, over);
+          else factors[k] = f;
+        }
       }
       return { id: cmb.id, ...(cmb.name === undefined ? {} : { name: cmb.name }), factors };
     });
@@ -872,4 +878,34 @@ class Resolver {
     // P = T·ω, so T = P/ω: the sign of the power gives the sense of the torque about +z.
     return Number.isFinite(power) ? this.derived(power / speed, 'torque', base + '/power', 'the torque power / speed =') : 0;
   }
+}
+
+/** Per load case: its largest |point torque| (N·m) and |distributed torque| (N·m/m), with the load's id. */
+function largestLoads(
+  cases: number,
+  torques: readonly ResolvedTorque[],
+  distributed: readonly ResolvedDistributed[],
+): Array<{ torque: number; torqueId: string; perLength: number; perLengthId: string }> {
+  const out = Array.from({ length: cases }, () => ({ torque: 0, torqueId: '', perLength: 0, perLengthId: '' }));
+  for (const t of torques) {
+    const x = out[t.caseIndex];
+    if (x && Math.abs(t.torque) > x.torque) Object.assign(x, { torque: Math.abs(t.torque), torqueId: t.id });
+  }
+  for (const d of distributed) {
+    const x = out[d.caseIndex];
+    const t = Math.max(Math.abs(d.start), Math.abs(d.end));
+    if (x && t > x.perLength) Object.assign(x, { perLength: t, perLengthId: d.id });
+  }
+  return out;
+}
+
+/** The problem of factor `f` on a case whose largest loads are `big`: a factored load beyond its kind's range, or null. */
+function factorProblem(f: number, big: ReturnType<typeof largestLoads>[number] | undefined): string | null {
+  // Only the large side: a factored load below the range's floor is small, not an overflow.
+  if (!big) return null;
+  const t = Math.abs(f * big.torque) > QUANTITY_RANGE.torque.max ? rangeProblem(f * big.torque, 'torque', undefined, `times the torque "${big.torqueId}" it makes`) : null;
+  if (t) return `the factor ${String(f)} ${t.message}`;
+  const size = Math.abs(f * big.perLength);
+  const d = size > QUANTITY_RANGE.torquePerLength.max ? rangeProblem(f * big.perLength, 'torquePerLength', undefined, `times the distributed torque "${big.perLengthId}" it makes`) : null;
+  return d ? `the factor ${String(f)} ${d.message}` : null;
 }

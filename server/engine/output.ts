@@ -36,8 +36,8 @@ import {
 } from '../../shared-types/solution.js';
 import type { ResolvedModel } from './normalise.js';
 import type { StationLayout } from './stations.js';
-import type { Recovered } from './recover.js';
-import type { CombinationSolved, Envelope } from './combinations.js';
+import type { CheckColumns, Recovered } from './recover.js';
+import { checkGovernedBy, governedItems, type CombinationSolved, type Envelope, type Governed, type Superposition } from './combinations.js';
 import type { Crossing, DynamicsSolved } from './dynamics/modes.js';
 
 /** A finished solve, in columns. */
@@ -51,7 +51,15 @@ export interface Solved {
   /** Overload factors of the single load state; absent when no material has shearYield. */
   readonly overload?: Overload;
   /** A model with load cases: the combination shown at the top level, every combination, and the envelope. */
-  readonly cases?: { readonly combination: string; readonly combinations: readonly CombinationSolved[]; readonly envelope: Envelope };
+  readonly cases?: {
+    readonly combination: string;
+    readonly combinations: readonly CombinationSolved[];
+    readonly envelope: Envelope;
+    /** The columns every combination is evaluated from when it is written. */
+    readonly superposition: Superposition;
+    /** True when each combination lists only the items it governs (combinations.ts, ALL_ITEMS_UP_TO). */
+    readonly abridged: boolean;
+  };
   /** A model with dynamics: its modes and crossings. */
   readonly dynamics?: DynamicsSolved;
 }
@@ -162,7 +170,7 @@ const WARNING = rec<Warning>('code', 'message', 'shafts', 'connections');
 const STATS = rec<Solution['stats']>('stations', 'unknowns', 'factorNonzeros', 'checksEvaluated');
 
 type Item<T extends readonly unknown[]> = T[number];
-const COMBINATION = rec<CombinationResult>('id', 'name', 'reactions', 'gearMeshes', 'couplings', 'segments', 'checks', 'equilibrium');
+const COMBINATION = rec<CombinationResult>('id', 'name', 'reactions', 'gearMeshes', 'couplings', 'segments', 'checks', 'equilibrium', 'overload');
 const C_REACTION = rec<Item<CombinationResult['reactions']>>('support', 'torque');
 const C_MESH = rec<Item<CombinationResult['gearMeshes']>>('gearMesh', 'force', 'torqueA', 'torqueB');
 const C_COUPLING = rec<Item<CombinationResult['couplings']>>('coupling', 'torqueA', 'torqueB');
@@ -355,7 +363,7 @@ function walkSolution(sv: Solved, w: Writer): void {
   });
   w.close();
   w.close();
-  writeChecks(w, model, r, sv.dynamics);
+  writeChecks(w, model, r, undefined, sv.dynamics);
   if (r.raisers === undefined) w.absent();
   else {
     const rr = r.raisers;
@@ -386,7 +394,7 @@ function walkSolution(sv: Solved, w: Writer): void {
     w.absent();
     w.absent();
   } else {
-    writeCombinations(w, model, sv.cases.combinations);
+    writeCombinations(w, model, sv.cases);
     writeEnvelope(w, sv, sv.cases.envelope);
   }
   if (sv.dynamics === undefined) {
@@ -492,8 +500,8 @@ function writeCrossingCheck(w: Writer, shaft: string, c: Crossing): void {
   w.close();
 }
 
-/** The checks of one load state, worst first; with dynamics, the failing crossings merged in by utilisation. */
-function writeChecks(w: Writer, model: ResolvedModel, r: Recovered, dynamics?: DynamicsSolved): void {
+/** The checks of one load state, worst first (those `keep` keeps, when given); with dynamics, the failing crossings merged in by utilisation. */
+function writeChecks(w: Writer, model: ResolvedModel, r: { checks: CheckColumns; raisers?: Recovered['raisers'] }, keep?: (m: number) => boolean, dynamics?: DynamicsSolved): void {
   w.list();
   const c = r.checks;
   const speedShaft = model.dynamics?.speed ? model.shafts[model.dynamics.speed.shaft].id : '';
@@ -501,6 +509,7 @@ function writeChecks(w: Writer, model: ResolvedModel, r: Recovered, dynamics?: D
   let next = 0;
   for (let k = 0; k < c.listed.length; k++) {
     const m = c.listed[k];
+    if (keep && !keep(m)) continue;
     while (next < failing.length && crossingUtilisation(failing[next]) > c.utilisation[m]) writeCrossingCheck(w, speedShaft, failing[next++]);
     const shaft = model.shafts[c.shaft[m]];
     const kind = c.kind[m];
@@ -541,73 +550,104 @@ function writeChecks(w: Writer, model: ResolvedModel, r: Recovered, dynamics?: D
   w.close();
 }
 
-/** Every combination's results: reactions, connections, segment peaks, checks, equilibrium. */
-function writeCombinations(w: Writer, model: ResolvedModel, combos: readonly CombinationSolved[]): void {
+/**
+ * Every combination's results, each evaluated from the columns as it is written: reactions,
+ * connections, segment peaks, checks, equilibrium, overload. Abridged (a large model × many
+ * combinations): each lists its reactions and the items and checks it governs.
+ */
+function writeCombinations(w: Writer, model: ResolvedModel, cases: NonNullable<Solved['cases']>): void {
+  const { superposition: sup, envelope: env } = cases;
+  // Abridged: each item under the combination that governs it, with the numbers the envelope kept
+  // of that combination; no combination is evaluated again (but with stress raisers, for their checks).
+  let governed: Governed | null = null;
+  const reactions = new Float64Array(model.supports.length);
   w.list();
-  for (const cmb of combos) {
-    const r = cmb.rec;
+  cases.combinations.forEach((cmb, k) => {
+    const full = !cases.abridged || model.raisers.length > 0;
+    const r = full ? sup.evaluate(cmb.weights) : null;
+    if (cases.abridged && governed === null) governed = governedItems(env, sup, cases.combinations.length, r ? null : sup.checkList());
+    const mine = governed as Governed | null;
+    const reaction = r ? r.reaction : sup.reactions(cmb.weights, reactions);
     w.open(COMBINATION);
     w.str(cmb.id);
     if (cmb.name === undefined) w.absent();
     else w.str(cmb.name);
     w.list();
-    for (const x of r.reactions) {
+    model.supports.forEach((x, i) => {
       w.open(C_REACTION);
-      w.str(x.support);
-      w.num(x.torque);
+      w.str(x.id);
+      w.num(reaction[i]);
       w.close();
-    }
+    });
     w.close();
     w.list();
-    for (const g of r.gearMeshes) {
+    for (const i of mine ? mine.meshes[k] : model.meshes.keys()) {
       w.open(C_MESH);
-      w.str(g.gearMesh);
-      w.num(g.force);
-      w.num(g.torqueA);
-      w.num(g.torqueB);
+      w.str(model.meshes[i].id);
+      w.num(r ? r.meshForce[i] : env.meshForce[i]);
+      w.num(r ? r.meshA[i] : env.meshA[i]);
+      w.num(r ? r.meshB[i] : env.meshB[i]);
       w.close();
     }
     w.close();
     w.list();
-    for (const c of r.couplings) {
+    for (const i of mine ? mine.couplings[k] : model.couplings.keys()) {
       w.open(C_COUPLING);
-      w.str(c.coupling);
-      w.num(c.torqueA);
-      w.num(c.torqueB);
+      w.str(model.couplings[i].id);
+      w.num(r ? r.couplingA[i] : env.couplingA[i]);
+      w.num(r ? r.couplingB[i] : env.couplingB[i]);
       w.close();
     }
     w.close();
     w.list();
-    model.shafts.forEach((shaft, s) => {
-      shaft.segments.forEach((sg, k) => {
-        const g = r.segBase[s] + k;
-        w.open(C_SEGMENT);
-        w.str(shaft.id);
-        w.num(k);
+    for (const g of mine ? mine.segments[k] : sup.segments.keys()) {
+      const sg = sup.segments[g];
+      const s = sup.segShaft[g];
+      const l0 = sup.layerBase[g];
+      // Numbers of this combination: evaluated, or kept by the envelope where it governs the peak |T| or the stress.
+      const byPeak = env.segCombination[g] === k;
+      w.open(C_SEGMENT);
+      w.str(model.shafts[s].id);
+      w.num(g - sup.segBase[s]);
+      if (r) {
         w.num(r.segMaxAbs[g]);
         w.num(r.segAt[g]);
         w.num(sg.taper ? r.segRate[g] : r.segMaxAbs[g] / sg.rigidity);
         w.num(r.segTwist[g]);
-        w.list();
-        sg.layers.forEach((l, j) => {
-          const maxShear = r.layerMaxShear[r.layerBase[g] + j];
-          w.open(C_LAYER);
-          w.str(l.materialId);
-          w.num(maxShear);
-          w.optNum(l.allowableShear === null ? null : maxShear / l.allowableShear);
-          w.close();
-        });
-        w.close();
+      } else {
+        w.num(byPeak ? env.segMaxAbs[g] : env.stressAbs[g]);
+        w.num(byPeak ? env.segAt[g] : env.stressAt[g]);
+        w.num(byPeak ? env.segRate[g] : env.stressRate[g]);
+        w.num(byPeak ? env.segTwist[g] : env.stressTwist[g]);
+      }
+      const layers = r ? r.layerMaxShear : byPeak ? env.segLayers : env.stressLayers;
+      w.list();
+      sg.layers.forEach((l, j) => {
+        const maxShear = layers[l0 + j];
+        w.open(C_LAYER);
+        w.str(l.materialId);
+        w.num(maxShear);
+        w.optNum(l.allowableShear === null ? null : maxShear / l.allowableShear);
         w.close();
       });
-    });
+      w.close();
+      w.close();
+    }
     w.close();
-    writeChecks(w, model, r);
+    const some = mine?.checks ? sup.someChecks(env, mine.checks[k]) : null;
+    if (some) writeChecks(w, model, { checks: some });
+    else {
+      const rr = r as NonNullable<typeof r>;
+      const checks = sup.checks(rr);
+      writeChecks(w, model, { checks, raisers: rr.raisers }, mine ? (m) => checkGovernedBy(env, sup, checks, m) === k : undefined);
+    }
     w.open(C_EQUILIBRIUM);
     w.num(cmb.maxResidual);
     w.close();
+    if (cmb.overload === undefined) w.absent();
+    else walkOverload(cmb.overload, w);
     w.close();
-  }
+  });
   w.close();
 }
 

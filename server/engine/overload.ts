@@ -33,6 +33,9 @@ import type { StationLayout } from './stations.js';
 import type { Solved } from './output.js';
 import { solvePipeline, type PipelineOptions } from './pipeline.js';
 import { Workspace } from './workspace.js';
+import { assembledStateModel, combinedModel, hasAssembledState } from './combinations.js';
+
+export { assembledStateModel, hasAssembledState } from './combinations.js';
 
 /** The part of a loaded HiGHS instance used here: `solve` of CPLEX LP text (synchronous). */
 export interface LpSolver {
@@ -56,7 +59,8 @@ export interface Overload {
   firstYield: { shaft: string; z: number | null; layer: string } | null;
   collapseFactor: number | null;
   plasticAt: Array<{ shaft: string; z: number }>;
-  collapse: 'mechanism' | 'none';
+  /** 'omitted': the collapse factor was not sought for this combination (SN_OVERLOAD_OMITTED says which were). */
+  collapse: 'mechanism' | 'none' | 'omitted';
 }
 
 /** Element end torques, T(z+) at the left end and T(z−) at the right end, N·m. */
@@ -70,32 +74,13 @@ export function hasShearYield(model: ResolvedModel): boolean {
   return model.shafts.some((s) => s.segments.some((g) => g.layers.some((l) => l.shearYield !== null)));
 }
 
-/** True when the model has an assembled state: a prescribed rotation, a misfit or a mesh offset. */
-export function hasAssembledState(model: ResolvedModel): boolean {
-  return (
-    model.supports.some((s) => s.rotation !== 0) ||
-    model.meshes.some((g) => g.offset !== 0) ||
-    model.couplings.some((c) => c.misfit !== 0)
-  );
-}
-
 /**
- * The model with its loads set to zero, the assembled state kept. Point and distributed torques stay
- * (with zero value) so that the stations, and so the elements, are those of the model.
+ * Combinations × elements up to which every combination gets its collapse factor (one LP each);
+ * beyond it, the combination shown and the COLLAPSE_FEWEST with the lowest first-yield factors
+ * (the loads nearest to yield; common practice, no source), each an LP over the whole model.
  */
-export function assembledStateModel(model: ResolvedModel): ResolvedModel {
-  return {
-    ...model,
-    torques: model.torques.map((t) => ({ ...t, torque: 0 })),
-    distributed: model.distributed.map((d) => ({ ...d, start: 0, end: 0 })),
-  };
-}
-
-/** Said beside the overload of a model with load cases: the shown combination's only (not computed per combination yet). */
-export const OVERLOAD_WITH_CASES: Warning = {
-  code: 'SN_OVERLOAD_OMITTED',
-  message: 'overload factors are given for the combination shown (the top-level fields) only, not yet per combination: choose another with the solve option "combination"',
-};
+export const COLLAPSE_ALL_UP_TO = 20_000;
+export const COLLAPSE_FEWEST = 5;
 
 /** Cautions written beside every reported overload. */
 export const OVERLOAD_CAUTION: Warning = {
@@ -142,7 +127,7 @@ export function overloadOf(
   layout: StationLayout,
   loads: EndTorques,
   state: EndTorques | null,
-  lp: LpSolver,
+  lp: LpSolver | null,
 ): { overload: Overload; warnings: Warning[] } {
   const warnings: Warning[] = [OVERLOAD_CAUTION];
   const { z, elemLeft, elemSegment, elemT1, elemT2, shaftOf } = layout;
@@ -234,7 +219,8 @@ export function overloadOf(
     firstYield = { shaft: model.shafts[shaft].id, z: uniform ? null : z[left] + bestS, layer: bestLayer };
   }
 
-  const collapse = collapseOf(model, layout, lp, warnings, loaded);
+  // Without an LP solver the collapse factor is not sought ('omitted'; the caller says why).
+  const collapse = lp ? collapseOf(model, layout, lp, warnings, loaded) : { factor: null, plasticAt: [] };
   if (!Number.isFinite(best) && collapse.factor !== null) {
     // Collapse without yield cannot happen: digits were lost on the way.
     warnings.push({ code: 'SN_OVERLOAD_NUMERICS', message: 'first yield factor omitted: no layer reaches its yield stress in finite numbers' });
@@ -245,7 +231,7 @@ export function overloadOf(
       firstYield: Number.isFinite(best) ? firstYield : null,
       collapseFactor: collapse.factor,
       plasticAt: collapse.plasticAt,
-      collapse: collapse.factor === null ? 'none' : 'mechanism',
+      collapse: collapse.factor !== null ? 'mechanism' : lp ? 'none' : 'omitted',
     },
     warnings,
   };
@@ -457,14 +443,12 @@ function collapseOf(
 /**
  * The solve with its overload attached (when `lp` is given and some material has shearYield): the
  * loads' torques are the solve's less the assembled state's, solved alone in a workspace of its own.
+ * With load cases the top level is the combination shown, as a model with its loads typed in; each
+ * combination gets its own (`combinationOverloads`).
  */
 export function withOverload(solved: Solved, lp: LpSolver | undefined, options: PipelineOptions): Solved {
   const { model, layout } = solved;
   if (lp === undefined || !hasShearYield(model)) return solved;
-  // With load cases, `solved` is the shown combination: its model and layout carry that combination's
-  // factored loads, so its factors are found as for one load state. The other combinations' are not
-  // computed yet (a warning says so); the assembled state is solved as a model without load cases.
-  const cases = model.loadCases.length > 0;
   let state: EndTorques | null = null;
   if (hasAssembledState(model)) {
     const ws = new Workspace();
@@ -482,6 +466,78 @@ export function withOverload(solved: Solved, lp: LpSolver | undefined, options: 
     TR[e] = solved.rec.TR[e] - (state ? state.TR[e] : 0);
   }
   const { overload, warnings } = overloadOf(model, layout, { TL, TR }, state, lp);
-  if (cases) warnings.push(OVERLOAD_WITH_CASES);
-  return { ...solved, overload, warnings: [...solved.warnings, ...warnings] };
+  if (solved.cases) warnings.push(...combinationOverloads(solved, overload, lp));
+  return { ...solved, overload, warnings: dedupe([...solved.warnings, ...warnings]) };
+}
+
+/**
+ * Every combination's overload from the superposed columns: the loads' end torques are the case
+ * columns times the factors, the assembled state's its own column. The combination shown takes the
+ * top level's. First yield for every one; collapse by the rule of COLLAPSE_ALL_UP_TO.
+ */
+function combinationOverloads(solved: Solved, shownOverload: Overload, lp: LpSolver): Warning[] {
+  const cases = solved.cases as NonNullable<Solved['cases']>;
+  const sup = cases.superposition;
+  const model = sup.model;
+  const cols = sup.columns;
+  const n = sup.layout.elemLeft.length;
+  const state: EndTorques | null = hasAssembledState(model) ? { TL: cols[0].TL, TR: cols[0].TR } : null;
+  const shown = cases.combinations.findIndex((c) => c.id === cases.combination);
+  const warnings: Warning[] = [];
+  const one = (k: number, withCollapse: boolean): Overload => {
+    const w = cases.combinations[k].weights;
+    const TL = new Float64Array(n);
+    const TR = new Float64Array(n);
+    const t1 = new Float64Array(n);
+    const t2 = new Float64Array(n);
+    for (let c = 1; c < cols.length; c++) {
+      const f = w[c];
+      if (f === 0) continue;
+      const col = cols[c];
+      for (let e = 0; e < n; e++) {
+        TL[e] += f * col.TL[e];
+        TR[e] += f * col.TR[e];
+        t1[e] += f * col.t1[e];
+        t2[e] += f * col.t2[e];
+      }
+    }
+    const m = combinedModel(model, model.combinations[k]);
+    const r = overloadOf(m, { ...sup.layout, elemT1: t1, elemT2: t2 }, { TL, TR }, state, withCollapse ? lp : null);
+    warnings.push(...r.warnings);
+    return r.overload;
+  };
+  const count = cases.combinations.length;
+  const all = count * n <= COLLAPSE_ALL_UP_TO;
+  cases.combinations.forEach((c, k) => (c.overload = k === shown ? shownOverload : one(k, all)));
+  if (!all) {
+    const order = cases.combinations
+      .map((c, k) => ({ k, f: c.overload?.firstYieldFactor ?? Infinity }))
+      .filter((x) => x.k !== shown && Number.isFinite(x.f))
+      .sort((a, b) => a.f - b.f || a.k - b.k)
+      .slice(0, COLLAPSE_FEWEST);
+    for (const { k } of order) cases.combinations[k].overload = one(k, true);
+    const omitted = count - 1 - order.length;
+    if (omitted > 0) {
+      const named = [cases.combination, ...order.map((x) => cases.combinations[x.k].id)].map((id) => `"${id}"`).join(', ');
+      warnings.push({
+        code: 'SN_OVERLOAD_OMITTED',
+        message:
+          `collapse factors are given for combinations ${named} only (the one shown and the ${order.length} with the lowest first-yield factors): ` +
+          `${count} combinations × ${n} elements exceed ${COLLAPSE_ALL_UP_TO.toLocaleString('en')}, one linear program each; ` +
+          `the other ${omitted} have first-yield factors and collapse "omitted" (another one's: the solve option "combination")`,
+      });
+    }
+  }
+  return warnings;
+}
+
+/** The warnings without repeats (the same code and text once). */
+function dedupe(list: Warning[]): Warning[] {
+  const seen = new Set<string>();
+  return list.filter((x) => {
+    const key = `${x.code} ${x.message}`;
+    if (seen.has(key)) return false;
+    seen.add(key);
+    return true;
+  });
 }

@@ -23,7 +23,24 @@ import type { Solved } from './output.js';
 import { recoverRaisers } from './raisers.js';
 import type { Workspace } from './workspace.js';
 import { solveDynamics, type DynamicsSolved } from './dynamics/modes.js';
-import { addToEnvelope, combinedLayout, combinedModel, emptyEnvelope, shownCombination, type CombinationSolved } from './combinations.js';
+import {
+  abridgedWarning,
+  addToEnvelope,
+  assembledStateModel,
+  caseFactors,
+  columnWeights,
+  combinationFinite,
+  combinedLayout,
+  combinedModel,
+  emptyEnvelope,
+  finishEnvelope,
+  hasAssembledState,
+  listsAbridged,
+  shownCombination,
+  Superposition,
+  type CombinationSolved,
+  type StateColumn,
+} from './combinations.js';
 
 /** The phases of a solve, reported to `onPhase` with their durations. */
 export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'dynamics' | 'output';
@@ -191,56 +208,87 @@ interface Assembled {
 }
 
 /**
- * A model with load cases: one factorisation, then per combination its load
- * vector and right-hand side (the assembled state in it unfactored), its
- * solve, and every result recovered from its own rotations. The station
- * columns of every combination but the shown one are given back once they
- * are in the envelope.
+ * A model with load cases, by superposition: one factorisation; one right-hand side for the
+ * combination shown (its top-level results are those of a model with its loads typed in), one
+ * for the assembled state (when there is one) and one per load case alone; each column
+ * recovered once; then every combination from the columns in one pass that fills the envelope.
  */
 function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: Workspace, a: Assembled): Solved {
   const { layout, parts, reduction, system, shown, lap } = a;
   const warnings: Warning[] = [];
-  const states = model.combinations.map((c) => {
-    const m = combinedModel(model, c);
+  // The cases alone carry no assembled state: the springs' misfits and offsets and the constraints' shifts are zero for them.
+  const bare = { springs: { ...parts.springs, c: ws.f64(parts.springs.c.length) }, reduction: { ...reduction, beta: ws.f64(reduction.beta.length) } };
+  const full = { springs: parts.springs, reduction };
+  const withAssembled = hasAssembledState(model);
+  const stateOf = (m: ResolvedModel, sys: typeof full) => {
     const lay = combinedLayout(m, layout, ws);
-    return { combination: c, model: m, layout: lay, load: loadVector(m, lay, ws) };
-  });
-  const rights = states.map((st) => ({ load: st.load, rhs: () => reducedRhs(parts.springs, st.load, reduction, ws) }));
+    return { model: m, layout: lay, load: loadVector(m, lay, ws), ...sys };
+  };
+  const top = stateOf(combinedModel(model, model.combinations[shown]), full);
+  const states = [stateOf(assembledStateModel(model), full), ...model.loadCases.map((_, j) => stateOf(combinedModel(model, caseFactors(model, j)), bare))];
+  const solved = [top, ...states.filter((_, c) => c > 0 || withAssembled)];
+  const rights = solved.map((st) => ({ load: st.load, springs: st.springs, reduction: st.reduction, rhs: () => reducedRhs(st.springs, st.load, st.reduction, ws) }));
   const { xs, factorNonzeros } = solveLoads(model, layout, options, ws, parts, reduction, system, rights, warnings);
   lap('factorise');
 
-  let segments = 0;
-  let layers = 0;
-  for (const sh of model.shafts) {
-    segments += sh.segments.length;
-    for (const sg of sh.segments) layers += sg.layers.length;
-  }
-  const envelope = emptyEnvelope(layout.dofCount, segments, layers, model.supports.length);
-  const combos: CombinationSolved[] = [];
-  let checksEvaluated = 0;
-  const lost: string[] = [];
-  states.forEach((st, k) => {
-    const phi = ws.stage(() => expandRotations(reduction, xs[k], ws));
-    ws.release(xs[k]);
-    const ends = ws.stage(() => elementTorques(st.model, st.layout, parts.springs, phi, ws));
-    const joints = ws.stage(() => jointTorques(st.model, st.layout, { ...parts, load: st.load }, phi, ws));
-    const shafts = ws.stage(() => recoverShafts(st.model, st.layout, phi, ends, joints.jumps, options.diagramPoints ?? 8, ws));
-    ws.release(joints.jumps);
-    const raisers = model.raisers.length > 0 ? recoverRaisers(st.model, st.layout, ends) : undefined;
-    const checks = ws.stage(() => buildChecks(st.model, shafts, ws, raisers));
-    const rec: Recovered = { phi, ...ends, ...shafts, raisers, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
-    let maxResidual = 0;
-    for (let n = 0; n < rec.residual.length; n++) maxResidual = Math.max(maxResidual, rec.residual[n]);
-    let torqueScale = 0;
-    for (let n = 0; n < rec.segMaxAbs.length; n++) torqueScale = Math.max(torqueScale, rec.segMaxAbs[n]);
-    if (maxResidual > 1e-8 * torqueScale) lost.push(st.combination.id);
-    addToEnvelope(envelope, layout, rec, k);
-    if (k === shown) checksEvaluated = checks.total;
-    // Only the shown combination's stations and diagrams are written: the others' are given back.
-    else ws.release(rec.phi, rec.TL, rec.TR, rec.dZ, rec.dT, rec.dPhi, rec.dTau, st.load, st.layout.elemT1, st.layout.elemT2);
-    const name = st.combination.name;
-    combos.push({ id: st.combination.id, ...(name === undefined ? {} : { name }), rec, maxResidual });
+  // Every column recovered once: rotations, element end torques, what supports and connections carry, shaft sums.
+  let next = 1;
+  let jumps: Uint8Array | undefined;
+  const columns: StateColumn[] = states.map((st, c) => {
+    if (c === 0 && !withAssembled) return zeroColumn(model, layout, ws);
+    const x = xs[next++];
+    const phi = ws.stage(() => expandRotations(st.reduction, x, ws));
+    ws.release(x);
+    const ends = ws.stage(() => elementTorques(st.model, st.layout, st.springs, phi, ws));
+    const joints = ws.stage(() => jointTorques(st.model, st.layout, { ...parts, springs: st.springs, load: st.load }, phi, ws));
+    // Where T may jump is the same in every column (every load's station counts, whatever its value).
+    if (jumps === undefined) jumps = joints.jumps;
+    else ws.release(joints.jumps);
+    ws.release(joints.residual, st.load);
+    return {
+      phi,
+      TL: ends.TL,
+      TR: ends.TR,
+      t1: st.layout.elemT1,
+      t2: st.layout.elemT2,
+      reaction: Float64Array.from(joints.reactions, (r) => r.torque),
+      meshForce: Float64Array.from(joints.gearMeshes, (g) => g.force),
+      meshA: Float64Array.from(joints.gearMeshes, (g) => g.torqueA),
+      meshB: Float64Array.from(joints.gearMeshes, (g) => g.torqueB),
+      couplingA: Float64Array.from(joints.couplings, (g) => g.torqueA),
+      couplingB: Float64Array.from(joints.couplings, (g) => g.torqueB),
+      sums: joints.sums,
+    };
   });
+
+  // The combination shown: every result, station tables and diagrams included, from its own solve.
+  const x = xs[0];
+  const phi = ws.stage(() => expandRotations(reduction, x, ws));
+  ws.release(x);
+  const ends = ws.stage(() => elementTorques(top.model, top.layout, parts.springs, phi, ws));
+  const joints = ws.stage(() => jointTorques(top.model, top.layout, { ...parts, load: top.load }, phi, ws));
+  const shafts = ws.stage(() => recoverShafts(top.model, top.layout, phi, ends, joints.jumps, options.diagramPoints ?? 8, ws));
+  ws.release(joints.jumps);
+  const raisers = model.raisers.length > 0 ? recoverRaisers(top.model, top.layout, ends) : undefined;
+  const checks = ws.stage(() => buildChecks(top.model, shafts, ws, raisers));
+  const rec: Recovered = { phi, ...ends, ...shafts, raisers, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
+  let maxResidual = 0;
+  for (let n = 0; n < rec.residual.length; n++) maxResidual = Math.max(maxResidual, rec.residual[n]);
+
+  // Every combination from the columns, into the envelope.
+  const superposition = new Superposition(model, layout, columns, jumps);
+  const envelope = emptyEnvelope(superposition);
+  const lost: string[] = [];
+  const combinations: CombinationSolved[] = model.combinations.map((c, k) => {
+    const weights = columnWeights(c);
+    const r = superposition.evaluate(weights, false);
+    addToEnvelope(envelope, superposition, r, k, weights);
+    let torqueScale = 0;
+    for (let g = 0; g < r.segMaxAbs.length; g++) torqueScale = Math.max(torqueScale, r.segMaxAbs[g]);
+    if (r.maxResidual > 1e-8 * torqueScale) lost.push(c.id);
+    return { id: c.id, ...(c.name === undefined ? {} : { name: c.name }), weights, maxResidual: r.maxResidual, finite: combinationFinite(r) };
+  });
+  finishEnvelope(envelope, superposition);
   const { springs, load } = parts;
   ws.release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load, reduction.varOf, reduction.alpha, reduction.beta);
   lap('recover');
@@ -250,15 +298,35 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
       message: `equilibrium holds only loosely in combination${lost.length === 1 ? '' : 's'} ${lost.map((id) => `"${id}"`).join(', ')}: sizes or stiffnesses many orders of magnitude apart cost digits (check the units)`,
     });
   }
-  const top = combos[shown];
+  const abridged = listsAbridged(model, superposition.segments.length);
+  if (abridged) warnings.push(abridgedWarning(model, superposition.segments.length));
   return {
-    model: states[shown].model,
-    layout: states[shown].layout,
-    rec: top.rec,
-    maxResidual: top.maxResidual,
+    model: top.model,
+    layout: top.layout,
+    rec,
+    maxResidual,
     warnings: [...recoveryWarnings(model, reduction), ...model.warnings, ...warnings],
-    stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated },
-    cases: { combination: top.id, combinations: combos, envelope },
+    stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
+    cases: { combination: model.combinations[shown].id, combinations, envelope, superposition, abridged },
+  };
+}
+
+/** The column of a model without an assembled state: zero. */
+function zeroColumn(model: ResolvedModel, layout: StationLayout, ws: Workspace): StateColumn {
+  const elems = layout.elemLeft.length;
+  return {
+    phi: ws.f64(layout.dofCount),
+    TL: ws.f64(elems),
+    TR: ws.f64(elems),
+    t1: ws.f64(elems),
+    t2: ws.f64(elems),
+    reaction: new Float64Array(model.supports.length),
+    meshForce: new Float64Array(model.meshes.length),
+    meshA: new Float64Array(model.meshes.length),
+    meshB: new Float64Array(model.meshes.length),
+    couplingA: new Float64Array(model.couplings.length),
+    couplingB: new Float64Array(model.couplings.length),
+    sums: new Float64Array(model.shafts.length),
   };
 }
 
@@ -281,7 +349,8 @@ function phaseClock(onPhase: PipelineOptions['onPhase']): (phase: SolvePhase) =>
 }
 
 /**
- * K·x = f for every load given, its right-hand side made when it is solved: one factorisation
+ * K·x = f for every load given (refined against its own springs and reduction where it has them: a case
+ * alone has no assembled state), its right-hand side made when it is solved: one factorisation
  * for all of them, the sparse L·D·Lᵀ refined against each load's own spring residual, or the
  * dense reference path. Gives back the system's entries, diagonal and base right-hand side once
  * read; warns when the pivots show stiffnesses far apart.
@@ -294,7 +363,7 @@ function solveLoads(
   parts: ElasticParts,
   reduction: Reduction,
   system: ReducedSystem,
-  rights: ReadonlyArray<{ readonly load: Float64Array; readonly rhs: () => Float64Array }>,
+  rights: ReadonlyArray<{ readonly load: Float64Array; readonly rhs: () => Float64Array; readonly springs?: ElasticParts['springs']; readonly reduction?: Reduction }>,
   warnings: Warning[],
 ): { xs: Float64Array[]; factorNonzeros: number } {
   if (options.solver === 'dense') {
@@ -309,7 +378,7 @@ function solveLoads(
   );
   ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
   const factorNonzeros = symbolic.Lp[symbolic.n];
-  const xs = rights.map((r) => ws.stage(() => refinedSolve(parts.springs, r.load, reduction, r.rhs(), symbolic, factor, ws)));
+  const xs = rights.map((r) => ws.stage(() => refinedSolve(r.springs ?? parts.springs, r.load, r.reduction ?? reduction, r.rhs(), symbolic, factor, ws)));
   ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
   if (factor.minPivotRatio < 1e-10) {
     warnings.push({

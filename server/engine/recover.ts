@@ -139,6 +139,8 @@ export interface JointTorques {
   readonly residual: Float64Array;
   /** 1 at stations where T may jump: a point torque, a support or a connection acts there. */
   readonly jumps: Uint8Array;
+  /** Per shaft: Σ torques with its sign (linear in the loads: a combination's is the factored sum). */
+  readonly sums: Float64Array;
 }
 
 /**
@@ -220,10 +222,11 @@ export function jointTorques(model: ResolvedModel, layout: StationLayout, parts:
   for (let d = 0; d < applied.length; d++) sums[layout.shaftOf[d]] += applied[d];
   for (const t of model.torques) sums[t.shaft] += t.torque;
   for (const dt of model.distributed) sums[dt.shaft] += ((dt.start + dt.end) / 2) * (dt.to - dt.from);
+  const signed = ws.f64Copy(sums, sums.length);
   for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
 
   for (let s = 0; s < sums.length; s++) sums[s] = Math.abs(sums[s]);
-  return { reactions, gearMeshes, couplings, residual: sums, jumps };
+  return { reactions, gearMeshes, couplings, residual: sums, jumps, sums: signed };
 }
 
 /** Warnings of a solved model: locked loops and rigid splits of the reduction, materials without an allowable. */
@@ -572,17 +575,17 @@ export function recoverShafts(
 const DIAGRAM_INTERIOR_BUDGET = 50_000;
 
 /** T(s) inside an element: T1 − t1·s − (t2 − t1)·s²/(2h). */
-function elementTorque(T1: number, t1: number, dt: number, h: number, x: number): number {
+export function elementTorque(T1: number, t1: number, dt: number, h: number, x: number): number {
   return T1 - t1 * x - (dt * x * x) / (2 * h);
 }
 
 /** φ(s) inside an element: φ1 + (T1·s − t1·s²/2 − (t2 − t1)·s³/(6h)) / GJ. */
-function elementRotation(phi1: number, T1: number, t1: number, dt: number, h: number, gj: number, x: number): number {
+export function elementRotation(phi1: number, T1: number, t1: number, dt: number, h: number, gj: number, x: number): number {
   return phi1 + (T1 * x - (t1 * x * x) / 2 - (dt * x * x * x) / (6 * h)) / gj;
 }
 
 /** Real roots of a·x² + b·x + c (a may be 0), computed without cancellation, into `out`; answers how many. */
-function quadraticRoots(a: number, b: number, c: number, out: Float64Array): number {
+export function quadraticRoots(a: number, b: number, c: number, out: Float64Array): number {
   if (a === 0) {
     if (b === 0) return 0;
     out[0] = -c / b;

@@ -81,3 +81,41 @@ describe('shaftnet solve with load cases', () => {
     expect(u.err).toContain('--combination takes the id of a combination');
   });
 });
+
+describe('shaftnet solve with load cases: overload lines and factors refused', () => {
+  /** The cantilever with a shear yield stress of 170 MPa on its steel (invented). */
+  const yielding = { ...model, materials: [{ id: 'st', G: 80e9, allowableShear: 60e6, shearYield: 170e6 }] };
+  function yieldingFile(m: unknown = yielding): string {
+    const dir = mkdtempSync(join(tmpdir(), 'shaftnet-cli-cases-'));
+    const path = join(dir, 'model.json');
+    writeFileSync(path, JSON.stringify(m));
+    return path;
+  }
+
+  it('each combination prints its overload line; a cantilever yields and collapses at the root (closed form)', async () => {
+    // d = 50 mm: T_y = τ_y·π·d³/16 = 4.172 kN·m and T_p = 2π·τ_y·c³/3 = 5.563 kN·m (solid, contract). Root torque 100 N·m
+    // (service) and 170 N·m (peak): first yield at 41.72x and 24.54x, collapse at 55.63x and 32.72x, both at the root z = 0
+    // (the one segment's torque is not uniform along it: the place is named).
+    const r = await run(['solve', yieldingFile()]);
+    expect(r.code).toBe(0);
+    const lines = r.out.split('\n').filter((l) => l.startsWith('Overload: '));
+    expect(lines).toHaveLength(2);
+    expect(lines[0]).toMatch(/^Overload: the loads can grow 41\.72x to first yield \(a at z = 0 mm, layer st\), 55\.63x to collapse/);
+    expect(lines[1]).toMatch(/^Overload: the loads can grow 24\.54x to first yield \(a at z = 0 mm, layer st\), 32\.72x to collapse/);
+  });
+
+  it('--combination ID prints the overload line of that combination', async () => {
+    const r = await run(['solve', yieldingFile(), '--combination', 'peak']);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/\nOverload: the loads can grow 24\.54x to first yield \(a at z = 0 mm, layer st\), 32\.72x to collapse/);
+  });
+
+  it('a factor whose factored load leaves the torque range exits 2 naming the factor, before solving', async () => {
+    const huge = { ...model, combinations: [{ id: 'storm', factors: { run: 1e300 } }] };
+    const r = await run(['solve', yieldingFile(huge)]);
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('SN_OUT_OF_RANGE');
+    expect(r.err).toContain('/combinations/0/factors/run');
+  });
+});
+

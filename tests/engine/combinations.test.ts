@@ -136,12 +136,20 @@ describe('superposition over load cases (linearity: closed form)', () => {
       expectClose(sol.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)), plain.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)), scale, 'segment peaks');
       const shear = (s: Solution) => s.shafts.flatMap((sh) => sh.segments.flatMap((g) => g.layers.map((l) => l.maxShear)));
       expectClose(shear(sol), shear(plain), maxAbs(shear(plain)), 'layer stresses');
-      // The per-combination summary says the same as the top level.
+      // The per-combination summary (from the superposed columns) says the same as the top level (its own solve), to round-off.
       const mine = sol.combinations?.find((x) => x.id === c.id);
-      expect(mine?.checks).toEqual(sol.checks);
-      expect(mine?.reactions).toEqual(sol.reactions.map((r) => ({ support: r.support, torque: r.torque })));
-      expect(mine?.segments.map((g) => g.maxAbsTorque)).toEqual(sol.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)));
-      expect(mine?.equilibrium.maxResidual).toBe(sol.equilibrium.maxResidual);
+      if (!mine) throw new Error(`no combination ${c.id}`);
+      const key = (k: Solution['checks'][number]) => `${k.kind} ${k.shaft} ${k.segment ?? ''} ${k.layer ?? ''} ${k.raiser ?? ''}`;
+      const byKey = (list: Solution['checks']) => [...list].sort((x, y) => (key(x) < key(y) ? -1 : key(x) > key(y) ? 1 : 0));
+      expect(byKey(mine.checks).map(key)).toEqual(byKey(sol.checks).map(key));
+      // Utilisations to round-off of the largest of the model (any combination's).
+      const utilScale = maxAbs((sol.combinations ?? []).flatMap((x) => x.checks.map((k) => k.utilisation)));
+      expectClose(byKey(mine.checks).map((k) => k.utilisation), byKey(sol.checks).map((k) => k.utilisation), utilScale, 'check utilisations');
+      expect(mine.reactions.map((r) => r.support)).toEqual(sol.reactions.map((r) => r.support));
+      expectClose(mine.reactions.map((r) => r.torque), sol.reactions.map((r) => r.torque), scale, 'summary reactions');
+      expectClose(mine.segments.map((g) => g.maxAbsTorque), sol.shafts.flatMap((s) => s.segments.map((g) => g.maxAbsTorque)), scale, 'summary segment peaks');
+      expectClose(mine.segments.map((g) => g.twist), sol.shafts.flatMap((s) => s.segments.map((g) => g.twist)), rot, 'summary segment twists');
+      expect(mine.equilibrium.maxResidual).toBeLessThanOrEqual(1e-9 * scale);
     }
   });
 });
@@ -150,12 +158,19 @@ describe('the envelope is the extremes over the combinations', () => {
   it.each(SEEDS.slice(0, 8))('seed %i', (seed) => {
     const m = casedModel(seed);
     const shown = m.combinations.map((c: Json) => solveModel(m, { combination: c.id }));
-    const env = (shown[0] as Solution).envelope;
-    if (!env) throw new Error('no envelope');
+    const sol = shown[0] as Solution;
+    const env = sol.envelope;
+    const combos = sol.combinations;
+    if (!env || !combos) throw new Error('no envelope');
     const ids: string[] = m.combinations.map((c: Json) => c.id);
-    // Reactions: min/max and the combination that attains each.
+    // Round-off scales of the solves one by one against the superposed columns.
+    const scale = maxAbs(...shown.map((s: Solution) => [...s.reactions.map((r) => r.torque), ...s.shafts.flatMap((sh) => sh.segments.map((g) => g.maxAbsTorque))]));
+    const rot = maxAbs(...shown.map((s: Solution) => s.shafts.flatMap((sh) => sh.stations.map((st) => st.rotation))));
+    // Reactions: exactly the extremes of the combinations' own lists, with the combination that attains each;
+    // and those lists are the separately shown solves to 1e-12 (superposition).
     env.reactions.forEach((r, n) => {
-      const values = shown.map((s: Solution) => s.reactions[n].torque);
+      const values = combos.map((c) => c.reactions[n].torque);
+      expectClose(values, shown.map((s: Solution) => s.reactions[n].torque), scale, 'reactions');
       expect(r.min).toBe(Math.min(...values));
       expect(r.max).toBe(Math.max(...values));
       expect(values[ids.indexOf(r.minCombination)]).toBe(r.min);
@@ -168,19 +183,28 @@ describe('the envelope is the extremes over the combinations', () => {
           const v = shown.map((_x: Solution, k: number) => pick(st(k)[d]));
           return v[0] === null ? null : f(...(v as number[]));
         });
+      const close = (got: Array<number | null>, want: Array<number | null>, sc: number, what: string) => {
+        expect(got.map((x) => x === null)).toEqual(want.map((x) => x === null));
+        expectClose(got.map((x) => x ?? 0), want.map((x) => x ?? 0), sc, what);
+      };
       expect(sh.stations.z).toEqual(st(0).map((x) => x.z));
-      expect(sh.stations.torqueLeftMin).toEqual(ext((x) => x.torqueLeft, Math.min));
-      expect(sh.stations.torqueLeftMax).toEqual(ext((x) => x.torqueLeft, Math.max));
-      expect(sh.stations.torqueRightMin).toEqual(ext((x) => x.torqueRight, Math.min));
-      expect(sh.stations.torqueRightMax).toEqual(ext((x) => x.torqueRight, Math.max));
-      expect(sh.stations.rotationMin).toEqual(ext((x) => x.rotation, Math.min));
-      expect(sh.stations.rotationMax).toEqual(ext((x) => x.rotation, Math.max));
+      close(sh.stations.torqueLeftMin, ext((x) => x.torqueLeft, Math.min), scale, 'T(z−) min');
+      close(sh.stations.torqueLeftMax, ext((x) => x.torqueLeft, Math.max), scale, 'T(z−) max');
+      close(sh.stations.torqueRightMin, ext((x) => x.torqueRight, Math.min), scale, 'T(z+) min');
+      close(sh.stations.torqueRightMax, ext((x) => x.torqueRight, Math.max), scale, 'T(z+) max');
+      close(sh.stations.rotationMin, ext((x) => x.rotation, Math.min), rot, 'rotation min');
+      close(sh.stations.rotationMax, ext((x) => x.rotation, Math.max), rot, 'rotation max');
       sh.segments.forEach((g, k) => {
-        const peaks = shown.map((x: Solution) => x.shafts[s].segments[k].maxAbsTorque);
+        const mineOf = (c: (typeof combos)[number]) => c.segments.find((x) => x.shaft === sh.id && x.index === k);
+        const peaks = combos.map((c) => mineOf(c)?.maxAbsTorque ?? NaN);
+        expectClose(peaks, shown.map((x: Solution) => x.shafts[s].segments[k].maxAbsTorque), scale, 'segment peaks');
         expect(g.maxAbsTorque).toBe(Math.max(...peaks));
         expect(peaks[ids.indexOf(g.combination)]).toBe(g.maxAbsTorque);
         g.layers.forEach((l, j) => {
-          const taus = shown.map((x: Solution) => x.shafts[s].segments[k].layers[j].maxShear);
+          const taus = combos.map((c) => mineOf(c)?.layers[j].maxShear ?? NaN);
+          // Round-off of τ is that of T times the layer's τ per unit torque (read where T is not zero).
+          const perTorque = Math.max(0, ...shown.map((x: Solution) => x.shafts[s].segments[k]).filter((x: Json) => x.maxAbsTorque > 0).map((x: Json) => x.layers[j].maxShear / x.maxAbsTorque));
+          expectClose(taus, shown.map((x: Solution) => x.shafts[s].segments[k].layers[j].maxShear), scale * perTorque, 'layer stresses');
           expect(l.maxShear).toBe(Math.max(...taus));
           expect(taus[ids.indexOf(l.combination)]).toBe(l.maxShear);
           const allowable = (shown[0] as Solution).shafts[s].segments[k].layers[j].allowableShear;
@@ -293,10 +317,15 @@ describe('bad load cases and combinations are refused with the field named', () 
     expect(issues(small((m) => m.combinations.push({ id: 'c1', factors: {} })))).toEqual([['SN_DUPLICATE_ID', '/combinations/1/id']]);
     expect(issues(small((m) => m.loadCases.push({ id: 'run' })))).toEqual([['SN_DUPLICATE_ID', '/loadCases/2/id']]);
   });
-  it('a combination whose factor drives a result past double range: SN_ILL_CONDITIONED at that combination', () => {
-    const huge = small((m) => m.combinations.push({ id: 'c2', factors: { run: 1e306 } }));
-    // 1e306 × 100 N·m at the root of a 50 mm shaft: τ = 16·T/(π d³) ≈ 4e312 Pa, beyond 1.8e308.
-    expect(issues(huge)).toEqual([['SN_ILL_CONDITIONED', '/combinations/1']]);
+  it('a factor that makes a load beyond its physical range is refused before the solve: SN_OUT_OF_RANGE at the factor', () => {
+    // 1e306 × 100 N·m would give τ ≈ 4e312 Pa at the root of a 50 mm shaft, beyond 1.8e308; the torque range ends at 1e12 N·m.
+    expect(issues(small((m) => m.combinations.push({ id: 'c2', factors: { run: 1e306 } })))).toEqual([['SN_OUT_OF_RANGE', '/combinations/1/factors/run']]);
+    // 1e11 × 100 N·m = 1e13 N·m: past the range (1e12 N·m), not yet past double range.
+    expect(issues(small((m) => (m.combinations[0].factors.run = -1e11)))).toEqual([['SN_OUT_OF_RANGE', '/combinations/0/factors/run']]);
+    // The distributed torque of case "jam" (10 N·m/m) times 1e12 = 1e13 N·m/m: past its range (1e12 N·m/m).
+    expect(issues(small((m) => (m.combinations[0].factors.jam = 1e12)))).toEqual([['SN_OUT_OF_RANGE', '/combinations/0/factors/jam']]);
+    // Up to the range's end it solves: 1e10 × 100 N·m = 1e12 N·m.
+    expect(() => solveModel(small((m) => (m.combinations[0].factors.run = 1e10)))).not.toThrow();
   });
   it('an unknown combination to show: SN_UNRESOLVED at the root, naming the ones there are', () => {
     try {
@@ -306,6 +335,84 @@ describe('bad load cases and combinations are refused with the field named', () 
       if (!(e instanceof ModelError)) throw e;
       expect(e.issues.map((i) => [i.code, i.pointer])).toEqual([['SN_UNRESOLVED', '']]);
       expect(e.issues[0].message).toContain('"c1"');
+    }
+  });
+});
+
+describe('many combinations: each item listed under the combination that governs it', () => {
+  /** A fixed–fixed chain of 60 segments with allowables, three cases of point torques and `n` seeded combinations (invented). */
+  function manyCombinations(n: number): Json {
+    const rng = new Rng(4242);
+    const segments = Array.from({ length: 60 }, (_, k) => ({ length: 0.05, section: k % 3 ? 'a' : 'b', material: 'steel' }));
+    const torques = Array.from({ length: 30 }, (_, k) => ({ id: `t${k}`, case: CASES[k % 3], shaft: 's', at: 0.1 * k + 0.025, torque: rng.range(-500, 500) }));
+    return {
+      format: 'shaftnet/1',
+      name: 'Many combinations (invented)',
+      materials: [{ id: 'steel', G: 79.3e9, allowableShear: 55e6 }],
+      sections: [
+        { id: 'a', shape: 'solid', d: 0.04 },
+        { id: 'b', shape: 'hollow', d: 0.05, di: 0.03 },
+      ],
+      shafts: [{ id: 's', segments }],
+      supports: [
+        { id: 'A', shaft: 's', at: 0, kind: 'fixed' },
+        { id: 'B', shaft: 's', at: 3, kind: 'fixed' },
+      ],
+      torques,
+      loadCases: CASES.map((id) => ({ id })),
+      combinations: Array.from({ length: n }, (_, k) => ({ id: `k${k}`, factors: Object.fromEntries(CASES.map((c) => [c, rng.range(-1.5, 1.5)])) })),
+    };
+  }
+
+  it('2,000 combinations × 60 segments (over 100,000 items): abridged, every listed number that of its combination', () => {
+    const m = manyCombinations(2000);
+    const sol = solveModel(m);
+    const combos = sol.combinations ?? [];
+    const env = sol.envelope;
+    if (!env) throw new Error('no envelope');
+    expect(sol.warnings.map((w) => w.code)).toContain('SN_COMBINATIONS_ABRIDGED');
+    expect(combos).toHaveLength(2000);
+    // Every combination keeps all its reactions; the segments are split among the combinations that govern them.
+    for (const c of combos) expect(c.reactions.map((r) => r.support)).toEqual(['A', 'B']);
+    const listed = combos.flatMap((c) => c.segments.map((g) => ({ c: c.id, g })));
+    const segs = env.shafts[0].segments;
+    expect(new Set(listed.map((x) => x.g.index)).size).toBe(segs.length);
+    for (const g of segs) {
+      const mine = listed.filter((x) => x.g.index === g.index);
+      // Uniform segments: the combination of the peak |T| is that of the stress; listed once.
+      expect(mine.map((x) => x.c)).toEqual([g.combination]);
+      expect(mine[0].g.maxAbsTorque).toBe(g.maxAbsTorque);
+      expect(mine[0].g.layers[0].maxShear).toBe(g.layers[0].maxShear);
+    }
+    // Each shear check once, under the combination of its layer's envelope, with the envelope's utilisation.
+    const checks = combos.flatMap((c) => c.checks.map((k) => ({ c: c.id, k })));
+    expect(checks).toHaveLength(segs.length);
+    for (const { c, k } of checks) {
+      const g = segs[k.segment as number];
+      expect(c).toBe(g.layers[0].combination);
+      expect(k.utilisation).toBe(g.layers[0].utilisation);
+    }
+    // Spot checks against the combination solved and shown on its own (its own right-hand side): to 1e-12.
+    for (const id of ['k0', 'k777', 'k1999', listed[0].c]) {
+      const alone = solveModel(m, { combination: id });
+      const scale = maxAbs(alone.shafts[0].segments.map((g) => g.maxAbsTorque), alone.reactions.map((r) => r.torque));
+      const mine = combos.find((c) => c.id === id) as NonNullable<Solution['combinations']>[number];
+      expectClose(mine.reactions.map((r) => r.torque), alone.reactions.map((r) => r.torque), scale, `${id} reactions`);
+      expectClose(mine.segments.map((g) => g.maxAbsTorque), mine.segments.map((g) => alone.shafts[0].segments[g.index].maxAbsTorque), scale, `${id} segment peaks`);
+      expectClose(mine.segments.map((g) => g.twist), mine.segments.map((g) => alone.shafts[0].segments[g.index].twist), maxAbs(alone.shafts[0].stations.map((s) => s.rotation)), `${id} twists`);
+    }
+    // The JSON text writer says the same as the object writer.
+    let text = '';
+    solveModelJson(m, (t) => (text += t));
+    expect(text).toBe(JSON.stringify(sol));
+  });
+
+  it('50 combinations of the same model (3,000 items): every item of every combination, no warning', () => {
+    const sol = solveModel(manyCombinations(50));
+    expect(sol.warnings.map((w) => w.code)).not.toContain('SN_COMBINATIONS_ABRIDGED');
+    for (const c of sol.combinations ?? []) {
+      expect(c.segments).toHaveLength(60);
+      expect(c.checks).toHaveLength(60);
     }
   });
 });

@@ -11,6 +11,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { Model } from '../../shared-types/model.js';
 import type { Solution } from '../../shared-types/solution.js';
 import { loadLpSolver, solveModel, type LpSolver } from '../../server/engine/index.js';
+import { COLLAPSE_ALL_UP_TO, COLLAPSE_FEWEST } from '../../server/engine/overload.js';
 import { randomModel } from './random-models.js';
 
 let lp: LpSolver;
@@ -90,5 +91,85 @@ describe.each(seeds)('random system %i', (seed) => {
     const os = overload(solveModel(stripped, { lp }));
     if (os.collapseFactor === null) expect(oh.collapseFactor).toBeNull();
     else expect(Math.abs((oh.collapseFactor as number) - os.collapseFactor)).toBeLessThanOrEqual(1e-6 * os.collapseFactor);
+  });
+});
+
+describe('overload of many combinations (random systems with load cases)', () => {
+  /** The random model with its loads spread over two cases and `n` seeded combinations (factors −1.5 … 1.5). */
+  function cased(seed: number, n: number): Model {
+    const m = withYield(randomModel(seed)) as Model & Record<string, unknown>;
+    let r = seed;
+    const rand = () => ((r = (r * 1103515245 + 12345) >>> 0) / 4294967296);
+    const ids = ['p', 'q'];
+    const nT = (m.torques ?? []).length;
+    const torques = (m.torques ?? []).map((t, k) => ({ ...t, case: ids[k % 2] }));
+    const distributedTorques = (m.distributedTorques ?? []).map((d, k) => ({ ...d, case: ids[(nT + k) % 2] }));
+    const used = ids.filter((id) => [...torques, ...distributedTorques].some((x) => x.case === id));
+    return {
+      ...m,
+      loadCases: used.map((id) => ({ id })),
+      torques,
+      distributedTorques,
+      combinations: Array.from({ length: n }, (_, k) => ({ id: `c${k}`, factors: Object.fromEntries(used.map((id) => [id, 3 * rand() - 1.5])) })),
+    } as Model;
+  }
+  /** The combination's loads typed into a model without load cases. */
+  function typedIn(m: Model, c: { factors: Record<string, number> }): Model {
+    const f = (x: { case?: string }) => c.factors[x.case as string] ?? 0;
+    const plain = scaled({ ...m, torques: [], distributedTorques: [] }, 1) as Model & Record<string, unknown>;
+    delete plain.loadCases;
+    delete plain.combinations;
+    return {
+      ...plain,
+      torques: (m.torques ?? []).map(({ case: _c, ...t }) => (t.power !== undefined ? { ...t, power: f({ case: _c }) * (t.power as number) } : { ...t, torque: f({ case: _c }) * (t.torque as number) })),
+      distributedTorques: (m.distributedTorques ?? []).map(({ case: _c, ...d }) => ({ ...d, start: f({ case: _c }) * (d.start as number), end: f({ case: _c }) * (d.end as number) })),
+    } as Model;
+  }
+
+  it.each([7101, 7104, 7107])('seed %i: each combination’s factors are those of its loads typed in; few combinations: every collapse sought', (seed) => {
+    const m = cased(seed, 4);
+    const sol = solveModel(m, { lp });
+    const combos = sol.combinations ?? [];
+    expect(sol.warnings.map((w) => w.code)).not.toContain('SN_OVERLOAD_OMITTED');
+    for (const [k, c] of combos.entries()) {
+      const o = c.overload;
+      const p = solveModel(typedIn(m, (m.combinations ?? [])[k] as never), { lp }).overload;
+      if (!o || !p) {
+        expect(o).toEqual(p);
+        continue;
+      }
+      if (p.firstYieldFactor === null) expect(o.firstYieldFactor).toBeNull();
+      else expect(Math.abs((o.firstYieldFactor as number) - p.firstYieldFactor)).toBeLessThanOrEqual(1e-9 * p.firstYieldFactor);
+      expect(o.collapse).toBe(p.collapse);
+      if (p.collapseFactor === null) expect(o.collapseFactor).toBeNull();
+      else expect(Math.abs((o.collapseFactor as number) - p.collapseFactor)).toBeLessThanOrEqual(1e-6 * p.collapseFactor);
+    }
+  });
+
+  it('over COLLAPSE_ALL_UP_TO combinations × elements: collapse for the one shown and the COLLAPSE_FEWEST nearest to yield, "omitted" for the rest', () => {
+    const m = cased(7101, 1);
+    const elements = solveModel(m).shafts.reduce((n, s) => n + s.stations.length - 1, 0);
+    const n = Math.floor(COLLAPSE_ALL_UP_TO / elements) + 1;
+    const many = cased(7101, n);
+    const sol = solveModel(many, { lp, combination: 'c3' });
+    const combos = sol.combinations ?? [];
+    const warning = sol.warnings.find((w) => w.code === 'SN_OVERLOAD_OMITTED');
+    expect(warning?.message).toContain(`${n} combinations × ${elements} elements`);
+    const sought = combos.filter((c) => c.overload?.collapse !== 'omitted').map((c) => c.id);
+    const nearest = combos
+      .filter((c) => c.id !== 'c3' && c.overload?.firstYieldFactor != null)
+      .sort((a, b) => (a.overload?.firstYieldFactor as number) - (b.overload?.firstYieldFactor as number))
+      .slice(0, COLLAPSE_FEWEST)
+      .map((c) => c.id);
+    expect(new Set(sought)).toEqual(new Set(['c3', ...nearest]));
+    for (const c of combos) if (c.overload?.collapse === 'omitted') expect(c.overload.collapseFactor).toBeNull();
+    // One sought and one omitted, against their loads typed in.
+    for (const id of [nearest[0], combos.find((c) => c.overload?.collapse === 'omitted')?.id as string]) {
+      const k = combos.findIndex((c) => c.id === id);
+      const o = combos[k].overload as NonNullable<Solution['overload']>;
+      const p = solveModel(typedIn(many, (many.combinations ?? [])[k] as never), { lp }).overload as NonNullable<Solution['overload']>;
+      expect(Math.abs((o.firstYieldFactor as number) - (p.firstYieldFactor as number))).toBeLessThanOrEqual(1e-9 * (p.firstYieldFactor as number));
+      if (o.collapse !== 'omitted') expect(Math.abs((o.collapseFactor as number) - (p.collapseFactor as number))).toBeLessThanOrEqual(1e-6 * (p.collapseFactor as number));
+    }
   });
 });

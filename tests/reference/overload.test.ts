@@ -254,10 +254,10 @@ describe('what the overload leaves alone', () => {
 });
 
 describe('overload with load cases', () => {
-  it('of the combination shown equals that of a model carrying its factored loads, with SN_OVERLOAD_OMITTED for the rest', async () => {
+  it('of every combination equals that of a model carrying its factored loads (the shown one at the top level too)', async () => {
     // A bar fixed at both ends (d40 steel, τy = 170 MPa) with two load cases and a prescribed end
-    // rotation (invented). Closed form: the factors are those of one load state, so the shown combination
-    // "peak" (1.35·run + 1.0·jam) must give exactly the factors of the same bar with those loads typed in.
+    // rotation (invented). Closed form: the factors are those of one load state, so each combination
+    // (1.0·run; 1.35·run + 1.0·jam; −0.6·run + 2·jam) must give the factors of the same bar with its loads typed in.
     const lp = await loadLpSolver();
     const base = {
       format: 'shaftnet/1',
@@ -270,14 +270,12 @@ describe('overload with load cases', () => {
         { id: 'B', shaft: 's', at: 1, kind: 'fixed', rotation: 0.002 },
       ],
     };
+    const factors: Record<string, { run: number; jam: number }> = { service: { run: 1, jam: 0 }, peak: { run: 1.35, jam: 1 }, reverse: { run: -0.6, jam: 2 } };
     const withCases = solveModel(
       {
         ...base,
         loadCases: [{ id: 'run' }, { id: 'jam' }],
-        combinations: [
-          { id: 'service', factors: { run: 1 } },
-          { id: 'peak', factors: { run: 1.35, jam: 1 } },
-        ],
+        combinations: Object.entries(factors).map(([id, f]) => ({ id, factors: f })),
         torques: [
           { id: 'T1', case: 'run', shaft: 's', at: 0.4, torque: 300 },
           { id: 'T2', case: 'jam', shaft: 's', at: 0.7, torque: -500 },
@@ -285,26 +283,31 @@ describe('overload with load cases', () => {
       },
       { lp, combination: 'peak' },
     );
-    const plain = solveModel(
-      {
-        ...base,
-        torques: [
-          { id: 'T1', shaft: 's', at: 0.4, torque: 1.35 * 300 },
-          { id: 'T2', shaft: 's', at: 0.7, torque: -500 },
-        ],
-      },
-      { lp },
-    );
-    const o = withCases.overload!;
-    const p = plain.overload!;
-    expect(o.firstYieldFactor).not.toBeNull();
-    expectClose(o.firstYieldFactor, p.firstYieldFactor!, 1e-12);
-    // 1e-9: the LP solver's own optimality tolerance, not round-off (common practice, no source).
-    expectClose(o.collapseFactor, p.collapseFactor!, 1e-9);
-    expect(o.plasticAt).toEqual(p.plasticAt);
-    expect(o.firstYield).toEqual(p.firstYield);
-    expect(withCases.combinations!.every((c) => (c as { overload?: unknown }).overload === undefined)).toBe(true);
-    expect(withCases.warnings.map((w) => w.code)).toContain('SN_OVERLOAD_OMITTED');
-    expect(plain.warnings.map((w) => w.code)).not.toContain('SN_OVERLOAD_OMITTED');
+    const plainOf = (f: { run: number; jam: number }) =>
+      solveModel(
+        {
+          ...base,
+          torques: [
+            { id: 'T1', shaft: 's', at: 0.4, torque: f.run * 300 },
+            { id: 'T2', shaft: 's', at: 0.7, torque: f.jam * -500 },
+          ],
+        },
+        { lp },
+      );
+    const same = (o: NonNullable<typeof withCases.overload>, p: NonNullable<typeof withCases.overload>) => {
+      expect(o.firstYieldFactor).not.toBeNull();
+      expectClose(o.firstYieldFactor, p.firstYieldFactor!, 1e-12);
+      // 1e-9: the LP solver's own optimality tolerance, not round-off (common practice, no source).
+      expectClose(o.collapseFactor, p.collapseFactor!, 1e-9);
+      expect(o.collapse).toBe(p.collapse);
+      expect(o.plasticAt).toEqual(p.plasticAt);
+      expect(o.firstYield).toEqual(p.firstYield);
+    };
+    same(withCases.overload!, plainOf(factors.peak).overload!);
+    for (const c of withCases.combinations!) same(c.overload!, plainOf(factors[c.id]).overload!);
+    // The shown one's entry is the top level's.
+    expect(withCases.combinations!.find((c) => c.id === 'peak')!.overload).toEqual(withCases.overload);
+    // Three combinations of one element-chain: every collapse factor is sought, nothing omitted.
+    expect(withCases.warnings.map((w) => w.code)).not.toContain('SN_OVERLOAD_OMITTED');
   });
 });
