@@ -24,24 +24,11 @@
 import type { Page } from 'playwright-core';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { browserSuite, chooseCell, hasBrowser, shot, typeCell, waitFresh, warnIfNoBrowser } from '../helpers/browser-suite.js';
+import { fixedBarTwoTorques } from '../helpers/models.js';
 
 warnIfNoBrowser('the browser test of load cases and combinations');
 
-const MODEL = {
-  format: 'shaftnet/1',
-  name: 'Two cases, two combinations (invented)',
-  materials: [{ id: 'steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
-  sections: [{ id: 'd50', shape: 'solid', d: '50 mm' }],
-  shafts: [{ id: 'line', segments: [{ length: '500 mm', section: 'd50', material: 'steel' }, { length: '500 mm', section: 'd50', material: 'steel' }] }],
-  supports: [
-    { id: 'A', shaft: 'line', at: 0, kind: 'fixed' },
-    { id: 'B', shaft: 'line', at: '1 m', kind: 'fixed' },
-  ],
-  torques: [
-    { id: 'T1', shaft: 'line', at: '300 mm', torque: '360 N*m' },
-    { id: 'T2', shaft: 'line', at: '700 mm', torque: '-600 N*m' },
-  ],
-};
+const MODEL = fixedBarTwoTorques('Two cases, two combinations (invented)');
 
 const L = 1;
 /** Reactions (at z = 0, at z = L) of the fixed–fixed uniform bar under torques {T0, a}: closed form above. */

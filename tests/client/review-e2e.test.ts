@@ -32,24 +32,11 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { describe, expect, it } from 'vitest';
 import { ROOT, browserSuite, hasBrowser, shot, typeCell, waitFresh, warnIfNoBrowser } from '../helpers/browser-suite.js';
+import { fixedBarTwoTorques } from '../helpers/models.js';
 
 warnIfNoBrowser('the browser test of review, sheet and compare');
 
-const MODEL = {
-  format: 'shaftnet/1',
-  name: 'Reviewed line shaft (invented)',
-  materials: [{ id: 'steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
-  sections: [{ id: 'd50', shape: 'solid', d: '50 mm' }],
-  shafts: [{ id: 'line', segments: [{ length: '500 mm', section: 'd50', material: 'steel' }, { length: '500 mm', section: 'd50', material: 'steel' }] }],
-  supports: [
-    { id: 'A', shaft: 'line', at: 0, kind: 'fixed' },
-    { id: 'B', shaft: 'line', at: '1 m', kind: 'fixed' },
-  ],
-  torques: [
-    { id: 'T1', shaft: 'line', at: '300 mm', torque: '360 N*m' },
-    { id: 'T2', shaft: 'line', at: '700 mm', torque: '-600 N*m' },
-  ],
-};
+const MODEL = fixedBarTwoTorques('Reviewed line shaft (invented)');
 
 const G = 79.3e9; // Pa
 const D2 = 0.055; // m, the diameter of revision 2
