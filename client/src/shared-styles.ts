@@ -13,3 +13,22 @@ export const editorPartStyles = css`
   .hint { color: #6b665e; font-size: 12px; margin: 2px 0 6px; }
   .invalid { border-color: #b3261e; background: #fdf0ef; }
 `;
+
+/** Result tables and their headings: numbers aligned, an over-limit row marked, pass and fail words (sn-results, sn-dynamics-results). */
+export const resultTableStyles = css`
+  :host { display: block; }
+  h3 { font-size: 14px; margin: 14px 0 4px; color: #1d3a4a; }
+  h4 { font-size: 13px; margin: 10px 0 2px; color: #1d3a4a; }
+  table { border-collapse: collapse; font-size: 13px; margin-bottom: 4px; }
+  th { text-align: left; font-size: 12px; color: #4a5258; font-weight: 600; padding: 2px 8px 2px 0; border-bottom: 1px solid #dcd7cd; white-space: nowrap; }
+  td { padding: 2px 8px 2px 0; border-bottom: 1px solid #ece8e0; white-space: nowrap; }
+  td.num { text-align: right; font-variant-numeric: tabular-nums; }
+  tr.over td { background: #fdf0ef; font-weight: 600; }
+  tr.over td:first-child { box-shadow: inset 4px 0 0 #8c1d18; padding-left: 6px; }
+  .fail { color: #b3261e; font-weight: 600; }
+  .ok { color: #1f5a3a; }
+  .muted { color: #6b665e; font-size: 12px; }
+  .wide { overflow-x: auto; max-width: 100%; }
+  .nowrap { white-space: nowrap; }
+  .picker select { font: inherit; margin-left: 6px; }
+`;
