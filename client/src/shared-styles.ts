@@ -32,3 +32,11 @@ export const resultTableStyles = css`
   .nowrap { white-space: nowrap; }
   .picker select { font: inherit; margin-left: 6px; }
 `;
+
+/** An SVG chart: scaled to its box, tick labels and the title (sn-plot, sn-dynamics-chart). */
+export const chartStyles = css`
+  :host { display: block; }
+  svg { width: 100%; height: auto; display: block; font-family: system-ui, sans-serif; }
+  .tick { font-size: 11px; fill: #6b665e; }
+  .title { font-size: 12.5px; font-weight: 600; fill: #1d3a4a; }
+`;

@@ -42,7 +42,6 @@ import {
   fromRadPerS,
   hzToRpm,
   interferenceDiagram,
-  linearScale,
   localPeaks,
   modeShape,
   parseRateInput,
@@ -50,10 +49,10 @@ import {
   rateText,
   readRate,
   sharesText,
-  ticks,
   toRadPerS,
   worstSegments,
 } from '../../client/src/dynamics-results.js';
+import { linearScale, niceTicks } from '../../client/src/chart-scale.js';
 
 const REL = 1e-12; // relative: arithmetic on a few doubles, round-off only
 
@@ -291,8 +290,8 @@ describe('scales, ticks, mode shapes and peaks', () => {
   });
 
   it('puts round ticks over a range (step 500 over 0 … 2475 in 8 parts)', () => {
-    expect(ticks(0, 2475, 8)).toEqual([0, 500, 1000, 1500, 2000]);
-    expect(ticks(-1.1, 1.1, 5)).toEqual([-1, -0.5, 0, 0.5, 1]);
+    expect(niceTicks(0, 2475, 8)).toEqual([0, 500, 1000, 1500, 2000]);
+    expect(niceTicks(-1.1, 1.1, 5)).toEqual([-1, -0.5, 0, 0.5, 1]);
   });
 
   it('draws a mode along a shaft at its stations, or at the z the engine gives', () => {
