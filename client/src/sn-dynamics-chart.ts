@@ -1,6 +1,7 @@
 import { LitElement, css, html, nothing, svg } from 'lit';
 import { formatNumber } from './units.js';
-import { linearScale, ticks } from './dynamics-results.js';
+import { linearScale, niceTicks } from './chart-scale.js';
+import { chartStyles } from './shared-styles.js';
 
 const PW = 680; // px, viewBox width
 const PH = 240; // px, viewBox height
@@ -25,14 +26,10 @@ export interface ChartMark { x: number; y: number; label: string; fail?: boolean
  * converts from SI). No pointer reading: the tables beside each chart hold the numbers.
  */
 export class SnDynamicsChart extends LitElement {
-  static override styles = css`
-    :host { display: block; }
-    svg { width: 100%; height: auto; display: block; font-family: system-ui, sans-serif; }
-    .tick { font-size: 11px; fill: #6b665e; }
-    .title { font-size: 12.5px; font-weight: 600; fill: #1d3a4a; }
+  static override styles = [chartStyles, css`
     .lbl { font-size: 11px; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
     .legend { font-size: 11px; fill: #4a5258; }
-  `;
+  `];
 
   static override properties = {
     label: { type: String },
@@ -79,8 +76,8 @@ export class SnDynamicsChart extends LitElement {
     const X = linearScale(this.xMin, this.xMax, ML, PW - MR);
     const Y = linearScale(this.yMin, this.yMax, PH - MB, MT);
     const clipX = (x: number) => Math.min(PW - MR, Math.max(ML, X(x)));
-    const xt = ticks(this.xMin, this.xMax, 8);
-    const yt = ticks(this.yMin, this.yMax, 5);
+    const xt = niceTicks(this.xMin, this.xMax, 8);
+    const yt = niceTicks(this.yMin, this.yMax, 5);
     const legend = this.series.filter((s) => s.label);
     return html`<svg viewBox="0 0 ${PW} ${PH}" role="img" aria-label=${this.label}>
       <text class="title" x=${ML} y="14">${this.label}</text>

@@ -3,6 +3,7 @@ import { live } from 'lit/directives/live.js';
 import { type EditModel, getAt } from './model-edits.js';
 import { type Column, type EditDetail, type RowDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
+import { editorPartStyles } from './shared-styles.js';
 import {
   type DynamicsInput,
   type ModesBy,
@@ -34,24 +35,19 @@ type Row = Record<string, unknown>;
  * @fires sn-edit - {pointer, value}: a field of /dynamics changed (value undefined removes it)
  */
 export class SnDynamicsPanel extends LitElement {
-  static override styles = css`
-    :host { display: block; }
-    details { border-top: 1px solid #dcd7cd; padding: 6px 0 8px; }
-    summary { cursor: pointer; font-weight: 600; color: #1d3a4a; padding: 2px 0; user-select: none; }
-    .hint { color: #6b665e; font-size: 12px; margin: 2px 0 6px; }
+  static override styles = [editorPartStyles, css`
     .grid { display: grid; grid-template-columns: max-content 1fr; gap: 4px 8px; align-items: start; font-size: 13px; margin: 4px 0; }
     .grid > label { padding-top: 3px; color: #4a5258; }
     .row { display: flex; flex-wrap: wrap; gap: 4px; align-items: center; }
     input, select { font: inherit; font-size: 13px; padding: 2px 4px; border: 1px solid #c8c4bb; border-radius: 3px; background: #fff; box-sizing: border-box; }
     input:focus, select:focus { outline: 2px solid #2b6f8e; outline-offset: -1px; border-color: #2b6f8e; }
-    .invalid { border-color: #b3261e; background: #fdf0ef; }
     .msg { color: #b3261e; font-size: 11px; max-width: 26em; line-height: 1.25; }
     button { font: inherit; font-size: 12px; cursor: pointer; border: 1px solid #c8c4bb; background: #fff; border-radius: 3px; padding: 2px 8px; }
     button.remove-dyn { color: #8c1d18; margin-left: 6px; }
     h4 { margin: 8px 0 2px; font-size: 12px; font-weight: 600; color: #4a5258; }
     .unit { color: #6b665e; font-size: 12px; }
     @media print { button { display: none; } }
-  `;
+  `];
 
   static override properties = {
     model: { attribute: false },

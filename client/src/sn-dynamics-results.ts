@@ -20,6 +20,7 @@ import {
 } from './dynamics-results.js';
 import type { ChartBand, ChartLine, ChartMark, ChartSeries } from './sn-dynamics-chart.js';
 import './sn-dynamics-chart.js';
+import { resultTableStyles } from './shared-styles.js';
 
 /** Colours of the order lines, in turn. */
 const ORDER_COLOURS = ['#2b6f8e', '#2f7d5b', '#8a5a00', '#6a3d9a', '#b15928', '#1f78b4'];
@@ -43,30 +44,15 @@ export const DYNAMICS_CAUTIONS: readonly string[] = [
  * solution has no modes.
  */
 export class SnDynamicsResults extends LitElement {
-  static override styles = css`
-    :host { display: block; }
-    h3 { font-size: 14px; margin: 14px 0 4px; color: #1d3a4a; }
-    h4 { font-size: 13px; margin: 10px 0 2px; color: #1d3a4a; }
-    table { border-collapse: collapse; font-size: 13px; margin-bottom: 4px; }
-    th { text-align: left; font-size: 12px; color: #4a5258; font-weight: 600; padding: 2px 8px 2px 0; border-bottom: 1px solid #dcd7cd; white-space: nowrap; }
-    td { padding: 2px 8px 2px 0; border-bottom: 1px solid #ece8e0; white-space: nowrap; }
-    td.num { text-align: right; font-variant-numeric: tabular-nums; }
+  static override styles = [resultTableStyles, css`
     td.where { white-space: normal; min-width: 10em; }
-    tr.over td { background: #fdf0ef; font-weight: 600; }
-    tr.over td:first-child { box-shadow: inset 4px 0 0 #8c1d18; padding-left: 6px; }
-    .fail { color: #b3261e; font-weight: 600; }
-    .ok { color: #1f5a3a; }
-    .muted { color: #6b665e; font-size: 12px; }
-    .wide { overflow-x: auto; max-width: 100%; }
     .picker { display: flex; flex-wrap: wrap; gap: 4px 12px; align-items: center; font-size: 13px; margin: 4px 0; }
-    .picker select { font: inherit; margin-left: 6px; }
     .charts { max-width: 760px; }
     aside { border-left: 4px solid #d48a1a; background: #fbf5e8; padding: 4px 12px; font-size: 12.5px; color: #4a4030; margin: 4px 0 8px; }
     aside ul { margin: 2px 0; padding-left: 18px; }
     .summary { font-size: 13.5px; margin: 4px 0; }
-    .nowrap { white-space: nowrap; }
     @media print { select { display: none; } }
-  `;
+  `];
 
   static override properties = {
     solution: { attribute: false },

@@ -5,6 +5,7 @@ import { type EditModel, combinationsOf, loadCasesOf, stressRaisersOf } from './
 import { SECTION_SHAPES, type SectionLike, type SectionProperties, sectionPropertiesById } from './section-geometry.js';
 import { type Column, type EditDetail, messageId } from './sn-table.js';
 import type { UnitSystem } from './units.js';
+import { editorPartStyles } from './shared-styles.js';
 import './sn-table.js';
 import './sn-section-view.js';
 import './sn-dynamics-panel.js';
@@ -25,12 +26,8 @@ type Row = Record<string, unknown>;
  * @fires sn-draft - bubbled from the tables
  */
 export class SnEditor extends LitElement {
-  static override styles = css`
-    :host { display: block; }
-    details { border-top: 1px solid #dcd7cd; padding: 6px 0 8px; }
-    summary { cursor: pointer; font-weight: 600; color: #1d3a4a; padding: 2px 0; user-select: none; }
+  static override styles = [editorPartStyles, css`
     summary .count { color: #8a857c; font-weight: 400; margin-left: 4px; }
-    .hint { color: #6b665e; font-size: 12px; margin: 2px 0 6px; }
     .sub { margin: 8px 0 4px 14px; }
     .sub h4 { margin: 0 0 2px; font-size: 12px; font-weight: 600; color: #4a5258; }
     .cards { display: flex; flex-direction: column; gap: 6px; margin: 8px 0 4px; }
@@ -40,9 +37,8 @@ export class SnEditor extends LitElement {
     label.field { display: grid; grid-template-columns: 4.5em 1fr; gap: 6px; align-items: start; margin: 4px 0; font-size: 13px; }
     input.name, textarea { font: inherit; font-size: 13px; padding: 3px 5px; border: 1px solid #c8c4bb; border-radius: 3px; width: 100%; box-sizing: border-box; }
     textarea { min-height: 3.2em; resize: vertical; }
-    .invalid { border-color: #b3261e; background: #fdf0ef; }
     .msg { color: #b3261e; font-size: 12px; }
-  `;
+  `];
 
   static override properties = {
     model: { attribute: false },

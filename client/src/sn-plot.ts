@@ -1,6 +1,8 @@
 import { LitElement, css, html, nothing, svg } from 'lit';
 import { stepCursor, valueAt } from './diagram-readout.js';
 import { type FieldKind, type UnitSystem, displayUnit, formatNumber, formatQuantity, prettyUnit, toDisplay } from './units.js';
+import { chartStyles } from './shared-styles.js';
+import { linearScale, niceTicks } from './chart-scale.js';
 
 const PW = 680; // px, viewBox width
 const PH = 150; // px, viewBox height
@@ -8,17 +10,6 @@ const ML = 58; // px, left margin for tick labels
 const MR = 12;
 const MT = 20;
 const MB = 28;
-
-/** Round tick values covering [lo, hi]. */
-export function niceTicks(lo: number, hi: number, count = 5): number[] {
-  if (!(hi > lo)) return [lo];
-  const raw = (hi - lo) / count;
-  const p = Math.pow(10, Math.floor(Math.log10(raw)));
-  const step = [1, 2, 2.5, 5, 10].map((k) => k * p).find((s) => s >= raw) ?? 10 * p;
-  const out: number[] = [];
-  for (let v = Math.ceil(lo / step - 1e-9) * step; v <= hi + step * 1e-9; v += step) out.push(Math.abs(v) < step * 1e-9 ? 0 : v);
-  return out;
-}
 
 /** A local value marked on a diagram beside its curve (a stress raiser's local peak), SI. */
 export interface PlotPeak { z: number; value: number; label: string }
@@ -40,16 +31,12 @@ export interface CursorDetail { z: number | null }
  * @fires sn-cursor - {z}: the pointer or a key moved the cursor (null: it left)
  */
 export class SnPlot extends LitElement {
-  static override styles = css`
-    :host { display: block; }
-    svg { width: 100%; height: auto; display: block; font-family: system-ui, sans-serif; }
-    .tick { font-size: 11px; fill: #6b665e; }
-    .title { font-size: 12.5px; font-weight: 600; fill: #1d3a4a; }
+  static override styles = [chartStyles, css`
     .mark { font-size: 11.5px; font-weight: 600; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
     .cursor { font-size: 11.5px; font-weight: 600; fill: #1d3a4a; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
     svg:focus { outline: 2px solid #2b6f8e; outline-offset: 1px; }
     svg:focus-visible { outline: 2px solid #2b6f8e; }
-  `;
+  `];
 
   static override properties = {
     z: { attribute: false },
@@ -117,8 +104,8 @@ export class SnPlot extends LitElement {
     const pad = (y1 - y0) * 0.08;
     y0 -= y0 < 0 ? pad : 0;
     y1 += pad;
-    const X = (x: number) => ML + ((x - x0) / (x1 - x0)) * (PW - ML - MR);
-    const Y = (y: number) => PH - MB - ((y - y0) / (y1 - y0)) * (PH - MT - MB);
+    const X = linearScale(x0, x1, ML, PW - MR);
+    const Y = linearScale(y0, y1, PH - MB, MT);
     const pts = xs.map((x, i) => `${X(x).toFixed(2)},${Y(ys[i]).toFixed(2)}`).join(' ');
     const area = `${X(xs[0]).toFixed(2)},${Y(0).toFixed(2)} ${pts} ${X(xs[xs.length - 1]).toFixed(2)},${Y(0).toFixed(2)}`;
     const bandPts = band

@@ -12,6 +12,7 @@ import './sn-plot.js';
 import './sn-segment-table.js';
 import './sn-station-table.js';
 import './sn-dynamics-results.js';
+import { resultTableStyles } from './shared-styles.js';
 
 /** Where the results stand against the model on screen. */
 export type ResultState = 'none' | 'fresh' | 'stale' | 'solving' | 'invalid' | 'failed';
@@ -50,8 +51,7 @@ function peakIndex(values: readonly number[]): number {
  * @fires sn-select - {pointer}: a result row for a model item was clicked
  */
 export class SnResults extends LitElement {
-  static override styles = css`
-    :host { display: block; }
+  static override styles = [resultTableStyles, css`
     .banner { padding: 6px 10px; border-radius: 4px; margin: 0 0 8px; font-size: 13px; display: flex; gap: 8px; align-items: center; }
     .banner.fresh { background: #e3f1e8; color: #1f5a3a; }
     .banner.stale, .banner.solving { background: #fdf1d8; color: #7a4f00; }
@@ -59,21 +59,11 @@ export class SnResults extends LitElement {
     .spinner { width: 10px; height: 10px; border: 2px solid currentColor; border-right-color: transparent; border-radius: 50%; animation: spin 0.8s linear infinite; }
     @keyframes spin { to { transform: rotate(360deg); } }
     .body.dim { opacity: 0.45; filter: grayscale(0.6); }
-    h3 { font-size: 14px; margin: 14px 0 4px; color: #1d3a4a; }
-    h4 { font-size: 13px; margin: 10px 0 2px; color: #1d3a4a; }
-    table { border-collapse: collapse; font-size: 13px; margin-bottom: 4px; }
-    th { text-align: left; font-size: 12px; color: #4a5258; font-weight: 600; padding: 2px 8px 2px 0; border-bottom: 1px solid #dcd7cd; white-space: nowrap; }
-    td { padding: 2px 8px 2px 0; border-bottom: 1px solid #ece8e0; white-space: nowrap; }
-    td.num { text-align: right; font-variant-numeric: tabular-nums; }
     tr.click { cursor: pointer; }
     tr.click:hover td { background: #f3efe6; }
     tr.selected td { background: #fbeed3; }
-    .fail { color: #b3261e; font-weight: 600; }
-    .ok { color: #1f5a3a; }
     .bar { display: inline-block; height: 8px; background: #2b6f8e; vertical-align: middle; border-radius: 2px; }
     .bar.over { background: repeating-linear-gradient(135deg, #b3261e 0 4px, #f3c1bc 4px 7px); outline: 1px solid #8c1d18; }
-    tr.over td { background: #fdf0ef; font-weight: 600; }
-    tr.over td:first-child { box-shadow: inset 4px 0 0 #8c1d18; padding-left: 6px; }
     .status { white-space: nowrap; }
     .readout { font-size: 12.5px; color: #1d3a4a; background: #eef5f8; border-radius: 3px; padding: 3px 8px; margin: 2px 0 4px; min-height: 1.3em; font-variant-numeric: tabular-nums; }
     .readout.idle { color: #6b665e; background: none; }
@@ -81,18 +71,14 @@ export class SnResults extends LitElement {
     .barbox { display: inline-block; width: 80px; background: #ece8e0; border-radius: 2px; margin-right: 4px; vertical-align: middle; text-align: left; line-height: 0; }
     .warn { background: #fdf1d8; color: #7a4f00; padding: 4px 8px; border-radius: 4px; margin: 4px 0; font-size: 13px; }
     .plots { display: grid; grid-template-columns: 1fr; gap: 2px; max-width: 760px; }
-    .muted { color: #6b665e; font-size: 12px; }
     .picker { display: flex; flex-wrap: wrap; gap: 4px 12px; align-items: center; font-size: 13px; margin: 0 0 8px; padding: 4px 8px; background: #eef5f8; border-radius: 4px; }
-    .picker select { font: inherit; margin-left: 6px; }
     .overload { border-left: 3px solid #1d3a4a; padding: 2px 8px; margin: 6px 0 8px; }
     .overload p { margin: 2px 0; }
     .overload-line { font-size: 13.5px; color: #1d3a4a; }
     td.governs { white-space: normal; min-width: 7em; max-width: 10em; }
-    .nowrap { white-space: nowrap; }
-    .wide { overflow-x: auto; max-width: 100%; }
     .shaft { break-inside: avoid; page-break-inside: avoid; }
     @media print { .banner.fresh, .readout.idle { display: none; } .body.dim { opacity: 1; filter: none; } }
-  `;
+  `];
 
   static override properties = {
     solution: { attribute: false },

@@ -21,37 +21,14 @@
  * the right-hand rule about +z). Combinations: "service" = 1.2 × run,
  * "stop" = 0.25 × run + 1 × jam.
  */
-import { type ChildProcess, execSync } from 'node:child_process';
-import { launchChromium, spawnServer } from '../helpers/server-process.js';
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { browserSuite, chooseCell, hasBrowser, shot, typeCell, waitFresh, warnIfNoBrowser } from '../helpers/browser-suite.js';
+import { fixedBarTwoTorques } from '../helpers/models.js';
 
-const CHROMIUM = '/usr/bin/chromium';
-const ROOT = fileURLToPath(new URL('../../', import.meta.url));
-const ARTIFACTS = path.join(ROOT, 'test-artifacts');
-const hasBrowser = fs.existsSync(CHROMIUM);
+warnIfNoBrowser('the browser test of load cases and combinations');
 
-if (!hasBrowser) console.warn(`\n*** SKIPPED the browser test of load cases and combinations: no Chromium at ${CHROMIUM}. ***\n`);
-
-const MODEL = {
-  format: 'shaftnet/1',
-  name: 'Two cases, two combinations (invented)',
-  materials: [{ id: 'steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
-  sections: [{ id: 'd50', shape: 'solid', d: '50 mm' }],
-  shafts: [{ id: 'line', segments: [{ length: '500 mm', section: 'd50', material: 'steel' }, { length: '500 mm', section: 'd50', material: 'steel' }] }],
-  supports: [
-    { id: 'A', shaft: 'line', at: 0, kind: 'fixed' },
-    { id: 'B', shaft: 'line', at: '1 m', kind: 'fixed' },
-  ],
-  torques: [
-    { id: 'T1', shaft: 'line', at: '300 mm', torque: '360 N*m' },
-    { id: 'T2', shaft: 'line', at: '700 mm', torque: '-600 N*m' },
-  ],
-};
+const MODEL = fixedBarTwoTorques('Two cases, two combinations (invented)');
 
 const L = 1;
 /** Reactions (at z = 0, at z = L) of the fixed–fixed uniform bar under torques {T0, a}: closed form above. */
@@ -76,34 +53,11 @@ function close(shown: number, exact: number): void {
 }
 
 describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromium against the real server', () => {
-  let server: ChildProcess;
-  let base = '';
-  let dataDir = '';
-  let browser: Browser;
+  const suite = browserSuite('cases-e2e');
   let page: Page;
-  const errors: string[] = [];
-
-  async function waitFresh(): Promise<void> {
-    await page.locator('sn-results .banner[data-status="fresh"]').waitFor({ timeout: 20_000 });
-  }
-
-  /** Commits a cell of the editor: its text, then Tab (the one commit path). */
-  async function type(pointer: string, text: string): Promise<void> {
-    const input = page.locator(`sn-editor input[data-pointer="${pointer}"]`);
-    await input.fill(text);
-    await input.press('Tab');
-  }
-
-  async function choose(pointer: string, value: string): Promise<void> {
-    await page.locator(`sn-editor select[data-pointer="${pointer}"]`).selectOption(value);
-  }
 
   async function add(list: string): Promise<void> {
     await page.locator(`sn-editor sn-table[pointer="/${list}"] button.add`).click();
-  }
-
-  async function shot(name: string): Promise<void> {
-    await page.screenshot({ path: path.join(ARTIFACTS, `${name}.png`) });
   }
 
   async function num(selector: string, attr: string): Promise<number> {
@@ -111,22 +65,7 @@ describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromiu
   }
 
   beforeAll(async () => {
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    if (!fs.existsSync(path.join(ROOT, 'dist/server/main.js')) || !fs.existsSync(path.join(ROOT, 'dist/client/index.html'))) {
-      execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
-    }
-    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-cases-e2e-'));
-    const started = await spawnServer(path.join(ROOT, 'dist/server/main.js'), ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'], { cwd: ROOT, children: new Set(), timeoutMs: 30_000 });
-    server = started.child;
-    base = started.url;
-    browser = await launchChromium(CHROMIUM);
-    const saved = await fetch(`${base}/api/models`, {
-      method: 'POST',
-      headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ model: MODEL, author: 'E2E', message: 'cases' }),
-    });
-    expect(saved.status, await saved.clone().text()).toBe(201);
-    const { id } = (await saved.json()) as { id: string };
+    const id = await suite.saveModel(MODEL, 'E2E', 'cases');
     // What the browser will rely on, asked of the API first so that a missing piece is named (the engine and
     // route of issue 11 are built on other branches; this suite runs once they are merged).
     const cased = {
@@ -135,42 +74,27 @@ describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromiu
       combinations: [{ id: 'service', factors: { run: 1.2 } }, { id: 'stop', factors: { run: 0.25, jam: 1 } }],
       torques: MODEL.torques.map((t, i) => ({ ...t, case: i === 0 ? 'run' : 'jam' })),
     };
-    const probe = await fetch(`${base}/api/solve?combination=stop`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(cased) });
+    const probe = await fetch(`${suite.base}/api/solve?combination=stop`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(cased) });
     expect(probe.status, `the server refused a model with load cases (${await probe.clone().text()}): it needs the engine of issue 11`).toBe(200);
     expect(((await probe.json()) as { combination?: string }).combination, 'POST /api/solve?combination=stop must show that combination at the top level').toBe('stop');
-    page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
-    page.on('console', (msg) => {
-      // A second case has no loads until a torque is moved to it: the server refuses that model (400) on purpose.
-      if (msg.type() === 'error' && !(/status of 400/.test(msg.text()) && msg.location().url.includes('/api/'))) errors.push(msg.text());
-    });
-    page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
-    await page.goto(`${base}/m/${encodeURIComponent(id)}`);
-    await waitFresh();
-  });
-
-  afterAll(async () => {
-    await browser?.close();
-    if (server && server.exitCode === null) {
-      const exited = new Promise((r) => server.once('exit', r));
-      server.kill('SIGTERM');
-      await exited;
-    }
-    if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
+    // A second case has no loads until a torque is moved to it: the server refuses that model (400) on purpose.
+    page = await suite.openPage({ allowStatus: 400 });
+    await suite.openModel(page, id);
   });
 
   it('builds two cases and two combinations, and reads the envelope and the governing combinations', async () => {
     // Two cases: the first takes both torques; T2 is moved to the second.
     await add('loadCases');
-    await waitFresh();
-    await type('/loadCases/0/id', 'run');
-    await type('/loadCases/0/name', 'Rated running');
+    await waitFresh(page);
+    await typeCell(page, '/loadCases/0/id', 'run');
+    await typeCell(page, '/loadCases/0/name', 'Rated running');
     await add('loadCases');
     // A case with no loads is refused, with the case named.
     await page.locator('sn-results .banner[data-status="invalid"]').waitFor({ timeout: 20_000 });
-    await type('/loadCases/1/id', 'jam');
-    await type('/loadCases/1/name', 'Output jam');
-    await choose('/torques/1/case', 'jam');
-    await waitFresh();
+    await typeCell(page, '/loadCases/1/id', 'jam');
+    await typeCell(page, '/loadCases/1/name', 'Output jam');
+    await chooseCell(page, '/torques/1/case', 'jam');
+    await waitFresh(page);
     expect(await page.locator('sn-editor select[data-pointer="/torques/0/case"]').inputValue()).toBe('run');
     expect(await page.locator('sn-editor select[data-pointer="/torques/1/case"]').inputValue()).toBe('jam');
     // Without combinations each case is its own: the picker offers the two cases.
@@ -178,19 +102,19 @@ describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromiu
 
     // Two combinations in the factor grid (a blank factor counts 0).
     await add('combinations');
-    await type('/combinations/0/id', 'service');
-    await type('/combinations/0/name', 'Service');
-    await type('/combinations/0/factors/run', '1.2');
-    await type('/combinations/0/factors/jam', '');
+    await typeCell(page, '/combinations/0/id', 'service');
+    await typeCell(page, '/combinations/0/name', 'Service');
+    await typeCell(page, '/combinations/0/factors/run', '1.2');
+    await typeCell(page, '/combinations/0/factors/jam', '');
     await add('combinations');
-    await type('/combinations/1/id', 'stop');
-    await type('/combinations/1/name', 'Emergency stop');
-    await type('/combinations/1/factors/run', '0.25');
-    await type('/combinations/1/factors/jam', '1');
-    await waitFresh();
+    await typeCell(page, '/combinations/1/id', 'stop');
+    await typeCell(page, '/combinations/1/name', 'Emergency stop');
+    await typeCell(page, '/combinations/1/factors/run', '0.25');
+    await typeCell(page, '/combinations/1/factors/jam', '1');
+    await waitFresh(page);
     expect(await page.locator('sn-results select[data-combination-picker] option').allInnerTexts()).toEqual(['Service (service)', 'Emergency stop (stop)']);
     await page.locator('sn-editor details[data-list="loadCases"]').scrollIntoViewIfNeeded();
-    await shot('30-cases-editor-1366');
+    await shot(page, '30-cases-editor-1366');
 
     // The reactions over all combinations: least and greatest, with the combination of each.
     const service = reactions(SERVICE);
@@ -233,13 +157,13 @@ describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromiu
     close(Number(await worst(0).getAttribute('data-worst')), peak(SERVICE, [0.15, 0.4])); // 302.4 N·m
     close(Number(await worst(1).getAttribute('data-worst')), peak(STOP, [0.6, 0.85])); // 393 N·m
     await page.locator('sn-results table.checks').scrollIntoViewIfNeeded();
-    await shot('31-cases-checks-1366');
+    await shot(page, '31-cases-checks-1366');
     await page.locator('sn-results .shaft[data-shaft="line"] sn-plot').first().scrollIntoViewIfNeeded();
-    await shot('32-cases-band-1366');
+    await shot(page, '32-cases-band-1366');
 
     // The picker: the other combination's single state, solved with ?combination=stop.
     await page.locator('sn-results select[data-combination-picker]').selectOption('stop');
-    await waitFresh();
+    await waitFresh(page);
     await page.locator('sn-results table.reactions tr[data-support="A"] td.torque').waitFor();
     close(await num('sn-results table.reactions tr[data-support="A"] td.torque', 'data-si'), stop.A);
     close(await num('sn-results table.reactions tr[data-support="B"] td.torque', 'data-si'), stop.B);
@@ -247,7 +171,7 @@ describe.runIf(hasBrowser)('load cases, combinations and the envelope in Chromiu
     // The band is the same whichever combination is shown.
     close(Number(await band.getAttribute('data-hi')), Math.max(...all));
     await page.locator('sn-results select[data-combination-picker]').scrollIntoViewIfNeeded();
-    await shot('33-cases-picker-1366');
-    expect(errors).toEqual([]);
+    await shot(page, '33-cases-picker-1366');
+    expect(suite.errors).toEqual([]);
   });
 });

@@ -14,14 +14,9 @@
  * Chromium that part is skipped with a clear message (tests/client/e2e.test.ts
  * registers the failure that SHAFTNET_REQUIRE_BROWSER=1 asks for).
  */
-import { execSync } from 'node:child_process';
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { launchChromium, spawnServer } from '../helpers/server-process.js';
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { browserSuite, hasBrowser, warnIfNoBrowser } from '../helpers/browser-suite.js';
 import type { Model } from '../../shared-types/model.js';
 import type { Solution } from '../../shared-types/solution.js';
 import { History, applyEdit } from '../../client/src/model-edits.js';
@@ -47,7 +42,6 @@ import {
   fromRadPerS,
   hzToRpm,
   interferenceDiagram,
-  linearScale,
   localPeaks,
   modeShape,
   parseRateInput,
@@ -55,10 +49,10 @@ import {
   rateText,
   readRate,
   sharesText,
-  ticks,
   toRadPerS,
   worstSegments,
 } from '../../client/src/dynamics-results.js';
+import { linearScale, niceTicks } from '../../client/src/chart-scale.js';
 
 const REL = 1e-12; // relative: arithmetic on a few doubles, round-off only
 
@@ -296,8 +290,8 @@ describe('scales, ticks, mode shapes and peaks', () => {
   });
 
   it('puts round ticks over a range (step 500 over 0 … 2475 in 8 parts)', () => {
-    expect(ticks(0, 2475, 8)).toEqual([0, 500, 1000, 1500, 2000]);
-    expect(ticks(-1.1, 1.1, 5)).toEqual([-1, -0.5, 0, 0.5, 1]);
+    expect(niceTicks(0, 2475, 8)).toEqual([0, 500, 1000, 1500, 2000]);
+    expect(niceTicks(-1.1, 1.1, 5)).toEqual([-1, -0.5, 0, 0.5, 1]);
   });
 
   it('draws a mode along a shaft at its stations, or at the z the engine gives', () => {
@@ -329,17 +323,11 @@ describe('scales, ticks, mode shapes and peaks', () => {
   });
 });
 
-const CHROMIUM = '/usr/bin/chromium';
-const ROOT = fileURLToPath(new URL('../../', import.meta.url));
-const hasBrowser = fs.existsSync(CHROMIUM);
-if (!hasBrowser) console.warn(`\n*** SKIPPED the browser test of the dynamics panel: no Chromium at ${CHROMIUM}. ***\n`);
+warnIfNoBrowser('the browser test of the dynamics panel');
 
 describe.runIf(hasBrowser)('the dynamics panel in Chromium', () => {
-  let server: import('node:child_process').ChildProcess;
-  let dataDir = '';
-  let browser: Browser;
+  const suite = browserSuite('dynpanel');
   let page: Page;
-  const errors: string[] = [];
   const panel = 'sn-editor sn-dynamics-panel';
   const field = (pointer: string) => page.locator(`${panel} [data-pointer="${pointer}"]`).first();
 
@@ -350,38 +338,11 @@ describe.runIf(hasBrowser)('the dynamics panel in Chromium', () => {
   }
 
   beforeAll(async () => {
-    if (!fs.existsSync(path.join(ROOT, 'dist/server/main.js')) || !fs.existsSync(path.join(ROOT, 'dist/client/index.html'))) {
-      execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
-    }
-    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-dynpanel-'));
-    const started = await spawnServer(path.join(ROOT, 'dist/server/main.js'), ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'], { cwd: ROOT, children: new Set(), timeoutMs: 30_000 });
-    server = started.child;
-    const saved = await fetch(`${started.url}/api/models`, {
-      method: 'POST',
-      headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ model: { ...model(), materials: [{ id: 'steel', G: '79.3 GPa', density: '7850 kg/m^3' }], shafts: model().shafts.slice(0, 1) }, author: 'test', message: 'panel' }), // one supported shaft with its own inertia, so its dynamics solve
-    });
-    expect(saved.status, await saved.clone().text()).toBe(201);
-    const { id } = (await saved.json()) as { id: string };
-    browser = await launchChromium(CHROMIUM);
-    page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
-    page.on('console', (msg) => {
-      // A model the server refuses answers 400 on purpose (the panel's fields are checked here, not the solve).
-      if (msg.type() === 'error' && !(/status of 400/.test(msg.text()) && msg.location().url.includes('/api/'))) errors.push(msg.text());
-    });
-    page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
-    await page.goto(`${started.url}/m/${encodeURIComponent(id)}`);
-    await page.locator('sn-results .banner[data-status="fresh"]').waitFor({ timeout: 20_000 });
-  });
-
-  afterAll(async () => {
-    await browser?.close();
-    if (server && server.exitCode === null) {
-      const exited = new Promise((r) => server.once('exit', r));
-      server.kill('SIGTERM');
-      await exited;
-    }
-    if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
+    // One supported shaft with its own inertia (the steel has a density), so its dynamics solve.
+    const id = await suite.saveModel({ ...model(), materials: [{ id: 'steel', G: '79.3 GPa', density: '7850 kg/m^3' }], shafts: model().shafts.slice(0, 1) }, 'test', 'panel');
+    // A model the server refuses answers 400 on purpose (the panel's fields are checked here, not the solve).
+    page = await suite.openPage({ allowStatus: 400 });
+    await suite.openModel(page, id);
   });
 
   it('adds dynamics, reads the range in another unit, takes orders and an excitation, undoes and removes', async () => {
@@ -436,7 +397,7 @@ describe.runIf(hasBrowser)('the dynamics panel in Chromium', () => {
     await expect.poll(() => page.locator(`${panel} button[data-dynamics-add]`).count()).toBe(1);
     await undo.click();
     await expect.poll(() => field('/dynamics/speed/max').inputValue()).toBe('1500');
-    expect(errors).toEqual([]);
+    expect(suite.errors).toEqual([]);
   });
 });
 

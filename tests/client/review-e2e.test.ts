@@ -27,37 +27,16 @@
  * 500 mm, fixed at both ends, solid d = 50 mm in revision 1 and 55 mm in revision 2;
  * torques of 360 N·m at 300 mm and −600 N·m at 700 mm.
  */
-import { type ChildProcess, execFileSync, execSync } from 'node:child_process';
-import { launchChromium, spawnServer } from '../helpers/server-process.js';
-import fs from 'node:fs';
-import os from 'node:os';
+import { execFileSync } from 'node:child_process';
 import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import { ROOT, browserSuite, hasBrowser, shot, typeCell, waitFresh, warnIfNoBrowser } from '../helpers/browser-suite.js';
+import { fixedBarTwoTorques } from '../helpers/models.js';
 
-const CHROMIUM = '/usr/bin/chromium';
-const ROOT = fileURLToPath(new URL('../../', import.meta.url));
-const ARTIFACTS = path.join(ROOT, 'test-artifacts');
-const hasBrowser = fs.existsSync(CHROMIUM);
+warnIfNoBrowser('the browser test of review, sheet and compare');
 
-if (!hasBrowser) console.warn(`\n*** SKIPPED the browser test of review, sheet and compare: no Chromium at ${CHROMIUM}. ***\n`);
-
-const MODEL = {
-  format: 'shaftnet/1',
-  name: 'Reviewed line shaft (invented)',
-  materials: [{ id: 'steel', G: '79.3 GPa', allowableShear: '55 MPa' }],
-  sections: [{ id: 'd50', shape: 'solid', d: '50 mm' }],
-  shafts: [{ id: 'line', segments: [{ length: '500 mm', section: 'd50', material: 'steel' }, { length: '500 mm', section: 'd50', material: 'steel' }] }],
-  supports: [
-    { id: 'A', shaft: 'line', at: 0, kind: 'fixed' },
-    { id: 'B', shaft: 'line', at: '1 m', kind: 'fixed' },
-  ],
-  torques: [
-    { id: 'T1', shaft: 'line', at: '300 mm', torque: '360 N*m' },
-    { id: 'T2', shaft: 'line', at: '700 mm', torque: '-600 N*m' },
-  ],
-};
+const MODEL = fixedBarTwoTorques('Reviewed line shaft (invented)');
 
 const G = 79.3e9; // Pa
 const D2 = 0.055; // m, the diameter of revision 2
@@ -93,14 +72,16 @@ function result(line: string): { value: number; unit: string } {
 const SHEET_DIGITS = 5e-6;
 
 describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chromium against the real server', () => {
-  let server: ChildProcess;
-  let base = '';
-  let dataDir = '';
-  let browser: Browser;
   const keys: Record<string, string> = {};
-  const errors: string[] = [];
+  const suite = browserSuite('review-e2e', {
+    beforeStart: (dataDir) => {
+      keys.Dana = addKey(dataDir, 'Dana', 'editor');
+      keys.Lee = addKey(dataDir, 'Lee', 'checker');
+      keys.Kim = addKey(dataDir, 'Kim', 'approver');
+    },
+  });
 
-  function addKey(name: string, role: string): string {
+  function addKey(dataDir: string, name: string, role: string): string {
     const out = execFileSync(process.execPath, [path.join(ROOT, 'dist/server/cli.js'), 'keys', 'add', name, '--role', role, '--data', dataDir], { cwd: ROOT, encoding: 'utf8' });
     const key = /snk_[A-Za-z0-9_-]+/.exec(out)?.[0];
     expect(key, `keys add printed no key: ${out}`).toBeTruthy();
@@ -109,21 +90,12 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
 
   /** A browser of its own for one person, signed in with their key through the sign-in box. */
   async function signedIn(name: string, at: string): Promise<Page> {
-    const context = await browser.newContext({ viewport: { width: 1366, height: 768 } });
-    const page = await context.newPage();
-    page.on('console', (msg) => {
-      if (msg.type() === 'error') errors.push(`${name}: ${msg.text()}`);
-    });
-    page.on('pageerror', (e) => errors.push(`${name}: pageerror: ${e.message}`));
-    await page.goto(`${base}${at}`);
+    const page = await suite.openPage({ label: name });
+    await page.goto(`${suite.base}${at}`);
     await page.locator('sn-signin input[name="token"]').fill(keys[name]);
     await page.locator('sn-signin button[type="submit"]').click();
     await page.locator(`sn-top-bar .who[data-identity="${name}"]`).waitFor({ timeout: 20_000 });
     return page;
-  }
-
-  async function waitFresh(page: Page): Promise<void> {
-    await page.locator('sn-results .banner[data-status="fresh"]').waitFor({ timeout: 20_000 });
   }
 
   async function save(page: Page, message: string): Promise<void> {
@@ -139,35 +111,6 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
   const panel = (page: Page) => page.locator('sn-review-panel section.review');
   const action = (page: Page, state: string) => page.locator(`sn-review-panel button[data-review-action="${state}"]`);
 
-  async function shot(page: Page, name: string): Promise<void> {
-    await page.screenshot({ path: path.join(ARTIFACTS, `${name}.png`) });
-  }
-
-  beforeAll(async () => {
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    if (!fs.existsSync(path.join(ROOT, 'dist/server/main.js')) || !fs.existsSync(path.join(ROOT, 'dist/client/index.html'))) {
-      execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
-    }
-    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-review-e2e-'));
-    keys.Dana = addKey('Dana', 'editor');
-    keys.Lee = addKey('Lee', 'checker');
-    keys.Kim = addKey('Kim', 'approver');
-    const started = await spawnServer(path.join(ROOT, 'dist/server/main.js'), ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'], { cwd: ROOT, children: new Set(), timeoutMs: 30_000 });
-    server = started.child;
-    base = started.url;
-    browser = await launchChromium(CHROMIUM);
-  });
-
-  afterAll(async () => {
-    await browser?.close();
-    if (server && server.exitCode === null) {
-      const exited = new Promise((r) => server.once('exit', r));
-      server.kill('SIGTERM');
-      await exited;
-    }
-    if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
-  });
-
   it('prepares, checks and approves a model live, reads the sheet and compares two revisions', async () => {
     // ——— Dana (editor) prepares the model and saves two revisions ———
     const dana = await signedIn('Dana', '/');
@@ -182,9 +125,7 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
     await expect.poll(() => panel(dana).getAttribute('data-state')).toBe('prepared');
     // Dana may not review her own revision, and an editor may not review at all.
     for (const s of ['checked', 'approved', 'returned']) expect(await action(dana, s).isDisabled()).toBe(true);
-    const d = dana.locator('sn-editor [data-pointer="/sections/0/d"]');
-    await d.fill('55');
-    await d.press('Tab');
+    await typeCell(dana, '/sections/0/d', '55');
     await waitFresh(dana);
     await save(dana, 'd 50 → 55 mm');
     await expect.poll(() => dana.locator('sn-top-bar .doc').getAttribute('data-revision')).toBe('2');
@@ -235,7 +176,7 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
 
     // ——— The calculation sheet of revision 2: J and k with the numbers substituted ———
     const sheetPage = await kim.context().newPage();
-    const sheet = await sheetPage.goto(`${base}/api/models/${encodeURIComponent(id)}/revisions/2/sheet`);
+    const sheet = await sheetPage.goto(`${suite.base}/api/models/${encodeURIComponent(id)}/revisions/2/sheet`);
     expect(sheet?.status()).toBe(200);
     expect(sheet?.headers()['content-type']).toMatch(/^text\/html/);
     const lines = (await sheetPage.locator('body').innerText()).split('\n');
@@ -259,7 +200,7 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
     expect(Math.abs(k.value - (g * jShown) / len)).toBeLessThanOrEqual(SHEET_DIGITS * k.value);
     expect(Math.abs(k.value - K2)).toBeLessThanOrEqual(SHEET_DIGITS * K2);
     expect(await sheetPage.locator('body').innerText()).toMatch(/[0-9a-f]{64}/); // SHA-256 of the canonical model
-    await sheetPage.screenshot({ path: path.join(ARTIFACTS, '44-review-sheet.png'), fullPage: false });
+    await shot(sheetPage, '44-review-sheet');
     await sheetPage.close();
 
     // ——— Compare revisions 1 and 2 ———
@@ -289,9 +230,7 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
     for (const r of twists) expect(near(r.to / r.from, 1 + TWIST_REL), r.item).toBe(true);
 
     // ——— Lee saves revision 3 on top: Dana hears of it and opens it; it starts prepared ———
-    const t1 = lee.locator('sn-editor [data-pointer="/torques/0/torque"]');
-    await t1.fill('400');
-    await t1.press('Tab');
+    await typeCell(lee, '/torques/0/torque', '400');
     await waitFresh(lee);
     await save(lee, 'T1 360 → 400 N·m');
     await expect.poll(() => dana.locator('sn-live-notice [data-notice="revision"] .text').innerText().catch(() => '')).toBe('Revision 3 saved by Lee');
@@ -316,6 +255,6 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
     await expect.poll(() => dana.locator('sn-live-notice [data-notice="review"] .text').innerText().catch(() => '')).toBe('Revision 3 returned by Kim: T1 needs its source');
     await expect.poll(() => panel(dana).getAttribute('data-state')).toBe('returned');
     await shot(dana, '45-review-returned-1366');
-    expect(errors).toEqual([]);
+    expect(suite.errors).toEqual([]);
   });
 });

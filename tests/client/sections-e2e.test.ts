@@ -13,22 +13,12 @@
  * at its free end, so the internal torque is 500 N·m everywhere (statically
  * determinate) and every expected number follows from the geometry alone.
  */
-import { type ChildProcess, execSync } from 'node:child_process';
-import { launchChromium, spawnServer } from '../helpers/server-process.js';
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { shoulderFactor } from '../../server/engine/stress-raisers.js';
+import { browserSuite, chooseCell, hasBrowser, shot, typeCell, waitFresh, warnIfNoBrowser } from '../helpers/browser-suite.js';
 
-const CHROMIUM = '/usr/bin/chromium';
-const ROOT = fileURLToPath(new URL('../../', import.meta.url));
-const ARTIFACTS = path.join(ROOT, 'test-artifacts');
-const hasBrowser = fs.existsSync(CHROMIUM);
-
-if (!hasBrowser) console.warn(`\n*** SKIPPED the browser tests of sections, tapers and stress raisers: no Chromium at ${CHROMIUM}. ***\n`);
+warnIfNoBrowser('the browser tests of sections, tapers and stress raisers');
 
 const G = 79.3e9; // Pa
 const T = 500; // N·m, the applied torque
@@ -84,72 +74,18 @@ function fiveFigures(shown: number, exact: number): void {
 }
 
 describe.runIf(hasBrowser)('sections, tapers and stress raisers in Chromium against the real server', () => {
-  let server: ChildProcess;
-  let base = '';
-  let dataDir = '';
-  let browser: Browser;
+  const suite = browserSuite('sections-e2e');
   let page: Page;
-  const errors: string[] = [];
-
-  async function waitFresh(): Promise<void> {
-    await page.locator('sn-results .banner[data-status="fresh"]').waitFor({ timeout: 20_000 });
-  }
-
-  /** Commits a cell of the editor: its text, then Tab (the one commit path), then the fresh results. */
-  async function type(pointer: string, text: string): Promise<void> {
-    const input = page.locator(`sn-editor input[data-pointer="${pointer}"]`);
-    await input.fill(text);
-    await input.press('Tab');
-  }
-
-  async function choose(pointer: string, value: string): Promise<void> {
-    await page.locator(`sn-editor select[data-pointer="${pointer}"]`).selectOption(value);
-  }
 
   function segmentCell(index: number, cell: string) {
     return page.locator(`sn-results .shaft[data-shaft="input"] sn-segment-table tr[data-segment="${index}"] td[${cell}]`);
   }
 
-  async function shot(name: string): Promise<void> {
-    await page.screenshot({ path: path.join(ARTIFACTS, `${name}.png`) });
-  }
-
   beforeAll(async () => {
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    if (!fs.existsSync(path.join(ROOT, 'dist/server/main.js')) || !fs.existsSync(path.join(ROOT, 'dist/client/index.html'))) {
-      execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
-    }
-    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-sections-e2e-'));
-    const started = await spawnServer(path.join(ROOT, 'dist/server/main.js'), ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'], { cwd: ROOT, children: new Set(), timeoutMs: 30_000 });
-    server = started.child;
-    base = started.url;
-    browser = await launchChromium(CHROMIUM);
-    const saved = await fetch(`${base}/api/models`, {
-      method: 'POST',
-      headers: { 'content-type': 'application/json' },
-      body: JSON.stringify({ model: MODEL, author: 'E2E', message: 'sections' }),
-    });
-    // Refused (400) by a server without issue 10's engine: this suite runs once that work is merged.
-    expect(saved.status, `the server refused the model (${await saved.clone().text()}): it needs the engine of issue 10`).toBe(201);
-    const { id } = (await saved.json()) as { id: string };
-    page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
-    page.on('console', (msg) => {
-      // One refusal is provoked on purpose (a fillet outside the fit's range): its 400 is expected.
-      if (msg.type() === 'error' && !(/status of 400/.test(msg.text()) && msg.location().url.includes('/api/'))) errors.push(msg.text());
-    });
-    page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
-    await page.goto(`${base}/m/${encodeURIComponent(id)}`);
-    await waitFresh();
-  });
-
-  afterAll(async () => {
-    await browser?.close();
-    if (server && server.exitCode === null) {
-      const exited = new Promise((r) => server.once('exit', r));
-      server.kill('SIGTERM');
-      await exited;
-    }
-    if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
+    const id = await suite.saveModel(MODEL, 'E2E', 'sections');
+    // One refusal is provoked on purpose (a fillet outside the fit's range): its 400 is expected.
+    page = await suite.openPage({ allowStatus: 400 });
+    await suite.openModel(page, id);
   });
 
   it('draws the taper tapered and shows its exact stiffness; made uniform, the stiffness of the round bar', async () => {
@@ -163,25 +99,25 @@ describe.runIf(hasBrowser)('sections, tapers and stress raisers in Chromium agai
     fiveFigures(jStart, (Math.PI * 50 ** 4) / 32);
     fiveFigures(jEnd, (Math.PI * 40 ** 4) / 32);
     await page.locator('sn-schematic').scrollIntoViewIfNeeded();
-    await shot('20-taper-schematic-1366');
+    await shot(page, '20-taper-schematic-1366');
 
-    await choose('/shafts/0/segments/1/sectionEnd', '');
-    await waitFresh();
+    await chooseCell(page, '/shafts/0/segments/1/sectionEnd', '');
+    await waitFresh(page);
     expect(await page.locator('sn-schematic svg g[data-pointer="/shafts/0/segments/1"]').getAttribute('data-tapered')).toBe('false');
     // Uniform d = 50 mm: k = G π d⁴ / (32 L).
     fiveFigures(Number(await segmentCell(1, 'data-k').innerText()), (G * Math.PI * 0.05 ** 4) / (32 * 0.3));
-    await choose('/shafts/0/segments/1/sectionEnd', 'd40');
-    await waitFresh();
+    await chooseCell(page, '/shafts/0/segments/1/sectionEnd', 'd40');
+    await waitFresh(page);
     fiveFigures(Number(await segmentCell(1, 'data-k').innerText()), taperK(0.05, 0.04, 0.3));
-    expect(errors).toEqual([]);
+    expect(suite.errors).toEqual([]);
   });
 
   it('switches a section to a rectangle, draws it, and shows its torsion constant; a wider one is stiffer', async () => {
-    await choose('/sections/2/shape', 'rectangle');
+    await chooseCell(page, '/sections/2/shape', 'rectangle');
     // The card now asks for the rectangle's sizes (60 × 20 mm to start) and no diameter.
     await page.locator('sn-editor input[data-pointer="/sections/2/width"]').waitFor();
     expect(await page.locator('sn-editor input[data-pointer="/sections/2/d"]').count()).toBe(0);
-    await waitFresh();
+    await waitFresh(page);
     const card = page.locator('sn-editor [data-section-card="link"] sn-section-view');
     expect(await card.locator('svg rect').count()).toBeGreaterThanOrEqual(1);
     const jRect = rectangleJ(0.06, 0.02);
@@ -193,20 +129,20 @@ describe.runIf(hasBrowser)('sections, tapers and stress raisers in Chromium agai
     fiveFigures(Number(await segmentCell(2, 'data-k').innerText()), (G * jRect) / 0.1);
     expect(await segmentCell(2, 'data-wt').innerText()).not.toBe('—');
     await card.scrollIntoViewIfNeeded();
-    await shot('21-section-card-rectangle-1366');
+    await shot(page, '21-section-card-rectangle-1366');
 
-    await type('/sections/2/width', '80');
-    await waitFresh();
+    await typeCell(page, '/sections/2/width', '80');
+    await waitFresh(page);
     fiveFigures(Number(await segmentCell(2, 'data-j').innerText()), rectangleJ(0.08, 0.02) * 1e12);
     expect(rectangleJ(0.08, 0.02)).toBeGreaterThan(jRect);
-    expect(errors).toEqual([]);
+    expect(suite.errors).toEqual([]);
   });
 
   it('adds a stress raiser at the shoulder, checks its local peak, and refuses a fillet outside the fit', async () => {
     // Nominal shear on the smaller side of the step at z = 200 mm: 16 T / (π d³), d = 50 mm (solid round bar).
     const nominal = (16 * T) / (Math.PI * 0.05 ** 3);
     await page.locator('sn-editor button[data-add="/stressRaisers"]').click();
-    await waitFresh();
+    await waitFresh(page);
     const row = page.locator('sn-results table.raisers tr[data-raiser="K1"]');
     // The new raiser is a factor of 2 at the first segment boundary.
     fiveFigures(Number(await row.locator('td[data-local]').getAttribute('data-local')) / 1e6, (2 * nominal) / 1e6);
@@ -219,34 +155,34 @@ describe.runIf(hasBrowser)('sections, tapers and stress raisers in Chromium agai
     expect(await check.locator('td.value-of').innerText()).toMatch(/^[\d.]+ of 55 MPa$/);
 
     // A shoulder with the 1 mm fillet it starts with: h / r = 5 mm / 1 mm, outside the fit's 0.25 … 4.
-    await choose('/stressRaisers/0/kind', 'shoulder');
+    await chooseCell(page, '/stressRaisers/0/kind', 'shoulder');
     await page.locator('sn-results .banner[data-status="invalid"]').waitFor({ timeout: 20_000 });
     await expect.poll(() => page.locator('sn-editor input[data-pointer="/stressRaisers/0/fillet"]').getAttribute('aria-invalid')).toBe('true');
-    await type('/stressRaisers/0/fillet', '3');
-    await waitFresh();
+    await typeCell(page, '/stressRaisers/0/fillet', '3');
+    await waitFresh(page);
     const kts = shoulderFactor({ D: 0.06, d: 0.05, r: 0.003 });
     fiveFigures(Number(await row.locator('td[data-factor]').getAttribute('data-factor')), kts);
     fiveFigures(Number(await row.locator('td[data-local]').getAttribute('data-local')), kts * nominal);
     await page.locator('sn-results table.raisers').scrollIntoViewIfNeeded();
-    await shot('22-raisers-results-1366');
+    await shot(page, '22-raisers-results-1366');
     await page.locator('sn-results .shaft[data-shaft="input"] sn-plot').nth(2).scrollIntoViewIfNeeded();
-    await shot('23-local-peak-diagram-1366');
-    expect(errors).toEqual([]);
+    await shot(page, '23-local-peak-diagram-1366');
+    expect(suite.errors).toEqual([]);
   });
 
   it('warns of a thick-walled tube beside the other warnings', async () => {
-    await choose('/sections/2/shape', 'rectangularTube');
-    await waitFresh();
+    await chooseCell(page, '/sections/2/shape', 'rectangularTube');
+    await waitFresh(page);
     // A wall of 8 mm on a 40 × 40 mm tube: more than a tenth of the 32 mm centre-line side.
-    await type('/sections/2/width', '40');
-    await type('/sections/2/height', '40');
-    await type('/sections/2/wall', '8');
-    await waitFresh();
+    await typeCell(page, '/sections/2/width', '40');
+    await typeCell(page, '/sections/2/height', '40');
+    await typeCell(page, '/sections/2/wall', '8');
+    await waitFresh(page);
     const warn = page.locator('sn-results .warn[data-warning="SN_THIN_WALL"]');
     await warn.waitFor();
     expect(await warn.innerText()).toMatch(/link/);
     await page.locator('sn-editor [data-section-card="link"]').scrollIntoViewIfNeeded();
-    await shot('24-tube-card-1366');
-    expect(errors).toEqual([]);
+    await shot(page, '24-tube-card-1366');
+    expect(suite.errors).toEqual([]);
   });
 });

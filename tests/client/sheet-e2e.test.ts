@@ -14,22 +14,12 @@
  * Without Chromium the suite is skipped with a clear message (tests/client/e2e.test.ts registers the
  * failure that SHAFTNET_REQUIRE_BROWSER=1 asks for). Screenshots go to test-artifacts/ (gitignored).
  */
-import { type ChildProcess, execSync } from 'node:child_process';
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import type { Browser, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { formatNumber } from '../../shared-types/present.js';
-import { launchChromium, spawnServer } from '../helpers/server-process.js';
+import { browserSuite, hasBrowser, shot, typeCell, waitFresh, warnIfNoBrowser } from '../helpers/browser-suite.js';
 
-const CHROMIUM = '/usr/bin/chromium';
-const ROOT = fileURLToPath(new URL('../../', import.meta.url));
-const ARTIFACTS = path.join(ROOT, 'test-artifacts');
-const hasBrowser = fs.existsSync(CHROMIUM);
-
-if (!hasBrowser) console.warn(`\n*** SKIPPED the browser test of the calculation sheet and compare: no Chromium at ${CHROMIUM}. ***\n`);
+warnIfNoBrowser('the browser test of the calculation sheet and compare');
 
 function model(at: string) {
   return {
@@ -57,59 +47,24 @@ function relHalf(printed: string): number {
 }
 
 describe.runIf(hasBrowser)('calculation sheet and revision compare in Chromium against the real server', () => {
-  let server: ChildProcess;
-  let base = '';
-  let dataDir = '';
-  let browser: Browser;
+  const suite = browserSuite('sheet-e2e');
   let page: Page;
   let id = '';
-  const errors: string[] = [];
 
   async function api(method: string, url: string, body?: unknown): Promise<{ status: number; json: Record<string, unknown> }> {
-    const res = await fetch(base + url, { method, headers: { 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
+    const res = await fetch(suite.base + url, { method, headers: { 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
     return { status: res.status, json: (await res.json()) as Record<string, unknown> };
   }
 
-  async function waitFresh(p: Page): Promise<void> {
-    await p.locator('sn-results .banner[data-status="fresh"]').waitFor({ timeout: 20_000 });
-  }
-
   beforeAll(async () => {
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    if (!fs.existsSync(path.join(ROOT, 'dist/server/main.js')) || !fs.existsSync(path.join(ROOT, 'dist/client/index.html'))) {
-      execSync('npm run build', { cwd: ROOT, stdio: 'inherit' });
-    }
-    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-sheet-e2e-'));
-    const started = await spawnServer(path.join(ROOT, 'dist/server/main.js'), ['--port', '0', '--host', '127.0.0.1', '--data', dataDir, '--rate-limit', '0', '--log-level', 'silent'], {
-      cwd: ROOT,
-      children: new Set(),
-      timeoutMs: 30_000,
-    });
-    server = started.child;
-    base = started.url;
     const first = await api('POST', '/api/models', { model: model('300 mm'), author: 'Ada', message: 'first' });
     expect(first.status, JSON.stringify(first.json)).toBe(201);
     id = first.json.id as string;
     const second = await api('PUT', `/api/models/${encodeURIComponent(id)}`, { model: model('450 mm'), baseRevision: 1, author: 'Bo', message: 'torque moved' });
     expect(second.status, JSON.stringify(second.json)).toBe(200);
-    browser = await launchChromium(CHROMIUM);
-    page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
-    page.on('console', (msg) => {
-      if (msg.type() === 'error' && !(/status of 409/.test(msg.text()) && msg.location().url.includes('/api/'))) errors.push(msg.text());
-    });
-    page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
-    await page.goto(`${base}/m/${encodeURIComponent(id)}`);
-    await waitFresh(page);
-  });
-
-  afterAll(async () => {
-    await browser?.close();
-    if (server && server.exitCode === null) {
-      const exited = new Promise((r) => server.once('exit', r));
-      server.kill('SIGTERM');
-      await exited;
-    }
-    if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
+    // The stale save below is refused (409) on purpose.
+    page = await suite.openPage({ allowStatus: 409 });
+    await suite.openModel(page, id);
   });
 
   it("opens a saved revision's sheet in a new tab and its k = GJ/L redoes from the printed numbers", async () => {
@@ -128,14 +83,12 @@ describe.runIf(hasBrowser)('calculation sheet and revision compare in Chromium a
     expect(Math.abs((Number(G) * Number(J)) / Number(L) - Number(k))).toBeLessThanOrEqual((relHalf(k) + relHalf(J)) * Number(k));
     expect(await tab.locator('tr[data-state="prepared"]').innerText()).toContain('Bo');
     expect(await tab.locator('script').count()).toBe(0);
-    await tab.screenshot({ path: path.join(ARTIFACTS, '40-sheet-saved.png'), fullPage: false });
+    await shot(tab, '40-sheet-saved');
     await tab.close();
   });
 
   it("an edited model's sheet comes from POST /api/sheet through a Blob URL", async () => {
-    const input = page.locator('sn-editor input[data-pointer="/torques/0/torque"]');
-    await input.fill('900 N*m');
-    await input.press('Tab');
+    await typeCell(page, '/torques/0/torque', '900 N*m');
     await waitFresh(page);
     const [tab] = await Promise.all([page.waitForEvent('popup'), page.locator('sn-sheet-action button[data-action="sheet"]').click()]);
     await expect.poll(() => tab.url(), { timeout: 20_000 }).toMatch(/^blob:/);
@@ -162,7 +115,7 @@ describe.runIf(hasBrowser)('calculation sheet and revision compare in Chromium a
     // Shown to 5 significant figures in N·m: −420 → −330, Δ +90, +21.4 %.
     expect(cells.slice(2)).toEqual(['N·m', formatNumber(reactionA(0.3)), formatNumber(reactionA(0.45)), '+90', '+21.4 %']);
     await page.locator('sn-compare').scrollIntoViewIfNeeded();
-    await page.screenshot({ path: path.join(ARTIFACTS, '41-compare.png') });
+    await shot(page, '41-compare');
   });
 
   it("a stale save shows what changed since the user's base and the user's edit against the latest", async () => {
@@ -183,8 +136,8 @@ describe.runIf(hasBrowser)('calculation sheet and revision compare in Chromium a
     expect(texts).toContain('600 mm');
     expect(texts).toContain('450 mm');
     expect(await dialog.locator('section.yours tr[data-item="torques T1"][data-field="torque"] td').allInnerTexts()).toEqual(['changed', 'torques T1', 'torque', '600 N*m', '900 N*m']);
-    await page.screenshot({ path: path.join(ARTIFACTS, '42-conflict-compare.png') });
+    await shot(page, '42-conflict-compare');
     await dialog.locator('button[data-action="cancel"]').click();
-    expect(errors).toEqual([]);
+    expect(suite.errors).toEqual([]);
   });
 });
