@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { PROGRESS_PHASES, SolveAborted, overallFraction, solveModelJson, throttled, Workspace, type ProgressPhase } from '../../server/engine/index.js';
-import { chainModel, casedGearTreeModel } from '../bench/engine-bench.js';
+import { longChain } from '../helpers/long-chain.js';
 
 let pieces = 0;
 function json(model: unknown, opts: Parameters<typeof solveModelJson>[2] = {}): string {
@@ -19,7 +19,7 @@ function json(model: unknown, opts: Parameters<typeof solveModelJson>[2] = {}): 
 }
 
 describe('solve progress', () => {
-  const model = chainModel(33_001); // slab path: large arrays given back within the solve
+  const model = longChain(33_001); // slab path: large arrays given back within the solve
 
   it('reports every phase in order, fractions within [0, 1] and the overall fraction never going back; same text as without', () => {
     const plain = json(model);
@@ -49,7 +49,7 @@ describe('solve progress', () => {
     let total = 0;
     json(model, { workspace: ws, progress: { report: () => void total++, aborted: false } });
     expect(total).toBeGreaterThan(15);
-    for (const at of [0, 2, 5, 9, 13, total - 3]) {
+    for (const at of [0, 5, 13, total - 3]) {
       let calls = 0;
       const progress = {
         report: () => void calls++,
@@ -64,7 +64,7 @@ describe('solve progress', () => {
   });
 
   it('with load cases, the solve phase reports one step per combination', () => {
-    const cased = casedGearTreeModel(200, 2, 5);
+    const cased = longChain(200, 2, 5);
     const solves: number[] = [];
     json(cased, { progress: { report: (p, f) => void (p === 'solve' && solves.push(f)), aborted: false } });
     expect(solves).toEqual([0, 0.2, 0.4, 0.6, 0.8]);
