@@ -7,9 +7,12 @@
  * object), while the main thread draws the bar and takes Ctrl+C: it raises
  * the worker's abort flag (a shared memory word that the engine reads between
  * its steps), the engine stops with SolveAborted, and the program says so and
- * exits with status 130. A small model is solved inline, as before (a worker
- * costs a start-up that a small solve does not need); Ctrl+C then exits 130
- * as soon as the solve, a few milliseconds, is done.
+ * exits with status 130. A smaller model is solved inline, as before: a worker
+ * costs a start-up (it loads the program again; measured about 0.35 s on a
+ * busy 2-core machine, on a 1 MiB model that took 1 s inline) that such a
+ * solve does not need. The bar is drawn inline too (from the engine's reports,
+ * a terminal write being synchronous); Ctrl+C then exits 130 once the solve,
+ * at most a second or two, is done.
  *
  * The bar: one line on stderr, redrawn in place at most every REDRAW_MS, once
  * the work has run for BAR_AFTER_MS; it names the phase and the time left and
@@ -21,8 +24,8 @@ import { fileURLToPath } from 'node:url';
 import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { overallFraction, throttled, type ProgressPhase, type SolveProgress } from './engine/index.js';
 
-/** Bytes of a model file from which it is solved in a worker thread (some 14,000 stations: about 0.1 s). */
-export const LARGE_FILE_BYTES = 1 << 20;
+/** Bytes of a model file from which it is solved in a worker thread (some 150,000 stations: 1–2 s with its JSON). */
+export const LARGE_FILE_BYTES = 8 << 20;
 /** ms of work before the bar appears. */
 export const BAR_AFTER_MS = 500;
 /** ms between two redraws of the bar, at least. */
@@ -153,15 +156,24 @@ export async function cliMain(cliUrl: string, runCli: RunCli, byteWriter: ByteWr
     return;
   }
   // Inline: a signal is read once the (short) solve is done; stop then with 130.
-  const onSigint = () => process.exit(EXIT_INTERRUPTED);
+  const inlineBar = bar ? new TerminalBar(process.stderr) : undefined;
+  const onSigint = () => {
+    inlineBar?.clear();
+    process.exit(EXIT_INTERRUPTED);
+  };
   if (argv[0] !== 'serve') process.once('SIGINT', onSigint);
   const stdout = byteWriter((bytes) => process.stdout.write(bytes));
   const code = await runCli(
     argv,
     (s) => process.stdout.write(s.endsWith('\n') ? s : s + '\n'),
-    (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n'),
+    (s) => {
+      inlineBar?.clear();
+      process.stderr.write(s.endsWith('\n') ? s : s + '\n');
+    },
     stdout.write,
+    inlineBar ? { report: (phase, fraction) => inlineBar.update(phase, fraction), aborted: false } : undefined,
   );
+  inlineBar?.clear();
   stdout.end();
   // `serve` keeps running; everything else ends with its status.
   if (argv[0] !== 'serve' || code !== 0) process.exitCode = code;

@@ -23,17 +23,24 @@ const requirePty = process.env.SHAFTNET_REQUIRE_BROWSER === '1'; // CI has util-
 let dir: string;
 let big: string;
 let bigJsonMd5: string;
+let mid: string;
+let midJsonMd5: string;
 const children = new Set<ChildProcess>();
 
-beforeAll(() => {
-  dir = mkdtempSync(join(tmpdir(), 'shaftnet-cli-progress-'));
-  big = join(dir, 'big.json');
-  const model = longChain(120_001); // about 6.5 MB: solved in the worker thread, some seconds with the JSON
-  writeFileSync(big, JSON.stringify(model));
+/** Writes the model to `name` and answers its path and the MD5 of the engine's JSON of it (what --json prints). */
+function prepare(name: string, model: unknown): [string, string] {
+  const file = join(dir, name);
+  writeFileSync(file, JSON.stringify(model));
   const h = createHash('md5');
   solveModelJson(model, (t) => h.update(t));
   h.update('\n');
-  bigJsonMd5 = h.digest('hex');
+  return [file, h.digest('hex')];
+}
+
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), 'shaftnet-cli-progress-'));
+  [big, bigJsonMd5] = prepare('big.json', longChain(170_001)); // about 9 MB: solved in the worker thread
+  [mid, midJsonMd5] = prepare('mid.json', longChain(100_001)); // about 5.4 MB: inline, over a second with its JSON
 });
 
 afterAll(() => {
@@ -60,8 +67,9 @@ function onPty(command: string, onOutput?: (text: string, child: ChildProcess) =
 }
 
 describe('command-line progress', () => {
-  it('the model file is large enough for the worker thread', () => {
+  it('one model file is large enough for the worker thread, the other is solved inline', () => {
     expect(statSync(big).size).toBeGreaterThan(LARGE_FILE_BYTES);
+    expect(statSync(mid).size).toBeLessThan(LARGE_FILE_BYTES);
     expect(existsSync(bin), 'dist/server/cli.js: run npm run build').toBe(true);
   });
 
@@ -74,17 +82,17 @@ describe('command-line progress', () => {
 
   it.runIf(hasScript || requirePty)('on a terminal: the bar with phase and time left, erased at the end; --quiet: none', async () => {
     const out = join(dir, 'out.json');
-    const shown = await onPty(`exec ${process.execPath} ${bin} solve ${big} --json > ${out}`);
+    const shown = await onPty(`exec ${process.execPath} ${bin} solve ${mid} --json > ${out}`);
     expect(shown.code).toBe(0);
     expect(shown.text).toMatch(/\rsolving \[[#-]+\] +\d+% {2}(stations|assembly|factorisation|solve|recovery|writing) {2}about \d+ (s|min) left\x1b\[K/);
     expect(shown.text.endsWith('\r\x1b[K')).toBe(true); // erased
-    expect(createHash('md5').update(readFileSync(out)).digest('hex')).toBe(bigJsonMd5);
-    const quiet = await onPty(`exec ${process.execPath} ${bin} solve ${big} --json --quiet > ${out}`);
+    expect(createHash('md5').update(readFileSync(out)).digest('hex')).toBe(midJsonMd5);
+    const quiet = await onPty(`exec ${process.execPath} ${bin} solve ${mid} --json --quiet > ${out}`);
     expect(quiet.code).toBe(0);
     expect(quiet.text).toBe('');
   });
 
-  it.runIf(hasScript || requirePty)('Ctrl+C on the terminal stops the solve: status 130, a clean line', async () => {
+  it.runIf(hasScript || requirePty)('Ctrl+C on the terminal stops the solve in the worker thread: status 130, a clean line', async () => {
     let sent = false;
     const r = await onPty(`exec ${process.execPath} ${bin} solve ${big} --json > /dev/null`, (text, child) => {
       if (!sent && text.includes('solving [')) {
