@@ -181,7 +181,8 @@ const solveRoutes: FastifyPluginAsyncTypebox<SolveOptions> = async (app, opts) =
         tags: ['solve'],
         summary: 'Solve a model',
         description:
-          'Answers the solution (SI units). 400 names the field by JSON pointer; 422 names the shafts of a mechanism or the connections of a loop that cannot close; 413 for a model over the size limits.',
+          'Answers the solution (SI units). 400 names the field by JSON pointer; 422 names the shafts of a mechanism or the connections of a loop that cannot close; 413 for a model over the size limits. ' +
+          'With Accept: text/event-stream: progress events, then the event result (the same JSON) or error (the same error body); closing the connection cancels the solve (API.md, "Progress and cancel").',
         querystring: Type.Object(
           {
             combination: Type.Optional(
