@@ -9,14 +9,16 @@
  *   shaftnet backup | restore ...          (server/cli-backup.ts)
  *
  * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
- * message names the field or the shafts), 1 anything else.
+ * message names the field or the shafts), 130 stopped by Ctrl+C, 1 anything else.
+ * On a terminal a long solve shows a progress bar on stderr (cli-progress.ts).
  */
 import { readFileSync, realpathSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 import { ModelError } from '../shared-types/errors.js';
 import { UNIT_SYSTEMS, isUnitSystem, writeStationCsv, type UnitSystem } from '../shared-types/present.js';
-import { loadLpSolver, normaliseModel, solveModel, solveModelJson, withSolved } from './engine/index.js';
+import { loadLpSolver, normaliseModel, SolveAborted, solveModel, solveModelJson, withSolved, type SolveProgress } from './engine/index.js';
+import { cliMain, EXIT_INTERRUPTED, isCliWorker } from './cli-progress.js';
 import { formatCombinationsReport, formatIssue, formatReport, solvedStationColumns } from './report.js';
 
 const USAGE = `usage:
@@ -32,7 +34,8 @@ const USAGE = `usage:
   --dense         solve with the dense reference solver (small models only)
   --combination ID  a model with load cases: that combination's full tables (and its
                   stations in --csv, the single-state fields of --json); without it the
-                  tables show every combination and the envelope, --csv and --json the first`;
+                  tables show every combination and the envelope, --csv and --json the first
+  --quiet         no progress bar (it shows only on a terminal, for a solve over half a second)`;
 
 /** Where the shipped demo models live, from src or from dist. */
 export function demoDirectory(): string {
@@ -68,6 +71,7 @@ function parseSolveArgs(args: string[], needFile: boolean): SolveArgs {
     } else if (a === '--json') out.output = 'json';
     else if (a === '--csv') out.output = 'csv';
     else if (a === '--dense') out.dense = true;
+    else if (a === '--quiet') continue; // read by cli-progress.ts
     else if (a === '--combination' || a.startsWith('--combination=')) {
       const v = a === '--combination' ? args[++k] : a.slice(14);
       if (!v) throw new UsageError('--combination takes the id of a combination');
@@ -89,7 +93,13 @@ class UsageError extends Error {}
  * are written in pieces (a million-station answer is longer than one string
  * can be); without it that text goes to `out` in one piece.
  */
-export async function runCli(argv: string[], out: (s: string) => void, err: (s: string) => void, write?: (text: string) => void): Promise<number> {
+export async function runCli(
+  argv: string[],
+  out: (s: string) => void,
+  err: (s: string) => void,
+  write?: (text: string) => void,
+  progress?: SolveProgress,
+): Promise<number> {
   const [command, ...rest] = argv;
   let model: unknown;
   try {
@@ -119,7 +129,7 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       err(`${path}: not valid JSON (${(e as Error).message})`);
       return 2;
     }
-    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const), combination: args.combination, lp: await loadLpSolver() };
+    const options = { solver: args.dense ? ('dense' as const) : ('sparse' as const), combination: args.combination, lp: await loadLpSolver(), progress };
     if (args.output === 'tables') {
       const solution = solveModel(model, options);
       const all = solution.combinations !== undefined && args.combination === undefined;
@@ -143,6 +153,7 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
     if (!write) out(collected.endsWith('\n') ? collected.slice(0, -1) : collected);
     return 0;
   } catch (e) {
+    if (e instanceof SolveAborted) return EXIT_INTERRUPTED;
     if (e instanceof UsageError) {
       err(`${e.message}\n${USAGE}`);
       return 1;
@@ -186,15 +197,5 @@ export function byteWriter(emit: (bytes: Buffer) => void, size = 1 << 20): { wri
 }
 
 const isMain = process.argv[1] !== undefined && fileURLToPath(import.meta.url) === realpathSync(process.argv[1]);
-if (isMain) {
-  const stdout = byteWriter((bytes) => process.stdout.write(bytes));
-  const code = await runCli(
-    process.argv.slice(2),
-    (s) => process.stdout.write(s.endsWith('\n') ? s : s + '\n'),
-    (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n'),
-    stdout.write,
-  );
-  stdout.end();
-  // `serve` keeps running; everything else ends with its status.
-  if (process.argv[2] !== 'serve' || code !== 0) process.exitCode = code;
-}
+// The run itself, inline or (a large model) in a worker thread running this program again: cli-progress.ts.
+if (isMain || isCliWorker()) await cliMain(import.meta.url, runCli, byteWriter);

@@ -8,7 +8,7 @@
 
 export interface ErrorCodeInfo {
   /** HTTP status the API answers with. */
-  readonly status: 400 | 401 | 403 | 404 | 405 | 409 | 413 | 414 | 421 | 422 | 429 | 500 | 503 | 504 | 507;
+  readonly status: 400 | 401 | 403 | 404 | 405 | 409 | 413 | 414 | 421 | 422 | 429 | 499 | 500 | 503 | 504 | 507;
   /** One line for the docs and for logs. */
   readonly summary: string;
 }
@@ -58,6 +58,8 @@ export const ERROR_CODES = {
   // Dynamics (natural frequencies, issue 12).
   SN_DYN_NO_INERTIA: { status: 422, summary: 'A model with dynamics has no inertia, or a group of shafts free to spin has none: no natural frequency exists.' },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
+  // Progress and cancel (issue 14): the caller stopped the solve (closed the connection, Ctrl+C).
+  SN_CANCELLED: { status: 499, summary: 'The solve was cancelled by its caller before it finished; nothing is wrong with the model.' },
 } as const satisfies Record<string, ErrorCodeInfo>;
 
 export type ErrorCode = keyof typeof ERROR_CODES;

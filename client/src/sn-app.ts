@@ -19,6 +19,7 @@ import './sn-top-bar.js';
 import './sn-editor.js';
 import './sn-schematic.js';
 import './sn-results.js';
+import './sn-progress.js';
 import './sn-problems.js';
 import './sn-report-head.js';
 import './sn-library.js';
@@ -172,6 +173,7 @@ export class SnApp extends LitElement {
               </div>
               <div class="card">
                 <h2>Results</h2>
+                <sn-progress .progress=${this.solver.progress} @sn-cancel=${() => this.solver.cancel()}></sn-progress>
                 <sn-results .solution=${this.solver.solution} .model=${m} .system=${this.system} .state=${state}
                   .message=${bannerReason(m, issues, this.solver.message)} .selected=${this.selected}></sn-results>
               </div>

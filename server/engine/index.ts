@@ -9,6 +9,7 @@ import { toSolution, writeSolutionJson, type Solved } from './output.js';
 import { assertFiniteResults } from './finite-guard.js';
 import { Workspace } from './workspace.js';
 import { withOverload, type LpSolver } from './overload.js';
+import { checkpoint, writingSink, type SolveProgress } from './progress.js';
 
 export { normaliseModel } from './normalise.js';
 export type { ResolvedModel } from './normalise.js';
@@ -16,6 +17,7 @@ export type { Solved } from './output.js';
 export type { SolvePhase } from './pipeline.js';
 export { Workspace } from './workspace.js';
 export { loadLpSolver, type LpSolver } from './overload.js';
+export { SolveAborted, overallFraction, throttled, PROGRESS_PHASES, type ProgressPhase, type SolveProgress } from './progress.js';
 
 /** Options of a solve. */
 export interface SolveOptions {
@@ -42,6 +44,13 @@ export interface SolveOptions {
    * shearYield, the solution has `overload` (first yield and plastic collapse factors).
    */
   lp?: LpSolver;
+  /**
+   * Progress reports (phase, fraction of it done) and the abort signal, checked
+   * between the steps of the solve and once per piece of JSON written: when
+   * `aborted` turns true the solve throws `SolveAborted` and gives its work memory
+   * back. Without it the checks cost one comparison each (see progress.ts).
+   */
+  progress?: SolveProgress;
 }
 
 /** Solves a model (raw JSON, units as typed). Throws ModelError for a model it cannot solve. */
@@ -60,7 +69,7 @@ export function solveResolved(model: ResolvedModel, options: SolveOptions = {}):
  * `JSON.stringify(solveModel(model))`, without building the solution object.
  */
 export function solveModelJson(model: unknown, sink: (text: string) => void, options: SolveOptions = {}, pieceChars?: number): void {
-  withSolved(normaliseModel(model), options, (solved) => writeSolutionJson(solved, sink, pieceChars));
+  withSolved(normaliseModel(model), options, (solved) => writeSolutionJson(solved, writingSink(sink, options.progress, solved.stats.stations), pieceChars));
 }
 
 /**
@@ -74,8 +83,10 @@ export function withSolved<T>(model: ResolvedModel, options: SolveOptions, use: 
     const solved = withOverload(solvePipeline(model, options, ws), options.lp, options);
     assertFiniteResults(solved);
     const t0 = options.onPhase ? performance.now() : 0;
+    checkpoint(options.progress, 'writing', 0);
     const answer = use(solved);
     options.onPhase?.('output', performance.now() - t0);
+    options.progress?.report('writing', 1); // done: an abort now would throw away a finished answer
     return answer;
   });
 }

@@ -41,6 +41,7 @@ import {
   type CombinationSolved,
   type StateColumn,
 } from './combinations.js';
+import { checkpoint, type SolveProgress } from './progress.js';
 
 /** The phases of a solve, reported to `onPhase` with their durations. */
 export type SolvePhase = 'stations' | 'assemble' | 'factorise' | 'recover' | 'dynamics' | 'output';
@@ -52,6 +53,12 @@ export interface PipelineOptions {
   /** With load cases: the id of the combination the top-level results show (else the first). */
   readonly combination?: string;
   readonly onPhase?: (phase: SolvePhase, ms: number) => void;
+  /**
+   * Progress reports and the abort signal (progress.ts): checked between the stages
+   * (`checkpoint`), and in later long loops every 2^k iterations (`loopCheckpoint`);
+   * an abort throws `SolveAborted` and the workspace's session gives every array back.
+   */
+  readonly progress?: SolveProgress;
 }
 
 /**
@@ -70,21 +77,27 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   const stations = stationEstimate(model);
   ws.reserve(LARGE_BYTES_PER_STATION * stations, SMALL_BYTES_PER_STATION * stations);
   const lap = phaseClock(options.onPhase);
+  const progress = options.progress;
 
   // Stations and elements: read by every later stage and by the output.
+  checkpoint(progress, 'stations', 0);
   const layout = ws.stage(() => buildStations(model, ws));
   lap('stations');
+  checkpoint(progress, 'assembly', 0);
 
   // Springs, constraint edges and loads: read until the joint torques are recovered.
   const parts = ws.stage(() => elasticParts(model, layout, ws));
   // The constraints eliminated, φ = α·x + β: read until the rotations are expanded.
   const shaftName = (dof: number) => model.shafts[layout.shaftOf[dof]].id;
+  checkpoint(progress, 'assembly', 0.4);
   const reduction = ws.stage(() => reduceConstraints(layout.dofCount, parts.edges, shaftName, ws));
+  checkpoint(progress, 'assembly', 0.6);
   // Natural frequencies, modes and crossings (contract, "Dynamics"): from the same parts and reduction.
   const dynamics = model.dynamics ? ws.stage(() => solveDynamics(model, layout, parts.springs, reduction, findMechanisms(parts.springs, reduction, ws))) : undefined;
   if (dynamics) lap('dynamics');
   if (dynamics && dynamics.rigidGroups > 0) return dynamicsOnly(model, layout, reduction, dynamics);
   ws.stage(() => assertNoMechanism(model, layout, parts.springs, reduction, ws));
+  checkpoint(progress, 'assembly', 0.7);
   // K·x = f: the entries until the compressed columns are made, the diagonal and f until solved.
   const system = ws.stage(() => reducedSystem(parts.springs, parts.load, reduction, ws));
   lap('assemble');
@@ -96,18 +109,24 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   lap('factorise');
 
   // Rotations of every dof, and the end torques of every element: read by the output.
+  checkpoint(progress, 'recovery', 0);
   const phi = ws.stage(() => expandRotations(reduction, x, ws));
   ws.release(x, reduction.varOf, reduction.alpha, reduction.beta);
+  checkpoint(progress, 'recovery', 0.1);
   const ends = ws.stage(() => elementTorques(model, layout, parts.springs, phi, ws));
+  checkpoint(progress, 'recovery', 0.25);
   // Reactions and connection torques; where T jumps (read by the diagrams only).
   const joints = ws.stage(() => jointTorques(model, layout, parts, phi, ws));
   const { springs, load } = parts;
   ws.release(springs.k, springs.i, springs.j, springs.p, springs.q, springs.c, load);
+  checkpoint(progress, 'recovery', 0.4);
   const shafts = ws.stage(() => recoverShafts(model, layout, phi, ends, joints.jumps, options.diagramPoints ?? 8, ws));
   ws.release(joints.jumps);
+  checkpoint(progress, 'recovery', 0.85);
   const raisers = model.raisers.length > 0 ? recoverRaisers(model, layout, ends) : undefined;
   const checks = ws.stage(() => buildChecks(model, shafts, ws, raisers));
   lap('recover');
+  checkpoint(progress, 'recovery', 1);
 
   const rec: Recovered = { phi, ...ends, ...shafts, raisers, residual: joints.residual, reactions: joints.reactions, gearMeshes: joints.gearMeshes, couplings: joints.couplings, checks };
   let maxResidual = 0;
@@ -367,18 +386,26 @@ function solveLoads(
   warnings: Warning[],
 ): { xs: Float64Array[]; factorNonzeros: number } {
   if (options.solver === 'dense') {
+    checkpoint(options.progress, 'factorisation', 0);
     const solveK = illConditionedAsModelError(model, layout, reduction, () => denseFactor(system.matrix));
     return { xs: rights.map((r) => solveK(r.rhs())), factorNonzeros: 0 };
   }
+  const progress = options.progress;
+  checkpoint(progress, 'factorisation', 0);
   const csc = ws.stage(() => toFullCSC(system.matrix, ws));
   ws.release(system.matrix.rows, system.matrix.cols, system.matrix.vals);
+  checkpoint(progress, 'factorisation', 0.2);
   const symbolic = ws.stage(() => ldlSymbolic(csc, ws));
+  checkpoint(progress, 'factorisation', 0.5);
   const factor: LdlFactor = illConditionedAsModelError(model, layout, reduction, () =>
     ws.stage(() => ldlNumeric(symbolic, csc, system.matrix.diag, ws)),
   );
   ws.release(csc.Ap, csc.Ai, csc.Ax, system.matrix.diag, symbolic.pinv, symbolic.parent);
   const factorNonzeros = symbolic.Lp[symbolic.n];
-  const xs = rights.map((r) => ws.stage(() => refinedSolve(r.springs ?? parts.springs, r.load, r.reduction ?? reduction, r.rhs(), symbolic, factor, ws)));
+  const xs = rights.map((r, k) => {
+    checkpoint(progress, 'solve', k / rights.length);
+    return ws.stage(() => refinedSolve(r.springs ?? parts.springs, r.load, r.reduction ?? reduction, r.rhs(), symbolic, factor, ws));
+  });
   ws.release(system.rhs, symbolic.perm, symbolic.Lp, factor.Li, factor.Lx, factor.D);
   if (factor.minPivotRatio < 1e-10) {
     warnings.push({

@@ -5,23 +5,44 @@
  * request thread a serialisation or a copy. After each job it drops the
  * engine's kept work memory: an idle server should not hold the hundreds of
  * megabytes a million-station solve needed.
+ *
+ * A job asked with progress posts progress messages while it runs (at most one
+ * per PROGRESS_INTERVAL_MS); every job reads its abort flag (a SharedArrayBuffer
+ * from the pool, see solver-pool.ts) at the engine's checkpoints and after
+ * parsing, and stops with SolveAborted when it holds the job's id.
  */
-import { parentPort } from 'node:worker_threads';
+import { parentPort, workerData } from 'node:worker_threads';
 import { ModelError } from '../../shared-types/errors.js';
-import { loadLpSolver, solveModelJson } from '../engine/index.js';
+import { loadLpSolver, SolveAborted, solveModelJson, throttled, type SolveProgress } from '../engine/index.js';
 import { Workspace } from '../engine/workspace.js';
 import { normaliseModel } from '../engine/normalise.js';
 import { HttpError } from './errors.js';
 import { checkModelShape, checkSize, parseJsonText } from './solve-core.js';
-import type { WorkerJob, WorkerReply } from './solver-pool.js';
+import { PROGRESS_INTERVAL_MS, type WorkerInit, type WorkerJob, type WorkerReply } from './solver-pool.js';
 
 const COPY_BELOW = 64 * 1024; // bytes: smaller chunks are copied (they may share a pooled ArrayBuffer)
 /** This worker's work memory: its small chunks stay warm; its large slab is dropped after each job. */
 const workspace = new Workspace();
 /** The LP solver of the overload factors, loaded once per worker. */
 const lp = await loadLpSolver();
+/** The abort flag: holds the id of the job the pool wants stopped. */
+const abortFlag = new Int32Array((workerData as WorkerInit).abort);
+
+/** The engine's progress for one job: the flag read at each checkpoint; reports posted, throttled. */
+function jobProgress(job: WorkerJob): SolveProgress {
+  const post = job.progress
+    ? throttled((phase, fraction) => parentPort?.postMessage({ id: job.id, progress: { phase, fraction } } satisfies WorkerReply), PROGRESS_INTERVAL_MS)
+    : () => {};
+  return {
+    report: post,
+    get aborted() {
+      return Atomics.load(abortFlag, 0) === job.id;
+    },
+  };
+}
 
 function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
+  const progress = jobProgress(job);
   try {
     let model: unknown;
     if (job.kind === 'bytes') {
@@ -29,6 +50,7 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
       model = parseJsonText(Buffer.from(job.bytes.buffer, job.bytes.byteOffset, job.bytes.byteLength).toString('utf8'));
       checkModelShape(model);
       checkSize(model, job.limits);
+      if (progress.aborted) throw new SolveAborted(); // parsing a large body takes a while
     } else {
       model = job.model;
     }
@@ -45,9 +67,10 @@ function run(job: WorkerJob): { reply: WorkerReply; transfer: ArrayBuffer[] } {
         chunks.push(new Uint8Array(c.buffer, c.byteOffset, c.byteLength));
         transfer.add(c.buffer as ArrayBuffer);
       }
-    }, { workspace, combination: job.combination, lp });
+    }, { workspace, combination: job.combination, lp, progress });
     return { reply: { id: job.id, ok: true, chunks }, transfer: [...transfer] };
   } catch (err) {
+    if (err instanceof SolveAborted) return { reply: { id: job.id, ok: false, aborted: true }, transfer: [] };
     if (err instanceof HttpError || err instanceof ModelError) {
       return { reply: { id: job.id, ok: false, error: { code: err.code, message: err.message, issues: err.issues } }, transfer: [] };
     }

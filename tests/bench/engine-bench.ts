@@ -8,11 +8,18 @@
  *   npm run bench:engine -- --quick up to 1e5
  *   npm run bench:engine -- --combinations   ten load cases and 1,000 combinations on a
  *                                             1e4-station gear tree, against one plain solve
+ *   npm run bench:engine -- --progress       the cost of progress reports and abort checks on a
+ *                                             50- and a 1e6-station solve written as JSON (none,
+ *                                             a listener that does nothing, the worker's throttled
+ *                                             one), and how fast a cancelled worker is free again
+ *                                             (abort flag against terminate + respawn)
  *
  * The models are synthetic and invented for timing only.
  */
 import { normaliseModel, solveResolved, withSolved, Workspace } from '../../server/engine/index.js';
 import { writeSolutionJson } from '../../server/engine/output.js';
+import { checkpoint, throttled, writingSink, type SolveProgress } from '../../server/engine/progress.js';
+import { SolverPool } from '../../server/http/solver-pool.js';
 import { calibrationLine } from './calibrate.js';
 
 type Json = Record<string, unknown>;
@@ -249,9 +256,105 @@ function benchCombinations(): void {
   console.log('(a loaded machine stretches wall time; CPU time is the steadier figure, the calibration line says how slow the machine is now)');
 }
 
-function main(): void {
+/**
+ * Progress reporting's cost: a chain of 50 and of 1e6 stations solved and written as JSON text
+ * (as the worker and `solveModelJson` do), with no progress object, with a listener that does
+ * nothing, and with the worker's (throttled to one report per 100 ms); the variants interleaved,
+ * best of the repeats. Then a cancelled worker: the time until the pool has it free again and has
+ * answered a small job, by the abort flag and by terminate + respawn (the time-limit path).
+ */
+async function benchProgress(): Promise<void> {
+  console.log(`Engine benchmark, progress and abort (node ${process.version})`);
+  console.log(calibrationLine());
+  const variants: Array<[string, SolveProgress | undefined]> = [
+    ['no progress', undefined],
+    ['listener doing nothing', { report: () => {}, aborted: false }],
+    ['throttled listener (worker)', { report: throttled(() => {}, 100), aborted: false }],
+  ];
+  const runJson = (model: ReturnType<typeof normaliseModel>, progress: SolveProgress | undefined) => {
+    let chars = 0;
+    withSolved(model, { workspace, progress }, (sv) => writeSolutionJson(sv, writingSink((t) => (chars += t.length), progress, sv.stats.stations)));
+    return chars;
+  };
+  for (const [stations, batch, repeats] of [
+    [50, 2000, 7],
+    [1e6, 1, 3],
+  ] as const) {
+    const model = normaliseModel(chainModel(stations));
+    const best = variants.map(() => Infinity);
+    let chars = 0;
+    for (let r = 0; r < repeats; r++) {
+      variants.forEach(([, progress], v) => {
+        gc();
+        const [, ms] = time(() => {
+          for (let k = 0; k < batch; k++) chars = runJson(model, progress);
+        });
+        best[v] = Math.min(best[v], ms / batch);
+      });
+    }
+    // The bound that machine noise cannot hide: checkpoints per solve × the cost of one.
+    let calls = 0;
+    runJson(model, { report: () => void calls++, aborted: false });
+    const one = { report: throttled(() => {}, 100), aborted: false };
+    const [, perCallMs] = time(() => {
+      for (let k = 0; k < 1e6; k++) checkpoint(one, 'writing', k / 1e6);
+    });
+    console.log(
+      `${stations} stations: ${calls} checkpoints per solve; one costs ${((perCallMs / 1e6) * 1e6).toFixed(0)} ns with the throttled listener: ` +
+        `${fmtMs((calls * perCallMs) / 1e6)} per solve`,
+    );
+    const base = best[0];
+    const line = variants.map(([name], v) => `${name} ${fmtMs(best[v])} (${v === 0 ? 'base' : `${(((best[v] - base) / base) * 100).toFixed(1)} %`})`).join('; ');
+    console.log(`${stations} stations, solve + JSON (${(chars / 1e6).toFixed(1)} M chars), best of ${repeats}${batch > 1 ? ` × ${batch}` : ''}: ${line}`);
+  }
+
+  // A cancelled worker, free again: by the abort flag (cancel at the first progress report), or by
+  // terminate + respawn (the time-limit path: a limit of 4 s that the long solve, but not the warm-up,
+  // runs past); then a small job on the same pool.
+  const small = chainModel(51);
+  const freeAgain = async (how: 'abort' | 'terminate') => {
+    const long = chainModel(how === 'abort' ? 300_001 : 1_000_001);
+    const pool = new SolverPool({ size: 1, queueLimit: 1, timeoutMs: how === 'terminate' ? 4000 : 60_000 });
+    await pool.run({ kind: 'model', model: small }); // the worker started and warm
+    const ac = new AbortController();
+    let t0 = 0;
+    const freed = new Promise<number>((r) => pool.events.once('freed', () => r(performance.now())));
+    const first = new Promise<void>((r) =>
+      void pool.run({ kind: 'model', model: long }, { signal: ac.signal, onProgress: () => r() }).catch(() => {}),
+    );
+    if (how === 'abort') {
+      await first;
+      t0 = performance.now();
+      ac.abort();
+    }
+    const tf = await freed;
+    if (how === 'terminate') t0 = tf; // the time limit: the slot is freed as the worker is terminated
+    await pool.run({ kind: 'model', model: small });
+    const t1 = performance.now();
+    await pool.close();
+    return { freedMs: tf - t0, nextDoneMs: t1 - t0 };
+  };
+  for (const how of ['abort', 'terminate'] as const) {
+    const runs = [await freeAgain(how), await freeAgain(how), await freeAgain(how)];
+    const b = runs.reduce((x, y) => (y.nextDoneMs < x.nextDoneMs ? y : x));
+    console.log(
+      `cancel of a worker solve by ${how === 'abort' ? 'the abort flag (3e5 stations, at its first report)' : 'terminate + respawn (1e6 stations, at the time limit)'}: slot free after ${fmtMs(b.freedMs)}, ` +
+        `a 50-station job answered ${fmtMs(b.nextDoneMs)} after the cancel (best of 3)`,
+    );
+  }
+}
+
+function fmtMs(ms: number): string {
+  return ms < 1 ? `${(ms * 1000).toFixed(1)} µs` : `${ms.toFixed(ms < 10 ? 2 : 0)} ms`;
+}
+
+async function main(): Promise<void> {
   if (process.argv.includes('--combinations')) {
     benchCombinations();
+    return;
+  }
+  if (process.argv.includes('--progress')) {
+    await benchProgress();
     return;
   }
   const quick = process.argv.includes('--quick');
@@ -292,4 +395,4 @@ function main(): void {
   console.log(`2,000 stations: sparse ${sparse.toFixed(2)} ms, dense ${dense.toFixed(0)} ms, ratio ${(dense / sparse).toFixed(0)}x`);
 }
 
-if (!process.env.NO_MAIN) main();
+if (!process.env.NO_MAIN) await main();
