@@ -50,6 +50,9 @@ export const ERROR_CODES = {
   SN_METHOD: { status: 405, summary: 'The path exists but not with this method; the Allow header lists the methods it has.' },
   SN_BAD_REQUEST: { status: 400, summary: 'The request itself is malformed: a path escape that is not UTF-8, or a broken request line or header.' },
   SN_PATH_TOO_LONG: { status: 414, summary: 'A part of the path is longer than the server reads (1000 characters).' },
+  // Forced response (dynamics): damping needed, and a dynamic stiffness that cannot be factorised.
+  SN_DYN_NO_DAMPING: { status: 400, summary: 'A forced response needs a damping ratio above 0 (the response at a resonance is unbounded without it).' },
+  SN_DYN_FORCED_SINGULAR: { status: 422, summary: 'The dynamic stiffness of the forced response is singular: a part with neither stiffness nor inertia.' },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
 } as const satisfies Record<string, ErrorCodeInfo>;
 
