@@ -12,6 +12,7 @@
  * - Rigid gears reflect stiffness and inertia by the ratio squared: a geared pair of massless
  *   shafts against the two-disc closed form with k_eq = 1/(1/k_a + 1/(k_b·n²)) and J2·n².
  * - The check adds the given static stress; error codes for no damping and a singular system.
+ * - The walk writes an object of the schema (shared-types/forced-response.ts).
  * Tolerances are round-off allowances (common practice, no source) unless said otherwise.
  */
 import { describe, expect, it } from 'vitest';
@@ -23,6 +24,13 @@ import { ModelError } from '../../shared-types/errors.js';
 import type { Model } from '../../shared-types/model.js';
 import { randomModel, Rng, segmentSpans } from './random-models.js';
 import { dynamicsOf, runForced } from './forced-helpers.js';
+import { Value } from 'typebox/value';
+import { normaliseModel } from '../../server/engine/normalise.js';
+import { buildStations } from '../../server/engine/stations.js';
+import { forcedResponse } from '../../server/engine/dynamics/forced.js';
+import { segmentInertia } from '../../server/engine/dynamics/forced-assembly.js';
+import { forcedRecords, walkForcedResponse } from '../../server/engine/dynamics/forced-output.js';
+import { ForcedResponse } from '../../shared-types/forced-response.js';
 
 type C = [number, number];
 
@@ -297,6 +305,98 @@ describe('errors', () => {
     } catch (err) {
       expect((err as ModelError).issues[0].code).toBe('SN_DYN_FORCED_SINGULAR');
       expect((err as ModelError).issues[0].shafts).toEqual(['a']);
+    }
+  });
+});
+
+describe('the written forced response', () => {
+  /** A plain object writer over records that are their key lists (output.ts's writers do the same with compiled records). */
+  class KeysWriter {
+    result: unknown;
+    private stack: Array<{ keys: readonly string[] | null; obj: Record<string, unknown>; arr: unknown[]; field: number }> = [];
+    private put(v: unknown): void {
+      const top = this.stack[this.stack.length - 1];
+      if (!top) this.result = v;
+      else if (top.keys === null) top.arr.push(v);
+      else top.obj[top.keys[top.field++]] = v;
+    }
+    open(keys: readonly string[]): void {
+      this.stack.push({ keys, obj: {}, arr: [], field: 0 });
+    }
+    list(): void {
+      this.stack.push({ keys: null, obj: {}, arr: [], field: 0 });
+    }
+    close(): void {
+      const top = this.stack.pop()!;
+      this.put(top.keys === null ? top.arr : top.obj);
+    }
+    num(x: number): void {
+      this.put(x);
+    }
+    optNum(x: number | null): void {
+      this.put(x);
+    }
+    str(s: string): void {
+      this.put(s);
+    }
+    bool(b: boolean): void {
+      this.put(b);
+    }
+    absent(): void {
+      this.stack[this.stack.length - 1].field++;
+    }
+    series(a: Float64Array, from: number, to: number): void {
+      this.put(Array.from(a.subarray(from, to)));
+    }
+  }
+
+  it('follows the schema, names segments "<shaft>[<index>]", puts the sum first and the worst check first', () => {
+    const model = oneShaft(
+      [
+        { length: 0.4, section: 'd50', material: 'steel' },
+        { length: 0.5, section: 'h50', material: 'steel' },
+      ],
+      { discs: [{ id: 'D', shaft: 'a', at: 0.9, inertia: 0.03 }] },
+    );
+    const resolved = normaliseModel(model);
+    const ws = new Workspace();
+    const written = ws.session(() => {
+      const layout = buildStations(resolved, ws);
+      const fr = forcedResponse(
+        {
+          model: resolved,
+          layout,
+          dynamics: dynamicsOf({ shaft: 0, min: 200, max: 4000 }, 0.02, [
+            { id: 'E1', shaft: 0, z: 0.9, amplitude: 20, order: 1 },
+            { id: 'E2', shaft: 0, z: 0.4, amplitude: 5, order: 3 },
+          ]),
+          inertia: segmentInertia(resolved, () => RHO),
+          staticShear: null,
+        },
+        ws,
+        { gridSpeeds: 12 },
+      )!;
+      const w = new KeysWriter();
+      walkForcedResponse(fr, resolved, w, forcedRecords((...keys) => keys));
+      return w.result as ForcedResponse;
+    });
+    expect(Value.Check(ForcedResponse, written)).toBe(true);
+    expect(written.speeds).toHaveLength(12);
+    expect(written.segments.map((s) => s.item)).toEqual(['a[0]', 'a[1]']);
+    expect(written.excitations.map((e) => e.id)).toEqual(['E1', 'E2']);
+    // The sum response is the sum of the excitations' amplitudes at every speed.
+    for (let g = 0; g < 2; g++) {
+      for (let i = 0; i < 12; i++) {
+        const sum = written.excitations[0].segments[g].torque[i] + written.excitations[1].segments[g].torque[i];
+        expect(Math.abs(written.segments[g].torque[i] - sum)).toBeLessThanOrEqual(1e-12 * sum);
+      }
+    }
+    expect(written.checks).toHaveLength(2);
+    expect(written.checks[0].utilisation).toBeGreaterThanOrEqual(written.checks[1].utilisation);
+    // No static part given: the check is the vibratory stress alone, and says so.
+    for (const c of written.checks) {
+      expect(c.static).toBeNull();
+      expect(c.value).toBe(c.vibratory);
     }
   });
 });
