@@ -19,8 +19,8 @@
  *
  * Interior peak of |T| in a uniform element with inertia: d|T|²/dx =
  * −2Ω²m·Re(conj(T)·φ) (since dT/dx = −Ω²·m·φ, the inertia torque per length), known
- * in closed form. The element is cut into pieces of at most a quarter of a
- * wavelength in Re λ (π/4); on each piece the sign of that derivative is read
+ * in closed form. The element is cut into pieces of at most an eighth of a
+ * wavelength (π/4 in Re λ); on each piece the sign of that derivative is read
  * at both ends, and a change from + to − is a local maximum, located by
  * bisection to 1e-15 of the element (undamped, |T| is |R·cos(βx − θ)| whose
  * critical points are π/2 apart in βx, so a piece of π/4 holds at most one).
@@ -107,6 +107,11 @@ export interface ForcedSystem {
   readonly elemTaper: Uint8Array;
   /** Per element: global segment index. */
   readonly elemSeg: Int32Array;
+  /** Per uniform element, at the last Ω filled: k11 and k12 of its dynamic stiffness (re, im), N·m/rad. */
+  readonly elemK11r: Float64Array;
+  readonly elemK11i: Float64Array;
+  readonly elemK12r: Float64Array;
+  readonly elemK12i: Float64Array;
   /** Disc inertia at each dof, kg·m². */
   readonly dofInertia: Float64Array;
   /** The element's sub-taper of a tapered segment, G and density, by element (only tapered elements). */
@@ -220,7 +225,25 @@ export function buildForcedSystem(
   }
   const dofInertia = ws.f64(layout.dofCount);
   for (const disc of model.discs) dofInertia[layout.stationAt(disc.shaft, disc.z)] += disc.inertia;
-  return { n, csc, dr: ws.f64(n), di: ws.f64(n), slotUV, slotVU, elemK, elemC, elemTaper, elemSeg, dofInertia, tapers, taperK: new Map() };
+  return {
+    n,
+    csc,
+    dr: ws.f64(n),
+    di: ws.f64(n),
+    slotUV,
+    slotVU,
+    elemK,
+    elemC,
+    elemTaper,
+    elemSeg,
+    elemK11r: ws.f64(ne),
+    elemK11i: ws.f64(ne),
+    elemK12r: ws.f64(ne),
+    elemK12i: ws.f64(ne),
+    dofInertia,
+    tapers,
+    taperK: new Map(),
+  };
 }
 
 /**
@@ -348,14 +371,25 @@ export function fillDynamicStiffness(
         k22i = t[5];
       } else {
         const k = elemK[s];
-        lambdaFunctions(omega * elemC[s] * wr, omega * elemC[s] * wi, scratch);
-        // k* = k (1 + 2iζ)
-        k11r = k * (scratch[0] - damp * scratch[1]);
-        k11i = k * (scratch[1] + damp * scratch[0]);
+        if (elemC[s] === 0) {
+          // Massless: k* = k (1 + 2iζ).
+          k11r = k;
+          k11i = k * damp;
+          k12r = -k;
+          k12i = -k * damp;
+        } else {
+          lambdaFunctions(omega * elemC[s] * wr, omega * elemC[s] * wi, scratch);
+          k11r = k * (scratch[0] - damp * scratch[1]);
+          k11i = k * (scratch[1] + damp * scratch[0]);
+          k12r = -k * (scratch[2] - damp * scratch[3]);
+          k12i = -k * (scratch[3] + damp * scratch[2]);
+        }
         k22r = k11r;
         k22i = k11i;
-        k12r = -k * (scratch[2] - damp * scratch[3]);
-        k12i = -k * (scratch[3] + damp * scratch[2]);
+        sys.elemK11r[s] = k11r;
+        sys.elemK11i[s] = k11i;
+        sys.elemK12r[s] = k12r;
+        sys.elemK12i[s] = k12i;
       }
       // cu = −α_i, cv = α_j: the element matrix acts on (φ_i, φ_j) = (−cu·x_u, cv·x_v).
       add(s, u, v, cu, cv, k11r, k11i, -k12r, -k12i, k22r, k22i);
@@ -385,9 +419,67 @@ export function invSqrtOnePlus(x: number): [number, number] {
   return [p / den, -q / den];
 }
 
+/** Sets uniform element e's k11, k12 (sys.elemK11r …) to its dynamic stiffness at Ω, as a fill would. */
+export function elementStiffnessAt(sys: ForcedSystem, e: number, omega: number, zeta: number, wr: number, wi: number, scratch: Float64Array): void {
+  const k = sys.elemK[e];
+  const damp = 2 * zeta;
+  const c = sys.elemC[e];
+  if (c === 0) {
+    sys.elemK11r[e] = k;
+    sys.elemK11i[e] = k * damp;
+    sys.elemK12r[e] = -k;
+    sys.elemK12i[e] = -k * damp;
+    return;
+  }
+  lambdaFunctions(omega * c * wr, omega * c * wi, scratch);
+  sys.elemK11r[e] = k * (scratch[0] - damp * scratch[1]);
+  sys.elemK11i[e] = k * (scratch[1] + damp * scratch[0]);
+  sys.elemK12r[e] = -k * (scratch[2] - damp * scratch[3]);
+  sys.elemK12i[e] = -k * (scratch[3] + damp * scratch[2]);
+}
+
+/**
+ * The largest |T| along uniform element e at the Ω of the last fill, from its complex end
+ * rotations. The end torques come from its stiffness, T(0+) = −(k11·φa + k12·φb) and
+ * T(h−) = k12·φa + k11·φb, with no trigonometry; the sign of d|T|²/dx at the ends is
+ * −Re(conj(T)·φ) there. Only an element longer than an eighth of a wavelength (π/4 in Re λ) or whose ends'
+ * slopes say a maximum lies inside (+ at the start, − at the end) is searched inside by
+ * `uniformInteriorPeak`.
+ */
+export function uniformElementPeakAt(
+  sys: ForcedSystem,
+  e: number,
+  omega: number,
+  damp: number,
+  wr: number,
+  wi: number,
+  par: number,
+  pai: number,
+  pbr: number,
+  pbi: number,
+  scratch: Float64Array,
+): number {
+  const ar = sys.elemK11r[e];
+  const ai = sys.elemK11i[e];
+  const br = sys.elemK12r[e];
+  const bi = sys.elemK12i[e];
+  const T0r = -(ar * par - ai * pai + br * pbr - bi * pbi);
+  const T0i = -(ar * pai + ai * par + br * pbi + bi * pbr);
+  const T1r = br * par - bi * pai + ar * pbr - ai * pbi;
+  const T1i = br * pai + bi * par + ar * pbi + ai * pbr;
+  const ends = Math.max(Math.hypot(T0r, T0i), Math.hypot(T1r, T1i));
+  const c = sys.elemC[e];
+  if (c === 0 || omega === 0) return ends;
+  const quarterWaves = Math.abs(omega * c * wr) / (Math.PI / 4);
+  const s0 = -(T0r * par + T0i * pai);
+  const s1 = -(T1r * pbr + T1i * pbi);
+  if (quarterWaves <= 1 && !(s0 > 0 && s1 < 0)) return ends;
+  return Math.max(ends, uniformElementPeak(sys.elemK[e], c, omega, damp, wr, wi, par, pai, pbr, pbi, scratch));
+}
+
 /**
  * The largest |T| along a uniform element and its end torques, from the
- * complex end rotations (see the header). k: GJ/h; c: h·√(m/GJ); w: 1/√(1+2iζ).
+ * complex end rotations, by the closed form (see the header). k: GJ/h; c: h·√(m/GJ); w: 1/√(1+2iζ).
  * Answers max |T|; `out[0..3]` get T(0+) and T(h−) (re, im).
  */
 export function uniformElementPeak(

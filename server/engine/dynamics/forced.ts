@@ -17,16 +17,17 @@
  *
  * Peaks: the response is sampled at GRID_SPEEDS speeds evenly spaced over the
  * range (ends included); every local maximum of every curve (each segment,
- * each excitation and the sum) is then refined by Brent's method
- * (golden section with parabolic steps) on the bracket of its grid
- * neighbours, to PEAK_SPEED_TOL relative in speed, so a resonance sharper
- * than the grid is not under-read. Solves at one speed serve every curve (one
- * solve gives every segment): they are kept by speed for the run. A peak is
- * assumed single between two grid neighbours (400 points put more than one
- * grid interval between two natural frequencies closer than 0.25 % of the
- * range apart only then). Where the peak is flat to round-off, the speed is
- * as good as the comparison of values allows (≈ 1e-8 of the peak's width),
- * and the peak value exact to round-off.
+ * each excitation and the sum) is then refined on the bracket of its grid
+ * neighbours to PEAK_SPEED_TOL relative in speed, so a resonance sharper than
+ * the grid is not under-read: the rotations are solved exactly at Chebyshev
+ * points of the bracket and interpolated in speed, and each curve is
+ * maximised on the interpolant by Brent's method (forced-peaks.ts), so every
+ * curve peaking in one bracket shares the same few solves. A peak is
+ * assumed single between two grid neighbours (two peaks closer than two grid
+ * intervals, 0.5 % of the range, can hide one another). Where the peak is flat to round-off, the speed is
+ * as good as the comparison of values allows (≈ 1e-8 of the peak's width, or
+ * √ of the solves' round-off), and the peak value exact to the interpolation
+ * tolerance (INTERP_TOL, 1e-10 relative).
  *
  * Check, per layer with an allowable stress: the peak vibratory shear of the
  * sum response plus the layer's peak static shear (given by the caller:
@@ -47,16 +48,27 @@ import {
   forcedScratch,
   invSqrtOnePlus,
   taperElementPeak,
-  uniformElementPeak,
+  uniformElementPeakAt,
+  elementStiffnessAt,
+  taperDynamicStiffness,
   type SegmentInertia,
 } from './forced-assembly.js';
+import { baryCoefficients, baryWeights, brentMax, chebPoints, chebTail, chebTailTables, CHEB_POINTS, INTERP_TOL, MAX_SPLITS } from './forced-peaks.js';
+
+/** A halving that leaves the worst Chebyshev tail above this fraction of its parent's has reached the solves' round-off. */
+const NOISE_PLATEAU = 0.25;
+
+/** A piece of a bracket: its Chebyshev points, the exact values and rotations solved there. */
+interface Piece {
+  readonly nodes: Float64Array;
+  readonly rows: Float64Array[];
+  readonly phis: Float64Array[];
+}
 
 /** Speeds of the coarse grid over the operating range (ends included). */
 export const GRID_SPEEDS = 400;
 /** Relative tolerance, in speed, to which each local maximum is refined. */
 export const PEAK_SPEED_TOL = 1e-9;
-/** Most Brent iterations for one peak (golden section alone needs about 40 from a grid bracket). */
-const MAX_PEAK_ITERATIONS = 100;
 
 export interface ForcedInput {
   readonly model: ResolvedModel;
@@ -75,6 +87,10 @@ export interface ForcedInput {
 export interface ForcedOptions {
   /** Coarse grid size (default GRID_SPEEDS); at least 2 unless min = max. */
   readonly gridSpeeds?: number;
+  /** false: the peaks are the grid's largest values, unrefined (for timing the sweep alone; default true). */
+  readonly refine?: boolean;
+  /** Relative tolerance in speed of the refined peaks (default PEAK_SPEED_TOL). */
+  readonly peakTolerance?: number;
 }
 
 /** The checks of peak vibratory plus static shear against the allowable, one per layer with an allowable. */
@@ -196,7 +212,9 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
   let solves = 0;
 
   /** Torque (first `stride`) and shear (next `stride`) of every curve and segment at speed s, into out. */
-  const evaluate = (s: number, out: Float64Array): void => {
+  // Per excitation in an evaluation's rotations: φ at every dof, then Δφ across every element (re, im each).
+  const phiStride = 2 * layout.dofCount + 2 * ne;
+  const evaluate = (s: number, out: Float64Array, phis?: Float64Array): void => {
     out.fill(0);
     for (let o = 0; o < orders.length; o++) {
       const omega = orders[o] * s;
@@ -221,6 +239,17 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
           pr[k] = v >= 0 ? alpha[k] * xr[v] : 0;
           pi[k] = v >= 0 ? alpha[k] * xi[v] : 0;
         }
+        if (phis) {
+          const nd = pr.length;
+          const base = e * phiStride;
+          phis.set(pr, base);
+          phis.set(pi, base + nd);
+          for (let el = 0; el < ne; el++) {
+            const a = elemLeft[el];
+            phis[base + 2 * nd + el] = pr[a + 1] - pr[a];
+            phis[base + 2 * nd + ne + el] = pi[a + 1] - pi[a];
+          }
+        }
         const tBase = e * nSeg;
         const sBase = stride + e * nSeg;
         for (let el = 0; el < ne; el++) {
@@ -233,7 +262,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
             T = p.torque;
             tau = p.shear;
           } else {
-            T = uniformElementPeak(sys.elemK[el], sys.elemC[el], omega, 2 * zeta, wr, wi, pr[a], pi[a], pr[a + 1], pi[a + 1], scratch2);
+            T = uniformElementPeakAt(sys, el, omega, 2 * zeta, wr, wi, pr[a], pi[a], pr[a + 1], pi[a + 1], scratch2);
             tau = T * segShearFactor[g];
           }
           if (T > out[tBase + g]) out[tBase + g] = T;
@@ -267,73 +296,201 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     }
   }
 
-  // Peaks: each local maximum refined; solves kept by speed for the run.
-  const memo = new Map<number, Float64Array>();
-  const at = (s: number): Float64Array => {
-    let r = memo.get(s);
-    if (r === undefined) {
-      r = new Float64Array(2 * stride);
-      evaluate(s, r);
-      memo.set(s, r);
-    }
-    return r;
-  };
+  // Peaks: each local maximum refined on the interpolated response (forced-peaks.ts).
   const peakTorque = ws.f64(stride);
   const peakSpeed = ws.f64(stride);
   const peakShear = ws.f64(stride);
   const peakShearSpeed = ws.f64(stride);
-  /** The peak of series `q` (of `cols`, offset `off` in an evaluation): [value, speed]. */
-  const peakOf = (cols: Float64Array, q: number, off: number): [number, number] => {
-    let best = -1;
-    let bestS = min;
+  // Every series' grid maximum, and its local maxima gathered by grid index (position in a row:
+  // torque of curve c, segment g at c·nSeg + g; shear at stride + the same; a shear series only
+  // for a tapered segment, whose shear is not its torque times a constant).
+  const refine = nS > 1 && options.refine !== false;
+  const bestValue = new Float64Array(2 * stride).fill(-1);
+  const bestSpeed = new Float64Array(2 * stride).fill(min);
+  const jobs = new Map<number, number[]>();
+  const scan = (cols: Float64Array, q: number, p: number): void => {
     const base = q * nS;
     for (let i = 0; i < nS; i++) {
       const v = cols[base + i];
-      if (v > best) {
-        best = v;
-        bestS = speeds[i];
+      if (v > bestValue[p]) {
+        bestValue[p] = v;
+        bestSpeed[p] = speeds[i];
       }
-    }
-    if (nS === 1) return [best, bestS];
-    for (let i = 0; i < nS; i++) {
-      const v = cols[base + i];
-      if (!(v > 0)) continue;
+      if (!refine || !(v > 0)) continue;
       const up = i === 0 || v > cols[base + i - 1];
       const down = i === nS - 1 || v >= cols[base + i + 1];
       if (!up || !down) continue;
-      const a = speeds[Math.max(0, i - 1)];
-      const b = speeds[Math.min(nS - 1, i + 1)];
-      const fa = cols[base + Math.max(0, i - 1)];
-      const fb = cols[base + Math.min(nS - 1, i + 1)];
-      const r = brentMax((s) => at(s)[off + q], a, fa, b, fb, speeds[i], v);
-      if (r[0] > best) {
-        best = r[0];
-        bestS = r[1];
+      const list = jobs.get(i);
+      if (list) list.push(p);
+      else jobs.set(i, [p]);
+    }
+  };
+  const curvesRefined = E === 1 ? 1 : curves;
+  for (let c = 0; c < curvesRefined; c++) {
+    for (let g = 0; g < nSeg; g++) {
+      const q = c * nSeg + g;
+      scan(torque, q, q);
+      if (segTaper[g]) scan(shear, q, stride + q);
+    }
+  }
+  // Elements of each segment (contiguous: elements run shaft by shaft, z ascending).
+  const segFirst = new Int32Array(nSeg).fill(-1);
+  const segEnd = new Int32Array(nSeg);
+  for (let el = 0; el < ne; el++) {
+    const g = sys.elemSeg[el];
+    if (segFirst[g] < 0) segFirst[g] = el;
+    segEnd[g] = el + 1;
+  }
+  const tol = options.peakTolerance ?? PEAK_SPEED_TOL;
+  const m = CHEB_POINTS;
+  const bw = baryWeights(m);
+  const tails = chebTailTables(m);
+  const lam = new Float64Array(m);
+  const nd = layout.dofCount;
+  /** Exact solves at the Chebyshev points of [lo, hi], halved until every interpolated rotation converges. */
+  const pieces = (lo: number, hi: number, depth: number, parentWorst: number, out: Piece[]): void => {
+    const nodes = chebPoints(lo, hi, m);
+    const rows: Float64Array[] = [];
+    const phis: Float64Array[] = [];
+    for (let j = 0; j < m; j++) {
+      let hit = solved.get(nodes[j]);
+      if (hit === undefined) {
+        hit = { row: new Float64Array(2 * stride), phis: new Float64Array(E * phiStride) };
+        evaluate(nodes[j], hit.row, hit.phis);
+        solved.set(nodes[j], hit);
+      }
+      rows.push(hit.row);
+      phis.push(hit.phis);
+    }
+    // The worst tail relative to its quantity's size (Δφ with a floor of 1e-15 of the largest Δφ).
+    let worst = 0;
+    for (let e = 0; e < E; e++) {
+      const base = e * phiStride;
+      let scale = 0;
+      let dScale = 0;
+      for (let j = 0; j < m; j++) {
+        const f = phis[j];
+        for (let k = 0; k < 2 * nd; k++) scale = Math.max(scale, Math.abs(f[base + k]));
+        for (let k = 2 * nd; k < phiStride; k++) dScale = Math.max(dScale, Math.abs(f[base + k]));
+      }
+      if (scale > 0) for (let k = 0; k < 2 * nd; k++) worst = Math.max(worst, chebTail(phis, base + k, tails) / scale);
+      for (let k = base + 2 * nd; k < base + phiStride; k++) {
+        let size = 1e-15 * dScale;
+        for (let j = 0; j < m; j++) size = Math.max(size, Math.abs(phis[j][k]));
+        if (size > 0) worst = Math.max(worst, chebTail(phis, k, tails) / size);
       }
     }
-    return [best, bestS];
+    // Converged; or at the round-off of the solves themselves (halving no longer shrinks the tail
+    // fourfold: a plateau, not a resolved peak); or split enough.
+    if (worst <= INTERP_TOL || worst > NOISE_PLATEAU * parentWorst || depth >= MAX_SPLITS) {
+      out.push({ nodes, rows, phis });
+      return;
+    }
+    const mid = 0.5 * (lo + hi);
+    pieces(lo, mid, depth + 1, worst, out);
+    pieces(mid, hi, depth + 1, worst, out);
   };
+  /** Series p (a position in a row) at speed s from the rotations interpolated on piece `pc`. */
+  const valueAt = (pc: Piece, p: number, s: number): number => {
+    baryCoefficients(pc.nodes, bw, s, lam);
+    const isShear = p >= stride;
+    const q = isShear ? p - stride : p;
+    const c = Math.floor(q / nSeg);
+    const g = q - c * nSeg;
+    let total = 0;
+    for (let e = c === E ? 0 : c; e < (c === E ? E : c + 1); e++) {
+      const omega = exc[e].order * s;
+      const base = e * phiStride;
+      let segT = 0;
+      let segS = 0;
+      for (let el = segFirst[g]; el < segEnd[g]; el++) {
+        const a = elemLeft[el];
+        let ar = 0;
+        let ai = 0;
+        let dr = 0;
+        let di = 0;
+        for (let j = 0; j < m; j++) {
+          const f = pc.phis[j];
+          const l = lam[j];
+          ar += l * f[base + a];
+          ai += l * f[base + nd + a];
+          dr += l * f[base + 2 * nd + el];
+          di += l * f[base + 2 * nd + ne + el];
+        }
+        let T: number;
+        let tau: number;
+        if (sys.elemTaper[el]) {
+          taperDynamicStiffness(sys, el, omega, zeta);
+          const r = taperElementPeak(sys, el, omega, zeta, ar, ai, ar + dr, ai + di);
+          T = r.torque;
+          tau = r.shear;
+        } else {
+          elementStiffnessAt(sys, el, omega, zeta, wr, wi, scratch);
+          T = uniformElementPeakAt(sys, el, omega, 2 * zeta, wr, wi, ar, ai, ar + dr, ai + di, scratch2);
+          tau = T * segShearFactor[g];
+        }
+        if (T > segT) segT = T;
+        if (tau > segS) segS = tau;
+      }
+      total += isShear ? segS : segT;
+    }
+    return total;
+  };
+  const solved = new Map<number, { row: Float64Array; phis: Float64Array }>();
+  // Brackets that overlap or touch (grid maxima two apart or closer) share one run of pieces.
+  const order = [...jobs.keys()].sort((a, b) => a - b);
+  for (let r = 0; r < order.length; ) {
+    let t = r;
+    while (t + 1 < order.length && order[t + 1] <= order[t] + 2) t++;
+    const list: Piece[] = [];
+    pieces(speeds[Math.max(0, order[r] - 1)], speeds[Math.min(nS - 1, order[t] + 1)], 0, Infinity, list);
+    for (let u = r; u <= t; u++) {
+      const i = order[u];
+      const bLo = speeds[Math.max(0, i - 1)];
+      const bHi = speeds[Math.min(nS - 1, i + 1)];
+      for (const p of jobs.get(i)!) {
+        for (const pc of list) {
+          const a = Math.max(pc.nodes[0], bLo);
+          const b = Math.min(pc.nodes[m - 1], bHi);
+          if (!(a < b)) continue;
+          // Candidates: the bracket's ends on the interpolant, the exact Chebyshev points inside.
+          const xs = [a];
+          const fs = [valueAt(pc, p, a)];
+          for (let k = 0; k < m; k++) {
+            if (pc.nodes[k] > a && pc.nodes[k] < b) {
+              xs.push(pc.nodes[k]);
+              fs.push(pc.rows[k][p]);
+            }
+          }
+          xs.push(b);
+          fs.push(valueAt(pc, p, b));
+          let best = 0;
+          for (let k = 1; k < xs.length; k++) if (fs[k] > fs[best]) best = k;
+          const lo = Math.max(0, best - 1);
+          const hi = Math.min(xs.length - 1, best + 1);
+          const [v, where] = brentMax((x) => valueAt(pc, p, x), xs[lo], fs[lo], xs[hi], fs[hi], xs[best], fs[best], tol);
+          if (v > bestValue[p]) {
+            bestValue[p] = v;
+            bestSpeed[p] = where;
+          }
+        }
+      }
+    }
+    r = t + 1;
+  }
   for (let c = 0; c < curves; c++) {
     for (let g = 0; g < nSeg; g++) {
       const q = c * nSeg + g;
-      if (c === E && E === 1) {
-        // One excitation: the sum is that excitation.
-        peakTorque[q] = peakTorque[g];
-        peakSpeed[q] = peakSpeed[g];
-        peakShear[q] = peakShear[g];
-        peakShearSpeed[q] = peakShearSpeed[g];
-        continue;
-      }
-      const [t, ts] = peakOf(torque, q, 0);
-      peakTorque[q] = t;
-      peakSpeed[q] = ts;
+      // One excitation: the sum is that excitation.
+      const src = E === 1 ? g : q;
+      peakTorque[q] = bestValue[src];
+      peakSpeed[q] = bestSpeed[src];
       if (segTaper[g]) {
-        const [v, vs] = peakOf(shear, q, stride);
-        peakShear[q] = v;
-        peakShearSpeed[q] = vs;
+        peakShear[q] = bestValue[stride + src];
+        peakShearSpeed[q] = bestSpeed[stride + src];
       } else {
-        peakShear[q] = t * segShearFactor[g];
-        peakShearSpeed[q] = ts;
+        peakShear[q] = bestValue[src] * segShearFactor[g];
+        peakShearSpeed[q] = bestSpeed[src];
       }
     }
   }
@@ -400,82 +557,6 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     damping: zeta,
     staticOmitted: input.staticShear === null,
   };
-}
-
-/**
- * The largest value of f on [a, b] near x (f(x) = fx known) by Brent's method for a minimum
- * applied to −f (golden section with parabolic steps; Brent, "Algorithms for Minimization
- * without Derivatives", 1973, procedure localmin), to PEAK_SPEED_TOL relative in x. The ends,
- * whose values fa and fb are known, are candidates too (a peak at the end of the range).
- * Answers [value, where].
- */
-export function brentMax(f: (x: number) => number, a: number, fa: number, b: number, fb: number, x: number, fx: number): [number, number] {
-  const C = (3 - Math.sqrt(5)) / 2;
-  let lo = a;
-  let hi = b;
-  let v = x;
-  let w = x;
-  let fv = -fx;
-  let fw = -fx;
-  let fxx = -fx;
-  let d = 0;
-  let e = 0;
-  for (let it = 0; it < MAX_PEAK_ITERATIONS; it++) {
-    const m = 0.5 * (lo + hi);
-    const tol = PEAK_SPEED_TOL * Math.abs(x) * 0.25 + 1e-300;
-    const t2 = 2 * tol;
-    if (Math.abs(x - m) <= t2 - 0.5 * (hi - lo)) break;
-    let useGolden = true;
-    if (Math.abs(e) > tol) {
-      // Parabola through x, w, v.
-      let r = (x - w) * (fxx - fv);
-      let q = (x - v) * (fxx - fw);
-      let p = (x - v) * q - (x - w) * r;
-      q = 2 * (q - r);
-      if (q > 0) p = -p;
-      else q = -q;
-      r = e;
-      e = d;
-      if (Math.abs(p) < Math.abs(0.5 * q * r) && p > q * (lo - x) && p < q * (hi - x)) {
-        d = p / q;
-        const u = x + d;
-        if (u - lo < t2 || hi - u < t2) d = x < m ? tol : -tol;
-        useGolden = false;
-      }
-    }
-    if (useGolden) {
-      e = x < m ? hi - x : lo - x;
-      d = C * e;
-    }
-    const u = Math.abs(d) >= tol ? x + d : x + (d > 0 ? tol : -tol);
-    const fu = -f(u);
-    if (fu <= fxx) {
-      if (u < x) hi = x;
-      else lo = x;
-      v = w;
-      fv = fw;
-      w = x;
-      fw = fxx;
-      x = u;
-      fxx = fu;
-    } else {
-      if (u < x) lo = u;
-      else hi = u;
-      if (fu <= fw || w === x) {
-        v = w;
-        fv = fw;
-        w = u;
-        fw = fu;
-      } else if (fu <= fv || v === x || v === w) {
-        v = u;
-        fv = fu;
-      }
-    }
-  }
-  let best: [number, number] = [-fxx, x];
-  if (fa > best[0]) best = [fa, a];
-  if (fb > best[0]) best = [fb, b];
-  return best;
 }
 
 /** SN_DYN_FORCED_SINGULAR naming the shaft of the unknown whose pivot vanished. */
