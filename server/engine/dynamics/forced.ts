@@ -568,7 +568,7 @@ function singular(model: ResolvedModel, layout: StationLayout, varOf: Int32Array
     {
       code: 'SN_DYN_FORCED_SINGULAR',
       pointer: '/dynamics',
-      message: `the dynamic stiffness is singular at ${speed.toPrecision(6)} rad/s near shaft "${id}": a part with neither stiffness nor inertia (a free group without inertia), or a speed exactly at an undamped resonance`,
+      message: `the dynamic stiffness is singular at ${speed.toPrecision(6)} rad/s near shaft "${id}": a part with neither stiffness to a support nor inertia, or a free system at speed 0 (its rigid-body mode is an undamped resonance: start the operating range above 0)`,
       shafts: [id],
     },
   ]);
