@@ -57,6 +57,9 @@ export const ERROR_CODES = {
   SN_REVIEW_STATE: { status: 409, summary: 'That review state cannot follow the revision\'s current one (approved and returned are final).' },
   // Dynamics (natural frequencies, issue 12).
   SN_DYN_NO_INERTIA: { status: 422, summary: 'A model with dynamics has no inertia, or a group of shafts free to spin has none: no natural frequency exists.' },
+  // Forced response (dynamics): damping needed, and a dynamic stiffness that cannot be factorised.
+  SN_DYN_NO_DAMPING: { status: 400, summary: 'A forced response needs a damping ratio above 0 (the response at a resonance is unbounded without it).' },
+  SN_DYN_FORCED_SINGULAR: { status: 422, summary: 'The dynamic stiffness of the forced response is singular: a part with neither stiffness nor inertia.' },
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
   // Progress and cancel (issue 14): the caller stopped the solve (closed the connection, Ctrl+C).
   SN_CANCELLED: { status: 499, summary: 'The solve was cancelled by its caller before it finished; nothing is wrong with the model.' },
