@@ -5,7 +5,7 @@
  * Pure: values in, strings out.
  */
 import type { Solution } from '../shared-types/solution.js';
-import { formatNumber } from '../shared-types/present.js';
+import { displayUnit, formatNumber, formatValue, type UnitSystem } from '../shared-types/present.js';
 
 /** Energy shares listed per mode: the largest ones. */
 const LEADERS = 3;
@@ -30,7 +30,7 @@ function leaders(shares: ReadonlyArray<{ item: string; share: number }> | null):
 }
 
 /** The dynamics tables of a solution with `modes` (empty text without them). */
-export function formatDynamicsReport(s: Solution, speedShaft?: string): string {
+export function formatDynamicsReport(s: Solution, units: UnitSystem, speedShaft?: string): string {
   if (s.modes === undefined) return '';
   const out: string[] = [];
   out.push('Natural frequencies (exact for the model; linear, small vibration) with the largest energy shares');
@@ -51,6 +51,42 @@ export function formatDynamicsReport(s: Solution, speedShaft?: string): string {
       ),
       '',
     );
+  }
+  const fr = s.forcedResponse;
+  if (fr !== undefined) {
+    const T = (x: number) => formatValue(x, 'torque', units, 4);
+    const S = (x: number) => formatValue(x, 'stress', units, 4);
+    const rpm = (x: number) => formatNumber(x / RPM, 5);
+    const uT = displayUnit('torque', units);
+    const uS = displayUnit('stress', units);
+    out.push(`Forced response over the running range (${fr.speeds.length} speeds, peaks refined; damping ratio ${formatNumber(fr.damping, 3)}): vibratory amplitude, all excitations summed`);
+    out.push(
+      table(
+        ['segment', `peak torque [${uT}]`, 'at [rpm]', `peak shear [${uS}]`, 'at [rpm]'],
+        fr.segments.map((g) => [g.item, T(g.peakTorque), rpm(g.peakSpeed), S(g.peakShear), rpm(g.peakShearSpeed)]),
+      ),
+      '',
+    );
+    if (fr.checks.length > 0) {
+      out.push('Peak vibratory + static shear against the allowable, worst first');
+      out.push(
+        table(
+          ['segment', 'layer', `vibratory [${uS}]`, 'at [rpm]', `static [${uS}]`, `sum [${uS}]`, `allowable [${uS}]`, 'util.', 'result'],
+          fr.checks.map((c) => [
+            `${c.shaft}[${c.segment}]`,
+            c.material,
+            S(c.vibratory),
+            rpm(c.speed),
+            c.static === null ? '-' : S(c.static),
+            S(c.value),
+            S(c.limit),
+            formatNumber(c.utilisation, 3),
+            c.pass ? 'ok' : 'FAILS',
+          ]),
+        ),
+        '',
+      );
+    }
   }
   return out.join('\n');
 }

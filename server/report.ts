@@ -111,7 +111,7 @@ export function formatReport(model: { name?: string }, s: Solution, units: UnitS
   if (s.stressRaisers !== undefined && s.stressRaisers.length > 0) out.push(raiserTable(s, units), '');
   out.push('Total twist per shaft (max rotation - min rotation)');
   out.push(table(['shaft', `twist [${u.angle}]`], s.shafts.map((sh) => [sh.id, deg(sh.totalTwist)])), '');
-  if (s.modes !== undefined) out.push(formatDynamicsReport(s, (model as { dynamics?: { speed?: { shaft?: string } } }).dynamics?.speed?.shaft));
+  if (s.modes !== undefined) out.push(formatDynamicsReport(s, units, (model as { dynamics?: { speed?: { shaft?: string } } }).dynamics?.speed?.shaft));
   if (s.checks.length > 0) {
     out.push('Checks, worst first');
     out.push(
@@ -225,7 +225,7 @@ export function formatCombinationsReport(model: { name?: string }, s: Solution, 
     }
     out.push(table(['segment', `max |T| [${u.torque}]`, 'in', 'layer', `max tau [${u.stress}]`, 'util.', 'in'], rows), '');
   }
-  if (s.modes !== undefined) out.push(formatDynamicsReport(s, (model as { dynamics?: { speed?: { shaft?: string } } }).dynamics?.speed?.shaft));
+  if (s.modes !== undefined) out.push(formatDynamicsReport(s, units, (model as { dynamics?: { speed?: { shaft?: string } } }).dynamics?.speed?.shaft));
   for (const w of s.warnings) out.push(`warning ${w.code}: ${w.message}`);
   out.push('', ...CAUTIONS.map((c) => `Caution: ${c}`));
   return out.join('\n');

@@ -4,6 +4,7 @@
  * right-hand rule about each shaft's own +z.
  */
 import Type, { type Static } from 'typebox';
+import { ForcedResponse } from './forced-response.js';
 
 /** Current solution format identifier. */
 export const SOLUTION_FORMAT = 'shaftnet-solution/1';
@@ -313,6 +314,8 @@ export const Solution = Type.Object(
     modes: Type.Optional(Type.Array(ModeResult)),
     /** Only with `dynamics` and a `speed`: every non-rigid mode with every order. */
     crossings: Type.Optional(Type.Array(CrossingResult)),
+    /** Only with `dynamics`, excitations and a `speed`: the forced response over the running range. */
+    forcedResponse: Type.Optional(ForcedResponse),
     warnings: Type.Array(Warning),
     stats: Type.Object({
       stations: Type.Integer(),

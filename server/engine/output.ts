@@ -39,6 +39,8 @@ import type { StationLayout } from './stations.js';
 import type { CheckColumns, Recovered } from './recover.js';
 import { checkGovernedBy, governedItems, type CombinationSolved, type Envelope, type Governed, type Superposition } from './combinations.js';
 import type { Crossing, DynamicsSolved } from './dynamics/modes.js';
+import type { ForcedSolved } from './dynamics/forced.js';
+import { forcedRecords, walkForcedResponse } from './dynamics/forced-output.js';
 
 /** A finished solve, in columns. */
 export interface Solved {
@@ -62,6 +64,8 @@ export interface Solved {
   };
   /** A model with dynamics: its modes and crossings. */
   readonly dynamics?: DynamicsSolved;
+  /** With excitations and a speed range: the forced response. */
+  readonly forced?: ForcedSolved;
 }
 
 /** The field names of one kind of object, in the order they are written. The first is never left out. */
@@ -118,6 +122,7 @@ const SOLUTION = rec<Solution>(
   'envelope',
   'modes',
   'crossings',
+  'forcedResponse',
   'warnings',
   'stats',
 );
@@ -199,6 +204,7 @@ const MODE_DIAGRAM = rec<Item<ModeResult['shafts']>['diagram']>('z', 'rotation')
 const ENERGY = rec<ModeResult['energy']>('strain', 'kinetic');
 const SHARE = rec<EnergyShare>('item', 'share');
 const CROSSING = rec<CrossingResult>('mode', 'order', 'speed', 'inRange');
+const FORCED = forcedRecords((...keys) => rec<Record<string, unknown>>(...keys));
 
 /**
  * What the walk writes with. Each value is the next field of the innermost
@@ -401,6 +407,8 @@ function walkSolution(sv: Solved, w: Writer): void {
     w.absent();
     w.absent();
   } else writeDynamics(w, sv.dynamics, model.dynamics?.speed !== null);
+  if (sv.forced === undefined) w.absent();
+  else walkForcedResponse(sv.forced, model, w, FORCED);
   w.list();
   for (const x of sv.warnings) {
     w.open(WARNING);

@@ -23,6 +23,8 @@ import type { Solved } from './output.js';
 import { recoverRaisers } from './raisers.js';
 import type { Workspace } from './workspace.js';
 import { solveDynamics, type DynamicsSolved } from './dynamics/modes.js';
+import { forcedResponse } from './dynamics/forced.js';
+import type { SegmentInertia } from './dynamics/forced-assembly.js';
 import {
   abridgedWarning,
   addToEnvelope,
@@ -95,13 +97,13 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   // Natural frequencies, modes and crossings (contract, "Dynamics"): from the same parts and reduction.
   const dynamics = model.dynamics ? ws.stage(() => solveDynamics(model, layout, parts.springs, reduction, findMechanisms(parts.springs, reduction, ws))) : undefined;
   if (dynamics) lap('dynamics');
-  if (dynamics && dynamics.rigidGroups > 0) return dynamicsOnly(model, layout, reduction, dynamics);
+  if (dynamics && dynamics.rigidGroups > 0) return dynamicsOnly(model, layout, reduction, dynamics, ws);
   ws.stage(() => assertNoMechanism(model, layout, parts.springs, reduction, ws));
   checkpoint(progress, 'assembly', 0.7);
   // K·x = f: the entries until the compressed columns are made, the diagonal and f until solved.
   const system = ws.stage(() => reducedSystem(parts.springs, parts.load, reduction, ws));
   lap('assemble');
-  if (model.loadCases.length > 0) return withDynamics(solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap }), dynamics);
+  if (model.loadCases.length > 0) return withDynamics(solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap }), dynamics, model, layout, ws);
 
   const warnings: Warning[] = [];
   const { xs, factorNonzeros } = solveLoads(model, layout, options, ws, parts, reduction, system, [{ load: parts.load, rhs: () => system.rhs }], warnings);
@@ -149,26 +151,55 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
       stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros, checksEvaluated: checks.total },
     },
     dynamics,
+    model,
+    layout,
+    ws,
   );
 }
 
-/** A solve with its dynamics' results, warnings and failing crossings (counted among the checks). */
-function withDynamics(solved: Solved, dynamics: DynamicsSolved | undefined): Solved {
-  if (!dynamics) return solved;
+/**
+ * A solve with its dynamics' results, warnings and failing crossings (counted among the checks),
+ * and, with excitations and a speed range, the forced response: its check adds each layer's peak
+ * static shear (the single state's, or the envelope's over the combinations; none when the statics
+ * are omitted) to the peak vibratory shear.
+ */
+function withDynamics(solved: Solved, dynamics: DynamicsSolved | undefined, model: ResolvedModel, layout: StationLayout, ws: Workspace, staticsOmitted = false): Solved {
+  if (!dynamics || !model.dynamics) return solved;
   const failing = dynamics.crossings.filter((c) => c.inRange).length;
+  const staticShear = staticsOmitted ? null : (solved.cases?.envelope.layerMaxShear ?? solved.rec.layerMaxShear);
+  const dyn = model.dynamics;
+  const forced = ws.stage(() => forcedResponse({ model, layout, dynamics: dyn, inertia: resolvedInertia(model), staticShear }, ws)) ?? undefined;
   return {
     ...solved,
     dynamics,
+    ...(forced ? { forced } : {}),
     warnings: [...solved.warnings, ...dynamics.warnings],
-    stats: { ...solved.stats, checksEvaluated: solved.stats.checksEvaluated + failing },
+    stats: { ...solved.stats, checksEvaluated: solved.stats.checksEvaluated + failing + (forced ? forced.checks.count : 0) },
   };
+}
+
+/** The shafts' own inertia per segment as normalise resolved it (ρ·Ip per length; a taper's density). */
+function resolvedInertia(model: ResolvedModel): SegmentInertia {
+  let n = 0;
+  for (const sh of model.shafts) n += sh.segments.length;
+  const perLength = new Float64Array(n);
+  const taperDensity = new Float64Array(n);
+  let g = 0;
+  for (const sh of model.shafts) {
+    for (const sg of sh.segments) {
+      if (sg.taper) taperDensity[g] = sg.taper.density ?? 0;
+      else perLength[g] = sg.rhoIp ?? 0;
+      g++;
+    }
+  }
+  return { perLength, taperDensity };
 }
 
 /**
  * A model free to spin, with dynamics (contract, binding reading): its dynamics are solved and its
  * statics, which have no solution, are omitted with a warning.
  */
-function dynamicsOnly(model: ResolvedModel, layout: StationLayout, reduction: Reduction, dynamics: DynamicsSolved): Solved {
+function dynamicsOnly(model: ResolvedModel, layout: StationLayout, reduction: Reduction, dynamics: DynamicsSolved, ws: Workspace): Solved {
   const omitted: Warning = {
     code: 'SN_STATICS_OMITTED',
     message: 'some shafts are free to spin (rigid-body modes at 0 Hz): the static part (torques, reactions, stresses, checks) has no solution and is omitted; the dynamics are solved',
@@ -212,6 +243,10 @@ function dynamicsOnly(model: ResolvedModel, layout: StationLayout, reduction: Re
       stats: { stations: layout.dofCount, unknowns: reduction.varCount, factorNonzeros: 0, checksEvaluated: 0 },
     },
     dynamics,
+    model,
+    layout,
+    ws,
+    true,
   );
 }
 

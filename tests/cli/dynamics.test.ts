@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { runCli } from '../../server/cli.js';
 import { solveModel } from '../../server/engine/index.js';
 import { readFileSync } from 'node:fs';
-import { formatNumber } from '../../shared-types/present.js';
+import { formatNumber, formatValue } from '../../shared-types/present.js';
 
 const demoPath = new URL('../../server/demos/geared-drive-vibration.json', import.meta.url).pathname;
 
@@ -37,5 +37,24 @@ describe('shaftnet solve with dynamics', () => {
     // The first mode's largest kinetic share leads its row.
     const lead = [...(sol.modes?.[0].energy.kinetic ?? [])].sort((a, b) => b.share - a.share)[0];
     expect(out.split('\n').find((l) => l.startsWith('1 '))).toContain(`${lead.item} ${formatNumber(100 * lead.share, 3)}%`);
+  });
+
+  it('prints each segment\'s forced-response peaks and the vibratory + static check, as the solution has them', async () => {
+    const { code, out } = await run(['solve', demoPath, '--units', 'us']);
+    expect(code).toBe(0);
+    const fr = solveModel(JSON.parse(readFileSync(demoPath, 'utf8'))).forcedResponse;
+    expect(fr).toBeDefined();
+    expect(out).toContain(`Forced response over the running range (${fr?.speeds.length} speeds`);
+    expect(out).toContain('peak torque [lbf*in]');
+    for (const g of fr?.segments ?? []) {
+      // 1 rpm = 2π/60 rad/s (exact definition); torque and stress in the chosen units.
+      const line = out.split('\n').find((l) => l.startsWith(`${g.item} `) && l.includes(formatValue(g.peakTorque, 'torque', 'us', 4)));
+      expect(line, g.item).toBeDefined();
+      expect(line).toContain(formatNumber((g.peakSpeed * 60) / (2 * Math.PI), 5));
+      expect(line).toContain(formatValue(g.peakShear, 'stress', 'us', 4));
+    }
+    const worst = fr?.checks[0];
+    expect(out).toContain('Peak vibratory + static shear against the allowable');
+    expect(out.split('\n').find((l) => l.startsWith(`${worst?.shaft}[${worst?.segment}] `) && l.includes(formatValue(worst?.value ?? 0, 'stress', 'us', 4)))).toBeDefined();
   });
 });
