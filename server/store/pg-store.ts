@@ -67,7 +67,8 @@ export function isConnectionLoss(err: unknown): boolean {
 export function describeTarget(connectionString: string): string {
   let url: URL;
   try {
-    url = new URL(connectionString);
+    // A URL without a host (postgres://user@/db?host=/run/postgresql) is valid for the driver, not for URL.
+    url = new URL(connectionString.replace(/^(postgres(?:ql)?:\/\/(?:[^/@]*@)?)\//, '$1localhost/'));
   } catch {
     return 'an address that is not a postgres:// URL';
   }
