@@ -5,6 +5,7 @@
  *   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense] [--combination ID]
  *   shaftnet demo [--units si|us] [--json | --csv]
  *   shaftnet serve [server options]        (see server/http/API.md)
+ *   shaftnet migrate --from DIR --to postgres://… [--force]   (server/cli-migrate.ts)
  *
  * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
  * message names the field or the shafts), 1 anything else.
@@ -21,6 +22,7 @@ const USAGE = `usage:
   shaftnet solve <model.json> [--units si|us] [--json | --csv] [--dense] [--combination ID]
   shaftnet demo [--units si|us] [--json | --csv]
   shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
+  shaftnet migrate --from DIR --to postgres://… [--force]   copy a library into PostgreSQL, then check it
 
   --units si|us   tables and CSV in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
   --json          print the solution object (SI units, compact JSON) instead of tables
@@ -93,6 +95,10 @@ export async function runCli(argv: string[], out: (s: string) => void, err: (s: 
       const { serveFromArgs } = await import('./main.js');
       await serveFromArgs(rest);
       return 0;
+    }
+    if (command === 'migrate') {
+      const { migrateFromArgs } = await import('./cli-migrate.js');
+      return await migrateFromArgs(rest, out, err);
     }
     if (command !== 'solve' && command !== 'demo') {
       err(command === undefined || command === '--help' || command === '-h' ? USAGE : `unknown command ${command}\n${USAGE}`);

@@ -64,7 +64,7 @@ function runAsUid(user: string): number | undefined {
 }
 
 /** A port that was free a moment ago on 127.0.0.1. */
-function freePort(): Promise<number> {
+export function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const srv = net.createServer();
     srv.once('error', reject);
