@@ -71,3 +71,25 @@ export function asyncFromSync(store: ModelStore): AsyncModelStore {
     close: async () => store.close(),
   };
 }
+
+/** Where the library is: a PostgreSQL database (`database`, a postgres:// URL) or else SQLite in `dataDir`. */
+export interface LibraryLocation {
+  readonly database?: string;
+  readonly dataDir: string;
+}
+
+/**
+ * Opens the library the server was told to use: PostgreSQL when a database URL is
+ * given (`--database`, SHAFTNET_DATABASE), else the SQLite file in the data
+ * directory. Rejects with what the opener throws (StoreConnectError,
+ * SchemaRefusedError, LibraryOpenError): the caller prints it and exits.
+ * PostgreSQL's driver is loaded only when it is used.
+ */
+export async function openLibrary(where: LibraryLocation): Promise<AsyncModelStore> {
+  if (where.database !== undefined && where.database !== '') {
+    const { openPgStore } = await import('./pg-store.js');
+    return openPgStore(where.database);
+  }
+  const { openSqliteStore } = await import('./sqlite-store.js');
+  return asyncFromSync(openSqliteStore(where.dataDir));
+}

@@ -1,7 +1,8 @@
 /**
- * The store's contract, one suite run against every store: SQLite (through
- * asyncFromSync) and PostgreSQL (a throwaway cluster; skipped, loudly, where
- * PostgreSQL is missing unless SHAFTNET_REQUIRE_POSTGRES=1). What a store must
+ * The store's contract, one suite run against every store, each opened as the
+ * server opens it (openLibrary): SQLite through asyncFromSync, and PostgreSQL in a
+ * throwaway cluster (skipped, loudly, where PostgreSQL is missing, unless
+ * SHAFTNET_REQUIRE_POSTGRES=1). What a store must
  * do is ModelStore's documentation (server/store/store.ts); nothing here is
  * specific to one store. Expected values are what the test itself wrote.
  */
@@ -10,14 +11,14 @@ import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { asyncFromSync, type AsyncModelStore } from '../../server/store/async-store.js';
+import { openLibrary, type AsyncModelStore } from '../../server/store/async-store.js';
 import { openPgStore } from '../../server/store/pg-store.js';
-import { openSqliteStore } from '../../server/store/sqlite-store.js';
 import { ModelNotFoundError, StaleRevisionError, type SaveInput } from '../../server/store/store.js';
 import { pgSuiteGate, startPgCluster, type PgCluster } from '../helpers/pg-cluster.js';
 
 interface Backend {
   readonly name: string;
+  readonly kind: AsyncModelStore['kind'];
   readonly skip: boolean;
   setup(): Promise<void>;
   teardown(): Promise<void>;
@@ -31,6 +32,7 @@ function sqliteBackend(): Backend {
   const dirs: string[] = [];
   return {
     name: 'SQLite (asyncFromSync)',
+    kind: 'sqlite',
     skip: false,
     async setup() {},
     async teardown() {
@@ -38,10 +40,10 @@ function sqliteBackend(): Backend {
     },
     async fresh() {
       dirs.push(fs.mkdtempSync(path.join(os.tmpdir(), 'shaftnet-contract-')));
-      return asyncFromSync(openSqliteStore(dirs[dirs.length - 1]));
+      return openLibrary({ dataDir: dirs[dirs.length - 1] }); // no database URL: SQLite in the data directory
     },
     async another() {
-      return asyncFromSync(openSqliteStore(dirs[dirs.length - 1]));
+      return openLibrary({ dataDir: dirs[dirs.length - 1] });
     },
   };
 }
@@ -52,6 +54,7 @@ function postgresBackend(): Backend {
   let url = '';
   return {
     name: 'PostgreSQL',
+    kind: 'postgres',
     skip: gate.skip,
     async setup() {
       cluster = await startPgCluster(gate.bin);
@@ -70,7 +73,7 @@ function postgresBackend(): Backend {
       } finally {
         await client.end();
       }
-      return openPgStore(url);
+      return openLibrary({ database: url, dataDir: '/nonexistent/never-used' }); // a database URL wins over --data
     },
     async another() {
       return openPgStore(url);
@@ -106,6 +109,7 @@ for (const backend of [sqliteBackend(), postgresBackend()]) {
 
     it('is ready, and creates at revision 1 reading the model back exactly', async () => {
       const store = await fresh();
+      expect(store.kind).toBe(backend.kind);
       expect(await store.ready()).toBe(true);
       const m = model('Shaft A', { notes: 'ü "quoted" \\ back', shafts: [{ id: 's', segments: [{ length: '40 mm' }] }] });
       const { id, revision } = await store.create({ model: m, name: 'Shaft A', author: 'ann', message: 'first' });
