@@ -122,10 +122,14 @@ export async function openPgStore(connectionString: string, options: PgStoreOpti
     throw new StoreConnectError(`cannot connect to the PostgreSQL server at ${target}: ${describeDriverError(err)}`, target);
   }
   let migration: MigrationResult | undefined;
+  const onError = () => undefined; // a loss between statements: the next statement rejects (see transaction)
+  client.on('error', onError);
   try {
     if (options.migrate !== false) migration = await migrate(client);
+    client.removeListener('error', onError);
     client.release();
   } catch (err) {
+    client.removeListener('error', onError);
     client.release(true);
     await pool.end().catch(() => undefined);
     if (isConnectionLoss(err)) throw new StoreConnectError(`lost the PostgreSQL server at ${target} while preparing the library: ${describeDriverError(err)}`, target);
@@ -215,6 +219,10 @@ export class PgStore implements AsyncModelStore {
       throw this.fault(err);
     }
     let broken: Error | undefined;
+    // A connection lost between two statements is reported on the client, which the pool
+    // leaves without a listener while it is checked out: without this one the process would end.
+    const onError = (err: Error) => (broken ??= err);
+    client.on('error', onError);
     try {
       await client.query('BEGIN');
       const result = await work(client);
@@ -225,6 +233,7 @@ export class PgStore implements AsyncModelStore {
       else await client.query('ROLLBACK').catch((e: Error) => (broken = e));
       throw this.fault(err);
     } finally {
+      client.removeListener('error', onError);
       client.release(broken ?? false);
     }
   }

@@ -140,6 +140,27 @@ describe.skipIf(gate.skip)('PostgreSQL store', () => {
     }
   });
 
+  it('a connection lost between two statements of a transaction: rejected as unavailable, and the process goes on', async () => {
+    const url = await newDb();
+    const store = await openPgStore(url);
+    try {
+      const result = await store
+        .withTransaction(async (c) => {
+          const pid = (await c.query<{ pid: number }>('SELECT pg_backend_pid() AS pid')).rows[0].pid;
+          // The client sees its connection end while no statement of it runs (the case the pool does not cover).
+          const ended = new Promise((resolve) => (c as unknown as pg.PoolClient).once('end', resolve));
+          await withClient(url, (w) => w.query('SELECT pg_terminate_backend($1)', [pid]));
+          await ended;
+          await c.query('SELECT 1');
+        })
+        .catch((e: unknown) => e);
+      expect(result).toBeInstanceOf(StoreUnavailableError);
+      expect(await store.count()).toBe(0); // a new connection, and the store works
+    } finally {
+      await store.close();
+    }
+  });
+
   for (const mode of ['fast', 'immediate'] as const) {
     it(`server lost while running (${mode} stop): every call rejects as unavailable, health says not ready; back again, it works without a restart`, async () => {
       const url = await newDb();
