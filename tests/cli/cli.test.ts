@@ -222,11 +222,11 @@ describe('writing to stdout', () => {
 
 describe('the installed command', () => {
   const bin = new URL('../../dist/server/cli.js', import.meta.url).pathname;
-  it('is one bundled file: it imports no module of its own but the server for serve', () => {
+  it('is one bundled file: it imports no module of its own but the server for serve and the PostgreSQL copy for migrate', () => {
     const text = readFileSync(bin, 'utf8');
     expect(text.startsWith('#!/usr/bin/env node')).toBe(true);
     const imports = [...text.matchAll(/(?:^|\n)import\s[^;]*?from\s*["']([^"']+)["']|import\(\s*["']([^"']+)["']\s*\)/g)].map((m) => m[1] ?? m[2]);
-    for (const spec of imports) expect(spec === './main.js' || spec.startsWith('node:'), spec).toBe(true);
+    for (const spec of imports) expect(spec === './main.js' || spec === './cli-migrate.js' || spec.startsWith('node:'), spec).toBe(true);
     expect(imports).toContain('./main.js');
   });
 
