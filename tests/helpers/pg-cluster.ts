@@ -99,6 +99,10 @@ export interface PgCluster {
   destroy(): void;
 }
 
+/** Clusters of this process still running: stopped at its exit if a suite's teardown never ran. */
+const running = new Set<() => void>();
+let exitHook = false;
+
 /** Makes, starts and answers a throwaway cluster. */
 export async function startPgCluster(bin: string, options: PgClusterOptions = {}): Promise<PgCluster> {
   const asRoot = process.getuid?.() === 0;
@@ -148,7 +152,29 @@ export async function startPgCluster(bin: string, options: PgClusterOptions = {}
     }
   }
   const url = (database: string) => `postgres://postgres@127.0.0.1:${port}/${encodeURIComponent(database)}`;
-  let running = true;
+  let up = true;
+  const destroy = () => {
+    running.delete(destroy);
+    try {
+      if (up) exec('pg_ctl', ['-D', data, '-m', 'immediate', '-w', 'stop']);
+    } finally {
+      up = false;
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  };
+  running.add(destroy);
+  if (!exitHook) {
+    exitHook = true;
+    process.once('exit', () => {
+      for (const d of [...running]) {
+        try {
+          d();
+        } catch {
+          // best effort at exit
+        }
+      }
+    });
+  }
   return {
     dir,
     port,
@@ -165,19 +191,12 @@ export async function startPgCluster(bin: string, options: PgClusterOptions = {}
     },
     stop(mode = 'fast') {
       exec('pg_ctl', ['-D', data, '-m', mode, '-w', 'stop']);
-      running = false;
+      up = false;
     },
     start() {
       start();
-      running = true;
+      up = true;
     },
-    destroy() {
-      try {
-        if (running) exec('pg_ctl', ['-D', data, '-m', 'immediate', '-w', 'stop']);
-      } finally {
-        running = false;
-        fs.rmSync(dir, { recursive: true, force: true });
-      }
-    },
+    destroy,
   };
 }
