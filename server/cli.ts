@@ -7,6 +7,7 @@
  *   shaftnet serve [server options]        (see server/http/API.md)
  *   shaftnet keys add|list|revoke ...      (server/cli-keys.ts)
  *   shaftnet backup | restore ...          (server/cli-backup.ts)
+ *   shaftnet migrate --from DIR --to postgres://… [--force]   (server/cli-migrate.ts)
  *
  * Exit status: 0 solved, 2 the model is invalid or cannot be solved (the
  * message names the field or the shafts), 130 stopped by Ctrl+C, 1 anything else.
@@ -27,6 +28,7 @@ const USAGE = `usage:
   shaftnet serve [--port N] [--host H] [--data DIR] [--token T] ...
   shaftnet keys add NAME --role editor|checker|approver --data DIR | keys list | keys revoke ID|NAME
   shaftnet backup --data DIR --out FILE | shaftnet restore --data DIR --from FILE
+  shaftnet migrate --from DIR --to postgres://… [--force]   copy a library into PostgreSQL, then check it
 
   --units si|us   tables and CSV in mm, N*m, MPa (si, default) or in, lbf*in, ksi (us)
   --json          print the solution object (SI units, compact JSON) instead of tables
@@ -110,6 +112,10 @@ export async function runCli(
     }
     if (command === 'keys') return await (await import('./cli-keys.js')).runKeys(rest, out, err);
     if (command === 'backup' || command === 'restore') return await (await import('./cli-backup.js')).runBackup(command, rest, out, err);
+    if (command === 'migrate') {
+      const { migrateFromArgs } = await import('./cli-migrate.js');
+      return await migrateFromArgs(rest, out, err);
+    }
     if (command !== 'solve' && command !== 'demo') {
       err(command === undefined || command === '--help' || command === '-h' ? USAGE : `unknown command ${command}\n${USAGE}`);
       return command === '--help' || command === '-h' ? 0 : 1;

@@ -222,11 +222,11 @@ describe('writing to stdout', () => {
 
 describe('the installed command', () => {
   const bin = new URL('../../dist/server/cli.js', import.meta.url).pathname;
-  it('is one bundled file: it imports no module of its own but the server for serve and the library commands (keys, backup)', () => {
+  it('is one bundled file: it imports no module of its own but the server for serve and the library commands (keys, backup) and the PostgreSQL copy (migrate)', () => {
     const text = readFileSync(bin, 'utf8');
     expect(text.startsWith('#!/usr/bin/env node')).toBe(true);
     const imports = [...text.matchAll(/(?:^|\n)import\s[^;]*?from\s*["']([^"']+)["']|import\(\s*["']([^"']+)["']\s*\)/g)].map((m) => m[1] ?? m[2]);
-    const onDemand = ['./main.js', './cli-keys.js', './cli-backup.js']; // each opens the SQLite library (a native module)
+    const onDemand = ['./main.js', './cli-keys.js', './cli-backup.js', './cli-migrate.js']; // each opens a library (a native module or the PostgreSQL client)
     for (const spec of imports) expect(onDemand.includes(spec) || spec.startsWith('node:'), spec).toBe(true);
     expect(imports).toContain('./main.js');
   });
