@@ -6,9 +6,11 @@ const PHASE_WORDS: Readonly<Record<string, string>> = {
   '': 'waiting for the server',
   stations: 'placing stations',
   assembly: 'assembling',
+  frequencies: 'finding the natural frequencies',
   factorisation: 'factorising',
   solve: 'solving',
   recovery: 'recovering torques and stresses',
+  'forced response': 'sweeping the running speeds (forced response)',
   writing: 'sending the results',
 };
 

@@ -17,7 +17,7 @@ export type { Solved } from './output.js';
 export type { SolvePhase } from './pipeline.js';
 export { Workspace } from './workspace.js';
 export { loadLpSolver, type LpSolver } from './overload.js';
-export { SolveAborted, overallFraction, throttled, PROGRESS_PHASES, type ProgressPhase, type SolveProgress } from './progress.js';
+export { SolveAborted, overallFraction, throttled, PROGRESS_PHASES, DYNAMICS_PHASES, type ProgressPhase, type SolveProgress } from './progress.js';
 
 /** Options of a solve. */
 export interface SolveOptions {

@@ -95,15 +95,16 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
   const reduction = ws.stage(() => reduceConstraints(layout.dofCount, parts.edges, shaftName, ws));
   checkpoint(progress, 'assembly', 0.6);
   // Natural frequencies, modes and crossings (contract, "Dynamics"): from the same parts and reduction.
-  const dynamics = model.dynamics ? ws.stage(() => solveDynamics(model, layout, parts.springs, reduction, findMechanisms(parts.springs, reduction, ws))) : undefined;
+  const dynamics = model.dynamics ? ws.stage(() => solveDynamics(model, layout, parts.springs, reduction, findMechanisms(parts.springs, reduction, ws), progress)) : undefined;
   if (dynamics) lap('dynamics');
   if (dynamics && dynamics.rigidGroups > 0) return dynamicsOnly(model, layout, reduction, dynamics, ws);
   ws.stage(() => assertNoMechanism(model, layout, parts.springs, reduction, ws));
-  checkpoint(progress, 'assembly', 0.7);
+  // (After the frequencies the phases have moved on: the next report is the factorisation's.)
+  if (!dynamics) checkpoint(progress, 'assembly', 0.7);
   // K·x = f: the entries until the compressed columns are made, the diagonal and f until solved.
   const system = ws.stage(() => reducedSystem(parts.springs, parts.load, reduction, ws));
   lap('assemble');
-  if (model.loadCases.length > 0) return withDynamics(solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap }), dynamics, model, layout, ws);
+  if (model.loadCases.length > 0) return withDynamics(solveCombinations(model, options, ws, { layout, parts, reduction, system, shown, lap }), dynamics, model, layout, ws, progress);
 
   const warnings: Warning[] = [];
   const { xs, factorNonzeros } = solveLoads(model, layout, options, ws, parts, reduction, system, [{ load: parts.load, rhs: () => system.rhs }], warnings);
@@ -154,6 +155,7 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
     model,
     layout,
     ws,
+    progress,
   );
 }
 
@@ -163,12 +165,20 @@ export function solvePipeline(model: ResolvedModel, options: PipelineOptions, ws
  * static shear (the single state's, or the envelope's over the combinations; none when the statics
  * are omitted) to the peak vibratory shear.
  */
-function withDynamics(solved: Solved, dynamics: DynamicsSolved | undefined, model: ResolvedModel, layout: StationLayout, ws: Workspace, staticsOmitted = false): Solved {
+function withDynamics(
+  solved: Solved,
+  dynamics: DynamicsSolved | undefined,
+  model: ResolvedModel,
+  layout: StationLayout,
+  ws: Workspace,
+  progress: SolveProgress | undefined,
+  staticsOmitted = false,
+): Solved {
   if (!dynamics || !model.dynamics) return solved;
   const failing = dynamics.crossings.filter((c) => c.inRange).length;
   const staticShear = staticsOmitted ? null : (solved.cases?.envelope.layerMaxShear ?? solved.rec.layerMaxShear);
   const dyn = model.dynamics;
-  const forced = ws.stage(() => forcedResponse({ model, layout, dynamics: dyn, inertia: resolvedInertia(model), staticShear }, ws)) ?? undefined;
+  const forced = ws.stage(() => forcedResponse({ model, layout, dynamics: dyn, inertia: resolvedInertia(model), staticShear }, ws, { progress })) ?? undefined;
   return {
     ...solved,
     dynamics,
@@ -246,6 +256,7 @@ function dynamicsOnly(model: ResolvedModel, layout: StationLayout, reduction: Re
     model,
     layout,
     ws,
+    undefined,
     true,
   );
 }

@@ -18,24 +18,33 @@
  */
 
 /** The phases of a solve, in order, as progress reports them. */
-export type ProgressPhase = 'stations' | 'assembly' | 'factorisation' | 'solve' | 'recovery' | 'writing';
+export type ProgressPhase = 'stations' | 'assembly' | 'frequencies' | 'factorisation' | 'solve' | 'recovery' | 'forced response' | 'writing';
 
-export const PROGRESS_PHASES: readonly ProgressPhase[] = ['stations', 'assembly', 'factorisation', 'solve', 'recovery', 'writing'];
+export const PROGRESS_PHASES: readonly ProgressPhase[] = ['stations', 'assembly', 'frequencies', 'factorisation', 'solve', 'recovery', 'forced response', 'writing'];
+
+/** The phases of a model with `dynamics` only: a model without reports none of them. */
+export const DYNAMICS_PHASES: readonly ProgressPhase[] = ['frequencies', 'forced response'];
 
 /**
  * Each phase's share of a whole solve, for one overall fraction (a bar, a time
  * left). Measured on 1e6-station chains and gear trees written as JSON (the
  * engine bench's models; `onPhase` durations): stations 6–12 %, assembly 3–8 %,
  * factorisation and solve 4–8 %, recovery 6–15 %, writing the JSON 57–79 %.
+ * The two phases of a model with dynamics (each root found; each speed of the
+ * forced response's sweep and each refined bracket) are given no share of the
+ * whole: their cost depends on the modes and speeds asked, not on the stations,
+ * so the bar holds while they run and their own fraction is reported.
  * A solution written as an object instead spends less in writing; the bar then
  * jumps at the end, it never goes back.
  */
 const PHASE_SHARE: Readonly<Record<ProgressPhase, number>> = {
   stations: 0.08,
   assembly: 0.05,
+  frequencies: 0,
   factorisation: 0.05,
   solve: 0.02,
   recovery: 0.1,
+  'forced response': 0,
   writing: 0.7,
 };
 

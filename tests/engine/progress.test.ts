@@ -6,8 +6,9 @@
  * on the next solve. Models from the engine bench (invented, for timing).
  * No expected number here is physical: the answer is compared with itself.
  */
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { PROGRESS_PHASES, SolveAborted, overallFraction, solveModelJson, throttled, Workspace, type ProgressPhase } from '../../server/engine/index.js';
+import { DYNAMICS_PHASES, PROGRESS_PHASES, SolveAborted, overallFraction, solveModelJson, throttled, Workspace, type ProgressPhase } from '../../server/engine/index.js';
 import { longChain } from '../helpers/long-chain.js';
 
 let pieces = 0;
@@ -26,7 +27,7 @@ describe('solve progress', () => {
     const seen: Array<[ProgressPhase, number]> = [];
     const text = json(model, { progress: { report: (p, f) => seen.push([p, f]), aborted: false } });
     expect(text).toBe(plain);
-    expect([...new Set(seen.map(([p]) => p))]).toEqual(PROGRESS_PHASES);
+    expect([...new Set(seen.map(([p]) => p))]).toEqual(PROGRESS_PHASES.filter((p) => !DYNAMICS_PHASES.includes(p)));
     let last = 0;
     for (const [p, f] of seen) {
       expect(f).toBeGreaterThanOrEqual(0);
@@ -82,5 +83,26 @@ describe('solve progress', () => {
     }
     // Reports at 0, 120, 240, … ms: every fourth of those sent 30 ms apart.
     expect(out).toEqual(Array.from({ length: 13 }, (_, k) => (4 * k) / 50));
+  });
+
+  it('a model with dynamics reports each root found and each speed swept, in phase order; aborted among the roots, it stops', () => {
+    // The invented demo with dynamics and one excitation (server/demos/geared-drive-vibration.json).
+    const demo = JSON.parse(readFileSync(new URL('../../server/demos/geared-drive-vibration.json', import.meta.url), 'utf8'));
+    const seen: Array<[ProgressPhase, number]> = [];
+    const text = json(demo, { progress: { report: (p, f) => seen.push([p, f]), aborted: false } });
+    expect(text).toBe(json(demo));
+    const phases = [...new Set(seen.map(([p]) => p))];
+    expect(phases).toEqual(PROGRESS_PHASES.filter((p) => phases.includes(p)));
+    expect(phases).toContain('frequencies');
+    expect(phases).toContain('forced response');
+    // Within each dynamics phase the fraction never goes back; the sweep reports once per grid speed at least.
+    for (const phase of DYNAMICS_PHASES) {
+      const f = seen.filter(([p]) => p === phase).map(([, x]) => x);
+      for (let k = 1; k < f.length; k++) expect(f[k]).toBeGreaterThanOrEqual(f[k - 1]);
+    }
+    expect(seen.filter(([p]) => p === 'forced response').length).toBeGreaterThanOrEqual(400);
+    let roots = 0;
+    const stop = { report: (p: ProgressPhase) => void (p === 'frequencies' && roots++), get aborted() { return roots >= 3; } };
+    expect(() => json(demo, { progress: stop })).toThrow(SolveAborted);
   });
 });

@@ -33,6 +33,7 @@
  * sum response plus the layer's peak static shear (given by the caller:
  * the single load state's, or the worst combination's) against the allowable.
  */
+import { checkpoint, type SolveProgress } from '../progress.js';
 import { ModelError } from '../../../shared-types/errors.js';
 import type { ResolvedModel } from '../normalise.js';
 import type { StationLayout } from '../stations.js';
@@ -91,6 +92,8 @@ export interface ForcedOptions {
   readonly refine?: boolean;
   /** Relative tolerance in speed of the refined peaks (default PEAK_SPEED_TOL). */
   readonly peakTolerance?: number;
+  /** Progress and abort: a checkpoint per grid speed (the first half) and per refined bracket (the second). */
+  readonly progress?: SolveProgress;
 }
 
 /** The checks of peak vibratory plus static shear against the allowable, one per layer with an allowable. */
@@ -289,6 +292,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
   const shear = ws.f64(stride * nS);
   const row = new Float64Array(2 * stride);
   for (let i = 0; i < nS; i++) {
+    checkpoint(options.progress, 'forced response', (0.5 * i) / nS);
     evaluate(speeds[i], row);
     for (let q = 0; q < stride; q++) {
       torque[q * nS + i] = row[q];
@@ -440,6 +444,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
   // Brackets that overlap or touch (grid maxima two apart or closer) share one run of pieces.
   const order = [...jobs.keys()].sort((a, b) => a - b);
   for (let r = 0; r < order.length; ) {
+    checkpoint(options.progress, 'forced response', 0.5 + (0.5 * r) / order.length);
     let t = r;
     while (t + 1 < order.length && order[t + 1] <= order[t] + 2) t++;
     const list: Piece[] = [];

@@ -16,6 +16,7 @@
  *    K(ω) has a pole there, not a zero; the mode is the combination of those elements' clamped modes
  *    whose end torques balance at every unknown (a small null space), found exactly.
  */
+import { checkpoint, type SolveProgress } from '../progress.js';
 import { ModelError } from '../../../shared-types/errors.js';
 import type { Warning } from '../../../shared-types/solution.js';
 import type { ResolvedDynamics } from './types.js';
@@ -55,7 +56,13 @@ export interface ModesFound {
  * `rigidGroups`: the reduced unknowns of each group free to turn (assemble.ts findMechanisms);
  * `shaftOfVar` names a group's shafts for an error.
  */
-export function findModes(sys: DynamicSystem, dyn: ResolvedDynamics, rigidGroups: readonly number[][], shaftsOfGroup: (g: readonly number[]) => string[]): ModesFound {
+export function findModes(
+  sys: DynamicSystem,
+  dyn: ResolvedDynamics,
+  rigidGroups: readonly number[][],
+  shaftsOfGroup: (g: readonly number[]) => string[],
+  progress?: SolveProgress,
+): ModesFound {
   const warnings: Warning[] = [];
   const n = sys.n;
   sys.assemble(0);
@@ -104,6 +111,8 @@ export function findModes(sys: DynamicSystem, dyn: ResolvedDynamics, rigidGroups
   // Isolate the elastic roots r … want − 1 in (0, top].
   const stack: Array<[number, number, number, number]> = [[0, r, top, sys.countBelow(top)]];
   while (stack.length > 0) {
+    // Each step is one count (a factorisation): the fraction is the share of the roots found.
+    checkpoint(progress, 'frequencies', want > 0 ? Math.min(1, modes.length / want) : 1);
     const [lo, nlo, hi, nhi] = stack.pop() as [number, number, number, number];
     if (nlo >= want || nhi === nlo) continue;
     if (nhi - nlo === 1) {

@@ -14,6 +14,7 @@
  * curves (β > CURVED_BETA), a sample at most every SAMPLE_STEP radians of the wave (at most
  * MAX_SAMPLES per element); a tapered element is drawn straight between its stations.
  */
+import type { SolveProgress } from '../progress.js';
 import type { ResolvedModel } from '../normalise.js';
 import type { StationLayout } from '../stations.js';
 import type { SpringSet } from '../assemble.js';
@@ -81,7 +82,14 @@ export interface DynamicsSolved {
 }
 
 /** The natural frequencies, modes and crossings of a model with `dynamics` (its statics' layout and reduction). */
-export function solveDynamics(model: ResolvedModel, layout: StationLayout, springs: SpringSet, red: Reduction, rigidGroups: readonly number[][]): DynamicsSolved {
+export function solveDynamics(
+  model: ResolvedModel,
+  layout: StationLayout,
+  springs: SpringSet,
+  red: Reduction,
+  rigidGroups: readonly number[][],
+  progress?: SolveProgress,
+): DynamicsSolved {
   const dyn = model.dynamics;
   if (dyn === null) throw new Error('solveDynamics: the model has no dynamics');
   const sys = new DynamicSystem(model, layout, springs, red);
@@ -92,7 +100,7 @@ export function solveDynamics(model: ResolvedModel, layout: StationLayout, sprin
   const shaftsOfGroup = (g: readonly number[]) => [...new Set(g.map((u) => model.shafts[layout.shaftOf[dofOfVar[u]]].id))];
   let found: ReturnType<typeof findModes>;
   try {
-    found = findModes(sys, dyn, rigidGroups, shaftsOfGroup);
+    found = findModes(sys, dyn, rigidGroups, shaftsOfGroup, progress);
   } catch (err) {
     if (!(err instanceof SingularMatrixError)) throw err;
     throw new ModelError([
