@@ -27,7 +27,7 @@ import type { Solved } from './output.js';
 
 /** Throws SN_ILL_CONDITIONED when any number the solution would carry is NaN or ±Infinity. */
 export function assertFiniteResults(sv: Solved): void {
-  const found = firstNonFinite(sv) ?? combinationNonFinite(sv) ?? dynamicsNonFinite(sv);
+  const found = firstNonFinite(sv) ?? combinationNonFinite(sv) ?? dynamicsNonFinite(sv) ?? forcedNonFinite(sv);
   if (found === null) return;
   const shaft = found.shaft >= 0 ? sv.model.shafts[found.shaft].id : undefined;
   const issue: ModelIssue = {
@@ -275,5 +275,26 @@ function dynamicsNonFinite(sv: Solved): NonFinite | null {
     }
   }
   for (const c of d.crossings) if (!Number.isFinite(c.speed)) return at(`the crossing speed of mode ${c.mode}, order ${c.order}`, c.speed);
+  return null;
+}
+
+/**
+ * With a forced response: the first non-finite torque or shear amplitude, peak or check value
+ * (a check's static part is NaN on purpose where the statics were not solved: not read).
+ */
+function forcedNonFinite(sv: Solved): NonFinite | null {
+  const f = sv.forced;
+  if (f === undefined) return null;
+  const at = (what: string, a: Float64Array): NonFinite => ({ pointer: '/dynamics/excitations', shaft: -1, what, value: a[firstBad(a, 0, a.length)] });
+  const columns: Array<[string, Float64Array]> = [
+    ['the forced response\'s vibratory torque', f.torque],
+    ['the forced response\'s vibratory shear', f.shear],
+    ['a forced-response peak torque', f.peakTorque],
+    ['a forced-response peak speed', f.peakSpeed],
+    ['a forced-response peak shear', f.peakShear],
+    ['a forced-response peak shear speed', f.peakShearSpeed],
+    ['a vibratory check value', f.checks.value],
+  ];
+  for (const [what, a] of columns) if (zeroIfFinite(a, 0, a.length) !== 0) return at(what, a);
   return null;
 }

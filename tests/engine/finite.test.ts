@@ -183,6 +183,24 @@ describe('the guard: a non-finite number after the solve is a 422, never an answ
     expect(e.issues[0].message).toMatch(/^the solve gave (NaN|-?Infinity) for /);
   });
 
+  it.each<[string, (sv: Solved) => void, RegExp]>([
+    ['a natural frequency', (sv) => ((sv.dynamics?.modes[0] as { angularFrequency: number }).angularFrequency = Number.NaN), /for the frequency of mode 1: /],
+    ['a mode shape', (sv) => ((sv.dynamics?.modes[1].shafts[0].rotation as Float64Array)[0] = Infinity), /for the shape of mode 2 of shaft "input"/],
+    ['a vibratory torque of the forced response', (sv) => ((sv.forced?.torque as Float64Array)[5] = Number.NaN), /for the forced response's vibratory torque/],
+    ['a forced-response peak shear', (sv) => ((sv.forced?.peakShear as Float64Array)[0] = -Infinity), /for a forced-response peak shear/],
+  ])('with dynamics (the invented demo geared-drive-vibration.json): %s', (_what, spoil, message) => {
+    const dyn = normaliseModel(JSON.parse(readFileSync(new URL('../../server/demos/geared-drive-vibration.json', import.meta.url), 'utf8')));
+    const e = withSolved(dyn, {}, (sv) => {
+      expect(sv.forced).toBeDefined();
+      assertFiniteResults(sv); // clean: passes
+      spoil(sv);
+      return refusal(() => assertFiniteResults(sv));
+    });
+    expect(e.code).toBe('SN_ILL_CONDITIONED');
+    expect(e.issues[0].pointer.startsWith('/dynamics')).toBe(true);
+    expect(e.issues[0].message).toMatch(message);
+  });
+
   it('twist rates are walked segment by segment when a peak shear is above 1e300 Pa: one that overflows is named', () => {
     // d = 1 mm and G = 1 kPa: G·J = 1e3 × π (1e-3)⁴ / 32 ≈ 9.8e-11 N·m², so a peak torque of 1e300 N·m gives a rate of 1e310 = Infinity.
     const soft = normaliseModel({
