@@ -149,6 +149,23 @@ export interface ForcedResponse {
   speeds: number[];
   segments: ForcedSegment[];
   excitations?: Array<{ id: string; segments: ForcedSegment[] }>;
+  /** Per layer with an allowable, worst first: peak vibratory + peak static shear against it (Pa; speed rad/s). */
+  checks?: ForcedCheck[];
+}
+
+/** One check of the forced response (shared-types/forced-response.ts ForcedCheck). */
+export interface ForcedCheck {
+  shaft: string;
+  segment: number;
+  material: string;
+  vibratory: number;
+  speed: number;
+  /** null when the statics were not solved (a model free to spin). */
+  static: number | null;
+  value: number;
+  limit: number;
+  utilisation: number;
+  pass: boolean;
 }
 
 /** A solution with the dynamics additions (each absent when the model has no `dynamics`). */

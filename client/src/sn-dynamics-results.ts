@@ -6,6 +6,7 @@ import {
   type CrossingResult,
   type DynamicsSolution,
   type EnergyShare,
+  type ForcedCheck,
   type ForcedResponse,
   computeCrossings,
   crossingRows,
@@ -250,6 +251,28 @@ export class SnDynamicsResults extends LitElement {
               <td>${g.item}</td><td class="num">${formatValue(g.peakTorque, 'torque', this.system, 4)}</td>
               <td class="num">${g.peakShear === undefined ? formatValue(Math.max(0, ...g.shear), 'stress', this.system, 4) : formatValue(g.peakShear, 'stress', this.system, 4)}</td>
               <td class="num">${formatNumber(fromRadPerS(g.peakSpeed, 'rpm'), 5)}</td>
+            </tr>`,
+          )}
+        </tbody>
+      </table></div>
+      ${this.forcedChecks(fr.checks ?? [])}`;
+  }
+
+  /** The check of each layer: peak vibratory plus peak static shear against the allowable, worst first. */
+  private forcedChecks(checks: readonly ForcedCheck[]) {
+    if (checks.length === 0) return nothing;
+    const su = prettyUnit(displayUnit('stress', this.system));
+    const S = (x: number) => formatValue(x, 'stress', this.system, 4);
+    return html`<h4>Vibratory + static shear against the allowable</h4>
+      <div class="wide"><table class="forced-checks">
+        <thead><tr><th>Segment</th><th>Layer</th><th>Vibratory [${su}]</th><th>At [rpm]</th><th>Static [${su}]</th><th>Sum [${su}]</th><th>Allowable [${su}]</th><th>Utilisation</th><th>Result</th></tr></thead>
+        <tbody>
+          ${checks.map(
+            (c) => html`<tr data-forced-check=${`${c.shaft}[${c.segment}]`} data-utilisation=${c.utilisation} class=${c.pass ? '' : 'over'}>
+              <td>${c.shaft}[${c.segment}]</td><td>${c.material}</td><td class="num">${S(c.vibratory)}</td>
+              <td class="num">${formatNumber(fromRadPerS(c.speed, 'rpm'), 5)}</td><td class="num">${c.static === null ? '—' : S(c.static)}</td>
+              <td class="num">${S(c.value)}</td><td class="num">${S(c.limit)}</td><td class="num">${formatNumber(c.utilisation, 3)}</td>
+              <td class=${c.pass ? 'ok' : 'fail'}>${c.pass ? 'ok' : 'FAILS'}</td>
             </tr>`,
           )}
         </tbody>

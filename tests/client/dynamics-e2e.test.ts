@@ -152,6 +152,8 @@ describe.runIf(hasBrowser)('dynamics in Chromium against the real server', () =>
     const row = page.locator('sn-results sn-dynamics-results table.forced tr[data-forced-row="input[0]"]');
     await row.waitFor({ timeout: 20_000 });
     close(Number(await row.getAttribute('data-peak-speed')), CROSSING, 0.02);
+    // Each of the two segments' steel layer is checked: peak vibratory + peak static shear against 55 MPa.
+    expect(await page.locator('sn-results sn-dynamics-results table.forced-checks tr[data-forced-check]').count()).toBe(2);
     await page.locator('sn-results sn-dynamics-results sn-dynamics-chart[data-forced]').scrollIntoViewIfNeeded();
     await shot('42-dynamics-forced-1366');
     expect(errors).toEqual([]);
