@@ -408,7 +408,7 @@ function walkSolution(sv: Solved, w: Writer): void {
     w.absent();
   } else writeDynamics(w, sv.dynamics, model.dynamics?.speed !== null);
   if (sv.forced === undefined) w.absent();
-  else walkForcedResponse(sv.forced, model, w, FORCED);
+  else walkForcedResponse(sv.forced, sv.forced.model, w, FORCED);
   w.list();
   for (const x of sv.warnings) {
     w.open(WARNING);

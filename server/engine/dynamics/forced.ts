@@ -140,6 +140,8 @@ export interface ForcedSolved {
   readonly damping: number;
   /** True when no static stress was given: checks hold the vibratory stress alone. */
   readonly staticOmitted: boolean;
+  /** The model it was solved for (the output names segments and layers from it: a solution whose statics are omitted shows shafts without segments). */
+  readonly model: ResolvedModel;
 }
 
 /**
@@ -561,6 +563,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     solves,
     damping: zeta,
     staticOmitted: input.staticShear === null,
+    model: input.model,
   };
 }
 
