@@ -52,7 +52,7 @@ export const ERROR_CODES = {
   SN_PATH_TOO_LONG: { status: 414, summary: 'A part of the path is longer than the server reads (1000 characters).' },
   // Review and personal keys (issue 13).
   SN_ROLE: { status: 403, summary: 'The request needs a personal key with a role this one (or the team token) does not have; the message names the role.' },
-  SN_FOUR_EYES: { status: 403, summary: 'Nobody checks, approves or returns a revision they authored, and the approver is not its checker.' },
+  SN_FOUR_EYES: { status: 403, summary: 'Nobody checks, approves or returns a revision they authored.' },
   SN_REVIEW_STALE: { status: 409, summary: 'A review state was sent for a revision that is no longer the latest of its model.' },
   SN_REVIEW_STATE: { status: 409, summary: 'That review state cannot follow the revision\'s current one (approved and returned are final).' },
   // Dynamics (natural frequencies, issue 12).

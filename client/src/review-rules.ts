@@ -6,8 +6,8 @@
  *
  * The server decides; these rules only mirror its spec so that a button the
  * server would refuse is not offered. Four-eyes (common practice, no source):
- * nobody checks, approves or returns a revision they saved, and the approver is
- * not the checker.
+ * nobody checks, approves or returns a revision they saved (the checker may also
+ * approve, with an approver's key).
  */
 import type { Identity, Review, ReviewEvent, ReviewState, RevisionEvent } from './review-types.js';
 
@@ -65,12 +65,6 @@ export function preparedBy(review: Review | null, author: string): string {
   return review?.history.find((e) => e.state === 'prepared')?.by ?? author;
 }
 
-/** Who checked the revision (the latest `checked` step), or null. */
-export function checkedBy(review: Review | null): string | null {
-  const checks = review?.history.filter((e) => e.state === 'checked') ?? [];
-  return checks.length ? checks[checks.length - 1].by : null;
-}
-
 /** Each action's enablement for the signed-in key on the shown revision. */
 export function reviewActions(ctx: ReviewContext): Record<ReviewAction, ActionState> {
   const out = {} as Record<ReviewAction, ActionState>;
@@ -95,7 +89,6 @@ function refusal(action: ReviewAction, ctx: ReviewContext): string {
   if (!FROM[action].includes(review.state)) {
     return action === 'approved' ? `Revision ${revision} must be checked before it is approved.` : `Revision ${revision} is already ${review.state}.`;
   }
-  if (action === 'approved' && checkedBy(review) === identity.name) return `You checked revision ${revision}: another approver approves it (four eyes).`;
   return '';
 }
 
@@ -123,7 +116,7 @@ export function reviewErrorView(err: ErrorLike, revision: number): ReviewErrorVi
     case 'SN_ROLE':
       return plain(`Your key may not do this. ${err.message}`);
     case 'SN_FOUR_EYES':
-      return plain(`Four eyes: nobody checks, approves or returns a revision they saved, and the approver is not the checker. ${err.message}`);
+      return plain(`Four eyes: nobody checks, approves or returns a revision they saved. ${err.message}`);
     case 'SN_REVIEW_STALE':
       return plain(`Revision ${revision} is no longer the latest: someone saved a newer revision. Only the latest can be reviewed.`, true);
     case 'SN_REVIEW_STATE':

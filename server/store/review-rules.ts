@@ -70,11 +70,5 @@ export function reviewRefusal(
     const verb = target === 'checked' ? 'check' : target === 'approved' ? 'approve' : 'return';
     return { kind: 'four-eyes', message: `${by} authored this revision and may not ${verb} it (four eyes: someone else must)` };
   }
-  if (target === 'approved') {
-    const checker = [...history].reverse().find((e) => e.state === 'checked')?.by;
-    if (checker !== undefined && samePerson(checker, by)) {
-      return { kind: 'four-eyes', message: `${by} checked this revision and may not also approve it (four eyes: someone else must)` };
-    }
-  }
   return null;
 }

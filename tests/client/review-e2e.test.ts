@@ -1,12 +1,11 @@
 /**
  * End-to-end test of issue 13 in real Chromium (playwright-core, /usr/bin/chromium)
  * against the real built server (dist/server/main.js) on a free loopback port: one
- * personal key prepares and saves a model (two revisions), a second key checks it and a
- * third approves it (four eyes: the approver is not the checker, so "a second key checks
- * and approves" takes two reviewers besides the author), each browser seeing the others'
+ * personal key prepares and saves a model (two revisions), a second key checks and approves
+ * it (four eyes: nobody reviews a revision they saved), each browser seeing the others'
  * steps live; the calculation sheet of the approved revision is opened and an equation's
  * numbers are read from it; the two revisions are compared; a third revision, saved by the
- * checker, is announced to the others live and returned with a note.
+ * second key, is announced to the others live and returned with a note by a third (a checker).
  *
  * Keys are made with `node dist/server/cli.js keys add NAME --role ... --data DIR` before
  * the server starts (with a personal key the server asks for a key on every route). Each
@@ -76,8 +75,8 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
   const suite = browserSuite('review-e2e', {
     beforeStart: (dataDir) => {
       keys.Dana = addKey(dataDir, 'Dana', 'editor');
-      keys.Lee = addKey(dataDir, 'Lee', 'checker');
-      keys.Kim = addKey(dataDir, 'Kim', 'approver');
+      keys.Lee = addKey(dataDir, 'Lee', 'approver');
+      keys.Kim = addKey(dataDir, 'Kim', 'checker');
     },
   });
 
@@ -133,11 +132,10 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
     expect(await panel(dana).locator('tr[data-step="prepared"] td').nth(1).innerText()).toBe('Dana');
     await shot(dana, '40-review-prepared-1366');
 
-    // ——— Lee (checker) checks revision 2; Dana sees it at once ———
+    // ——— Lee (approver) checks revision 2; Dana sees it at once ———
     const lee = await signedIn('Lee', `/m/${encodeURIComponent(id)}`);
     await expect.poll(() => panel(lee).getAttribute('data-state')).toBe('prepared');
-    expect(await action(lee, 'approved').isDisabled()).toBe(true); // a checker does not approve
-    expect(await action(lee, 'approved').getAttribute('title')).toBe("Approve needs an approver; your key's role is checker.");
+    expect(await action(lee, 'approved').isDisabled()).toBe(true); // not checked yet
     expect(await action(lee, 'returned').isDisabled()).toBe(true); // Return needs a note first
     await action(lee, 'checked').click();
     await expect.poll(() => panel(lee).getAttribute('data-state')).toBe('checked');
@@ -149,20 +147,21 @@ describe.runIf(hasBrowser)('review with personal keys, sheet and compare in Chro
     expect(await dana.evaluate(() => document.activeElement?.localName ?? '')).not.toBe('sn-live-notice');
     await shot(dana, '41-review-live-notice-1366');
 
-    // ——— Kim (approver) approves it ———
+    // ——— Lee, the same second key, approves it ———
+    await expect.poll(() => action(lee, 'approved').isDisabled()).toBe(false);
+    await action(lee, 'approved').click();
+    await expect.poll(() => panel(lee).getAttribute('data-state')).toBe('approved');
+    expect(await panel(lee).locator('[data-approved]').innerText()).toMatch(/^Revision 2 is approved and stays approved\./);
+    expect(await panel(lee).locator('tbody tr').evaluateAll((rows) => rows.map((r) => `${r.getAttribute('data-step')} ${(r.children[1] as HTMLElement).innerText}`)))
+      .toEqual(['prepared Dana', 'checked Lee', 'approved Lee']);
+    await expect.poll(() => dana.locator('sn-live-notice [data-notice="review"] .text').innerText().catch(() => '')).toBe('Revision 2 approved by Lee');
+    // Kim (a checker) opens it: approved is final, so the panel offers no review action.
     const kim = await signedIn('Kim', `/m/${encodeURIComponent(id)}`);
-    await expect.poll(() => panel(kim).getAttribute('data-state')).toBe('checked');
-    expect(await action(kim, 'checked').isDisabled()).toBe(true);
-    await action(kim, 'approved').click();
     await expect.poll(() => panel(kim).getAttribute('data-state')).toBe('approved');
-    expect(await panel(kim).locator('[data-approved]').innerText()).toMatch(/^Revision 2 is approved and stays approved\./);
-    expect(await panel(kim).locator('tbody tr').evaluateAll((rows) => rows.map((r) => `${r.getAttribute('data-step')} ${(r.children[1] as HTMLElement).innerText}`)))
-      .toEqual(['prepared Dana', 'checked Lee', 'approved Kim']);
-    await expect.poll(() => dana.locator('sn-live-notice [data-notice="review"] .text').innerText().catch(() => '')).toBe('Revision 2 approved by Kim');
-    await expect.poll(() => lee.locator('sn-live-notice [data-notice="review"] .text').innerText().catch(() => '')).toBe('Revision 2 approved by Kim');
+    expect(await kim.locator('sn-review-panel button[data-review-action]').count()).toBe(0);
     // The printed report says so in its head.
     await kim.emulateMedia({ media: 'print' });
-    expect(await kim.locator('sn-report-head .review.approved').innerText()).toMatch(/^APPROVED revision 2\. Review of revision 2: APPROVED\. prepared by Dana .*; checked by Lee .*; approved by Kim /);
+    expect(await kim.locator('sn-report-head .review.approved').innerText()).toMatch(/^APPROVED revision 2\. Review of revision 2: APPROVED\. prepared by Dana .*; checked by Lee .*; approved by Lee /);
     await kim.emulateMedia({ media: 'screen' });
     await shot(kim, '42-review-approved-1366');
 

@@ -45,10 +45,11 @@ describe('review rules', () => {
     ]);
   });
 
-  it('four eyes: the author never, the checker not as approver; names compared without case or spaces', () => {
+  it('four eyes: the author never (the checker may also approve); names compared without case or spaces', () => {
     expect(reviewRefusal([saved], 'checked', 'ann')?.kind).toBe('four-eyes');
     expect(reviewRefusal([saved], 'returned', ' ANN ')?.kind).toBe('four-eyes');
-    expect(reviewRefusal([saved, checked], 'approved', 'bob')?.kind).toBe('four-eyes');
+    expect(reviewRefusal([saved, checked], 'approved', 'bob')).toBeNull();
+    expect(reviewRefusal([saved, checked], 'approved', 'Ann')?.kind).toBe('four-eyes');
     expect(reviewRefusal([saved, checked], 'returned', 'Bob')).toBeNull();
     expect(reviewRefusal([saved, checked], 'approved', 'Dan')).toBeNull();
   });

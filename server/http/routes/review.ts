@@ -4,7 +4,7 @@
  * revision of a model along prepared → checked → approved, or to returned
  * (a note required). Only personal keys review: checker or approver to check
  * or return, approver to approve (403 SN_ROLE names the role needed); nobody
- * reviews their own revision, and the approver is not its checker (403
+ * reviews their own revision (403
  * SN_FOUR_EYES); a revision that is not the latest is 409 SN_REVIEW_STALE, a
  * state that cannot follow the current one 409 SN_REVIEW_STATE. Each change
  * is recorded (who, when, note) and told to the model's live notice.
