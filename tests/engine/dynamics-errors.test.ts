@@ -3,40 +3,12 @@
  * (server/demos/geared-drive-vibration.json) and asserts the error code and the JSON pointer; then
  * the warnings where inertia is left out, and an excitation's point as a station.
  */
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { ERROR_CODES, ModelError, type ErrorCode } from '../../shared-types/errors.js';
+import type { ErrorCode } from '../../shared-types/errors.js';
 import { solveModel, solveModelJson } from '../../server/engine/index.js';
+import { demoEditor, expectIssue, refusal, type Json } from './refusals.js';
 
-const demoText = readFileSync(new URL('../../server/demos/geared-drive-vibration.json', import.meta.url), 'utf8');
-
-// Broken models on purpose: the demo is edited as plain JSON.
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
-type Json = any;
-
-function demo(change: (m: Json) => void = () => {}): Json {
-  const m = JSON.parse(demoText) as Json;
-  change(m);
-  return m;
-}
-
-function refusal(model: unknown): ModelError {
-  try {
-    solveModel(model);
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('the model solved, but a ModelError was expected');
-}
-
-function expectIssue(model: unknown, code: ErrorCode, pointer: string): ModelError {
-  const e = refusal(model);
-  expect(e.issues.map((i) => [i.code, i.pointer])).toEqual([[code, pointer]]);
-  expect(e.issues[0].message.length).toBeGreaterThan(0);
-  expect(e.status).toBe(ERROR_CODES[code].status);
-  return e;
-}
+const demo = demoEditor('geared-drive-vibration.json');
 
 describe('dynamics input', () => {
   it('the demo solves with its modes and crossings', () => {

@@ -5,35 +5,13 @@
  * connections named). Then the warnings path (a rigid loop that jams) and many
  * errors at once.
  */
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { ERROR_CODES, ModelError, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
 import type { Solution } from '../../shared-types/solution.js';
 import { solveModel } from '../../server/engine/index.js';
+import { demoEditor, refusal, type Json } from './refusals.js';
 
-const demoText = readFileSync(new URL('../../server/demos/mixer-drive.json', import.meta.url), 'utf8');
-
-// The tests build broken models on purpose, so the demo is edited as plain JSON.
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
-type Json = any;
-
-/** A fresh copy of the demo, edited by `change`. */
-function demo(change: (m: Json) => void = () => {}): Json {
-  const m = JSON.parse(demoText) as Json;
-  change(m);
-  return m;
-}
-
-/** The ModelError a model throws (fails the test if it solves or throws something else). */
-function refusal(model: unknown): ModelError {
-  try {
-    solveModel(model);
-  } catch (e) {
-    if (e instanceof ModelError) return e;
-    throw e;
-  }
-  throw new Error('the model solved, but a ModelError was expected');
-}
+const demo = demoEditor('mixer-drive.json');
 
 /** Asserts that the model is refused with exactly these (code, pointer) issues, first one first. */
 function expectIssues(model: unknown, expected: Array<[ErrorCode, string]>): ModelError {
