@@ -129,6 +129,16 @@ export interface Envelope {
   readonly reactionMaxAt: Int32Array;
 }
 
+/** Per combination, what the solve keeps of it besides the envelope. */
+export interface CombinedAll {
+  /** Largest |Σ torques| of a shaft, N·m. */
+  readonly maxResidual: Float64Array;
+  /** Largest peak |T| of a segment, N·m. */
+  readonly torqueScale: Float64Array;
+  /** 1 when every number it lists is finite. */
+  readonly finite: Uint8Array;
+}
+
 /** The index of the combination to show: the one named, else the first; an unknown id is refused. */
 export function shownCombination(model: ResolvedModel, id: string | undefined): number {
   if (model.loadCases.length === 0 || id === undefined) return 0;
@@ -240,6 +250,8 @@ export class Superposition {
   private readonly segPhiTo: Float64Array;
   private readonly segPeak: Float64Array;
   private readonly roots = new Float64Array(2);
+  /** True when every segment has an element (so the pass by station meets each). */
+  private readonly spansCover: boolean;
 
   /**
    * Spans (a model without tapers and distributed torques): runs of elements between stations where
@@ -259,6 +271,8 @@ export class Superposition {
     readonly pairSeg: Int32Array;
     readonly pairSpan: Int32Array;
     readonly pairZ: Float64Array;
+    /** The station where each run starts. */
+    readonly pairD: Int32Array;
     /** Per segment: its first and last station. */
     readonly segFrom: Int32Array;
     readonly segTo: Int32Array;
@@ -332,6 +346,9 @@ export class Superposition {
     this.segPhiFrom = f(nSeg);
     this.segPhiTo = f(nSeg);
     this.segPeak = f(this.hasTaper ? nSeg : 0);
+    const met = new Uint8Array(nSeg);
+    for (let e = 0; e < elems; e++) met[this.segBase[layout.shaftOf[layout.elemLeft[e]]] + layout.elemSegment[e]] = 1;
+    this.spansCover = met.every((x) => x === 1);
   }
 
   /** The spans of a model without tapers and distributed torques (see `spans`). */
@@ -373,6 +390,7 @@ export class Superposition {
     const pairSeg: number[] = [];
     const pairSpan: number[] = [];
     const pairZ: number[] = [];
+    const pairD: number[] = [];
     const segFrom = new Int32Array(this.segments.length);
     const segTo = new Int32Array(this.segments.length);
     for (let s = 0; s + 1 < shaftStart.length; s++) {
@@ -384,6 +402,7 @@ export class Superposition {
           pairSeg.push(g);
           pairSpan.push(elemOf[e]);
           pairZ.push(z[d]);
+          pairD.push(d);
         }
         if (q < 0 || pairSeg[q] !== g) segFrom[g] = d;
         segTo[g] = d + 1;
@@ -400,6 +419,7 @@ export class Superposition {
       pairSeg: Int32Array.from(pairSeg),
       pairSpan: Int32Array.from(pairSpan),
       pairZ: Float64Array.from(pairZ),
+      pairD: Int32Array.from(pairD),
       segFrom,
       segTo,
     };
@@ -467,6 +487,279 @@ export class Superposition {
     if (this.skeleton === undefined && this.model.raisers.length === 0) this.skeleton = this.checks(st);
     st.raisers = this.model.raisers.length > 0 ? recoverRaisers(this.model, { ...this.layout, elemT1: st.t1, elemT2: st.t2 }, st) : undefined;
     return st;
+  }
+
+  /**
+   * Every combination (its column weights) into `env`: by station (`passBySpan`) where the model
+   * has spans and no stress raisers, else evaluated one by one. `byStation` false: one by one always
+   * (the reference the tests hold the pass to).
+   */
+  combineAll(weights: readonly Float64Array[], env: Envelope, byStation = true): CombinedAll {
+    const K = weights.length;
+    if (byStation && K > 0 && this.spans && this.model.raisers.length === 0 && this.spansCover) {
+      // The checks' kinds, places and limits (`checkList`) are made from the first combination evaluated.
+      if (this.skeleton === undefined) this.evaluate(weights[0], false);
+      return this.passBySpan(weights, env);
+    }
+    const out = { maxResidual: new Float64Array(K), torqueScale: new Float64Array(K), finite: new Uint8Array(K) };
+    weights.forEach((w, k) => {
+      const r = this.evaluate(w, false);
+      addToEnvelope(env, this, r, k, w);
+      let torqueScale = 0;
+      for (let g = 0; g < r.segMaxAbs.length; g++) torqueScale = Math.max(torqueScale, r.segMaxAbs[g]);
+      out.maxResidual[k] = r.maxResidual;
+      out.torqueScale[k] = torqueScale;
+      out.finite[k] = combinationFinite(r) ? 1 : 0;
+    });
+    return out;
+  }
+
+  /**
+   * Every combination (column weights `weights`) into `env` in one pass by station, for a model with
+   * spans and no stress raisers: the numbers of `evaluate` and `addToEnvelope` taken combination by
+   * combination, bit for bit (the same sums in the same order; the first combination wins ties).
+   * Per span the T and φ of every combination at its start are formed once into rows K long;
+   * each station, each run of a segment in a span and each segment's end then sweep those rows
+   * with the envelope's extremes held in locals. A shaft's extremes of φ are at its spans' ends
+   * (φ is p + t·flex along a span, flex growing), so its total twist reads those only.
+   */
+  private passBySpan(weights: readonly Float64Array[], env: Envelope): CombinedAll {
+    const sp = this.spans as NonNullable<Superposition['spans']>;
+    const { layout, columns, C, first: c0, layerBase, layerGr, rigidity, segBase, segZ0 } = this;
+    const { shaftStart, elemSegment } = layout;
+    const { T, P, of, flex, pairD, pairZ, segTo } = sp;
+    const K = weights.length;
+    const f = () => new Float64Array(K);
+    // The weights on the packed columns, combination by combination: W[k·C + c].
+    const W = new Float64Array(C * K);
+    for (let k = 0; k < K; k++) for (let c = 0; c < C; c++) W[k * C + c] = weights[k][c0 + c];
+    const tK = f();
+    const pK = f();
+    const mK = f();
+    const atK = f();
+    let cur = f();
+    let from = f();
+    const shMin = f();
+    const shMax = f();
+    // Σ x·0 over every number a combination lists: 0 when all are finite (as combinationFinite).
+    const zero = f();
+    const torqueScale = f();
+    const maxResidual = f();
+    const { spanMin, spanMax, rotationMin, rotationMax, segLayers, stressLayers, layerMaxShear, layerCombination } = env;
+    let q = 0;
+    for (let s = 0; s + 1 < shaftStart.length; s++) {
+      const first = shaftStart[s];
+      const last = shaftStart[s + 1] - 1;
+      let n = -1;
+      let open = -1;
+      for (let d = first; d <= last; d++) {
+        if (of[d] !== n) {
+          // A span starts: its T and φ in every combination (the sums of `evaluate`, in its order).
+          n = of[d];
+          const nC = n * C;
+          for (let k = 0, i = 0; k < K; k++) {
+            let t = 0;
+            let p = 0;
+            for (let c = nC; c < nC + C; c++, i++) {
+              const wc = W[i];
+              t += wc * T[c];
+              p += wc * P[c];
+            }
+            tK[k] = t;
+            pK[k] = p;
+          }
+          let lo = spanMin[n];
+          let hi = spanMax[n];
+          for (let k = 0; k < K; k++) {
+            lo = Math.min(lo, tK[k]);
+            hi = Math.max(hi, tK[k]);
+          }
+          spanMin[n] = lo;
+          spanMax[n] = hi;
+        }
+        // φ at this station in every combination, and its extremes.
+        const fd = flex[d];
+        let lo = rotationMin[d];
+        let hi = rotationMax[d];
+        for (let k = 0; k < K; k++) {
+          const x = pK[k] + tK[k] * fd;
+          cur[k] = x;
+          lo = Math.min(lo, x);
+          hi = Math.max(hi, x);
+        }
+        rotationMin[d] = lo;
+        rotationMax[d] = hi;
+        if (d === first) {
+          shMin.set(cur);
+          shMax.set(cur);
+        } else if (of[d - 1] !== n || d === last || of[d + 1] !== n) {
+          for (let k = 0; k < K; k++) {
+            const x = cur[k];
+            if (x < shMin[k]) shMin[k] = x;
+            if (x > shMax[k]) shMax[k] = x;
+          }
+        }
+        if (open >= 0 && d === segTo[open]) {
+          // The segment ends here: its peak, twist and layer stresses per combination, into the envelope.
+          const g = open;
+          const gj = rigidity[g];
+          const l0 = layerBase[g];
+          const l1 = layerBase[g + 1];
+          let best = env.segMaxAbs[g];
+          let stressBest = env.stressMax[g];
+          // |T| of the combination holding the largest stress: a layer's τ = G·r·|T|/GJ never falls as |T| grows, so
+          // no |T| up to it raises a layer's or the segment's stress (nor makes a τ infinite while that stress is finite).
+          let stressM = stressBest === -Infinity ? -Infinity : env.stressAbs[g];
+          for (let k = 0; k < K; k++) {
+            const m = mK[k];
+            const twist = cur[k] - from[k];
+            torqueScale[k] = Math.max(torqueScale[k], m);
+            let z0 = m * 0 + twist * 0;
+            if (m > best) {
+              best = m;
+              env.segCombination[g] = k;
+              env.segAt[g] = atK[k];
+              env.segTwist[g] = twist;
+              env.segRate[g] = m / gj;
+              for (let l = l0; l < l1; l++) segLayers[l] = (layerGr[l] * m) / gj;
+            }
+            if (m <= stressM && stressBest < Infinity) {
+              zero[k] += z0;
+              continue;
+            }
+            let stress = -Infinity;
+            for (let l = l0; l < l1; l++) {
+              const tau = (layerGr[l] * m) / gj;
+              z0 += tau * 0;
+              stress = Math.max(stress, tau);
+              if (tau > layerMaxShear[l]) {
+                layerMaxShear[l] = tau;
+                layerCombination[l] = k;
+              }
+            }
+            if (stress > stressBest) {
+              stressBest = stress;
+              stressM = m;
+              env.stressCombination[g] = k;
+              env.stressAbs[g] = m;
+              env.stressAt[g] = atK[k];
+              env.stressTwist[g] = twist;
+              env.stressRate[g] = m / gj;
+              for (let l = l0; l < l1; l++) stressLayers[l] = (layerGr[l] * m) / gj;
+            }
+            zero[k] += z0;
+          }
+          env.segMaxAbs[g] = best;
+          env.stressMax[g] = stressBest;
+          open = -1;
+        }
+        if (d === last) break;
+        const g = segBase[s] + elemSegment[d - s];
+        if (g !== open) {
+          // A segment starts: φ here is its start's; the next station's goes to the other row.
+          open = g;
+          mK.fill(0);
+          atK.fill(segZ0[g]);
+          const t = from;
+          from = cur;
+          cur = t;
+        }
+        if (pairD[q] === d) {
+          // A run of the segment in this span: one |T| (the first run of the largest wins, at its start).
+          const zq = pairZ[q++];
+          for (let k = 0; k < K; k++) {
+            const a = Math.abs(tK[k]);
+            if (a > mK[k]) {
+              mK[k] = a;
+              atK[k] = zq;
+            }
+          }
+        }
+      }
+      let best = env.twistMax[s];
+      for (let k = 0; k < K; k++) {
+        const x = shMax[k] - shMin[k];
+        zero[k] += x * 0;
+        if (x > best) {
+          best = x;
+          env.twistCombination[s] = k;
+        }
+      }
+      env.twistMax[s] = best;
+    }
+    // Supports, gear meshes, couplings and shaft sums: few; combination by combination, as `evaluate` sums them.
+    const nc = columns.length;
+    const pack = (pick: (c: StateColumn) => Float64Array) => {
+      const n = pick(columns[0]).length;
+      const out = new Float64Array(n * nc);
+      for (let c = 0; c < nc; c++) {
+        const a = pick(columns[c]);
+        for (let i = 0; i < n; i++) out[i * nc + c] = a[i];
+      }
+      return out;
+    };
+    const reaction = pack((c) => c.reaction);
+    const meshForce = pack((c) => c.meshForce);
+    const couplingA = pack((c) => c.couplingA);
+    const sums = pack((c) => c.sums);
+    let dense = false;
+    const sum = (w: Float64Array, a: Float64Array, i: number) => {
+      const b = i * nc;
+      let x = a[b];
+      if (dense) for (let c = 1; c < nc; c++) x += w[c] * a[b + c];
+      else
+        for (let c = 1; c < nc; c++) {
+          const wc = w[c];
+          if (wc !== 0) x += wc * a[b + c];
+        }
+      return x;
+    };
+    for (let k = 0; k < K; k++) {
+      const w = weights[k];
+      // `evaluate` skips a column whose weight is 0; with none such, no test per term.
+      dense = w.every((x) => x !== 0);
+      let z0 = 0;
+      for (let i = 0; i < reaction.length / nc; i++) {
+        const x = sum(w, reaction, i);
+        z0 += x * 0;
+        if (x < env.reactionMin[i]) {
+          env.reactionMin[i] = x;
+          env.reactionMinAt[i] = k;
+        }
+        if (x > env.reactionMax[i]) {
+          env.reactionMax[i] = x;
+          env.reactionMaxAt[i] = k;
+        }
+      }
+      for (let i = 0; i < meshForce.length / nc; i++) {
+        const x = sum(w, meshForce, i);
+        z0 += x * 0;
+        if (Math.abs(x) > env.meshMaxAbs[i]) {
+          env.meshMaxAbs[i] = Math.abs(x);
+          env.meshCombination[i] = k;
+          env.meshForce[i] = x;
+          env.meshA[i] = this.connection(w, (c) => c.meshA, i);
+          env.meshB[i] = this.connection(w, (c) => c.meshB, i);
+        }
+      }
+      for (let i = 0; i < couplingA.length / nc; i++) {
+        const x = sum(w, couplingA, i);
+        z0 += x * 0;
+        if (Math.abs(x) > env.couplingMaxAbs[i]) {
+          env.couplingMaxAbs[i] = Math.abs(x);
+          env.couplingCombination[i] = k;
+          env.couplingA[i] = x;
+          env.couplingB[i] = this.connection(w, (c) => c.couplingB, i);
+        }
+      }
+      let res = 0;
+      for (let i = 0; i < sums.length / nc; i++) res = Math.max(res, Math.abs(sum(w, sums, i)));
+      maxResidual[k] = res;
+      zero[k] += z0 + res * 0;
+    }
+    const finite = new Uint8Array(K);
+    for (let k = 0; k < K; k++) finite[k] = zero[k] === 0 ? 1 : 0;
+    return { maxResidual, torqueScale, finite };
   }
 
   /** One number of one connection (column `pick`, entry n) in the combination with column weights `w`. */
