@@ -533,19 +533,11 @@ export class Superposition {
     // The weights on the packed columns, combination by combination: W[k·C + c].
     const W = new Float64Array(C * K);
     for (let k = 0; k < K; k++) for (let c = 0; c < C; c++) W[k * C + c] = weights[k][c0 + c];
-    const tK = f();
-    const pK = f();
-    const mK = f();
-    const atK = f();
+    const rows: PassRows = { K, tK: f(), pK: f(), mK: f(), atK: f(), shMin: f(), shMax: f(), zero: f(), torqueScale: f() };
+    const { tK, pK, mK, atK, shMin, shMax, zero } = rows;
     let cur = f();
     let from = f();
-    const shMin = f();
-    const shMax = f();
-    // Σ x·0 over every number a combination lists: 0 when all are finite (as combinationFinite).
-    const zero = f();
-    const torqueScale = f();
     const maxResidual = f();
-    const { spanMin, spanMax, rotationMin, rotationMax, segLayers, stressLayers, layerMaxShear, layerCombination } = env;
     let q = 0;
     for (let s = 0; s + 1 < shaftStart.length; s++) {
       const first = shaftStart[s];
@@ -556,101 +548,18 @@ export class Superposition {
         if (of[d] !== n) {
           // A span starts: its T and φ in every combination (the sums of `evaluate`, in its order).
           n = of[d];
-          const nC = n * C;
-          for (let k = 0, i = 0; k < K; k++) {
-            let t = 0;
-            let p = 0;
-            for (let c = nC; c < nC + C; c++, i++) {
-              const wc = W[i];
-              t += wc * T[c];
-              p += wc * P[c];
-            }
-            tK[k] = t;
-            pK[k] = p;
-          }
-          let lo = spanMin[n];
-          let hi = spanMax[n];
-          for (let k = 0; k < K; k++) {
-            lo = Math.min(lo, tK[k]);
-            hi = Math.max(hi, tK[k]);
-          }
-          spanMin[n] = lo;
-          spanMax[n] = hi;
+          spanRows(W, C, T, P, n * C, rows);
+          spanExtremes(tK, K, env.spanMin, env.spanMax, n);
         }
         // φ at this station in every combination, and its extremes.
-        const fd = flex[d];
-        let lo = rotationMin[d];
-        let hi = rotationMax[d];
-        for (let k = 0; k < K; k++) {
-          const x = pK[k] + tK[k] * fd;
-          cur[k] = x;
-          lo = Math.min(lo, x);
-          hi = Math.max(hi, x);
-        }
-        rotationMin[d] = lo;
-        rotationMax[d] = hi;
+        rotationRow(rows, flex[d], cur, env.rotationMin, env.rotationMax, d);
         if (d === first) {
           shMin.set(cur);
           shMax.set(cur);
-        } else if (of[d - 1] !== n || d === last || of[d + 1] !== n) {
-          for (let k = 0; k < K; k++) {
-            const x = cur[k];
-            if (x < shMin[k]) shMin[k] = x;
-            if (x > shMax[k]) shMax[k] = x;
-          }
-        }
+        } else if (of[d - 1] !== n || d === last || of[d + 1] !== n) shaftExtremes(cur, rows);
         if (open >= 0 && d === segTo[open]) {
           // The segment ends here: its peak, twist and layer stresses per combination, into the envelope.
-          const g = open;
-          const gj = rigidity[g];
-          const l0 = layerBase[g];
-          const l1 = layerBase[g + 1];
-          let best = env.segMaxAbs[g];
-          let stressBest = env.stressMax[g];
-          // |T| of the combination holding the largest stress: a layer's τ = G·r·|T|/GJ never falls as |T| grows, so
-          // no |T| up to it raises a layer's or the segment's stress (nor makes a τ infinite while that stress is finite).
-          let stressM = stressBest === -Infinity ? -Infinity : env.stressAbs[g];
-          for (let k = 0; k < K; k++) {
-            const m = mK[k];
-            const twist = cur[k] - from[k];
-            torqueScale[k] = Math.max(torqueScale[k], m);
-            let z0 = m * 0 + twist * 0;
-            if (m > best) {
-              best = m;
-              env.segCombination[g] = k;
-              env.segAt[g] = atK[k];
-              env.segTwist[g] = twist;
-              env.segRate[g] = m / gj;
-              for (let l = l0; l < l1; l++) segLayers[l] = (layerGr[l] * m) / gj;
-            }
-            if (m <= stressM && stressBest < Infinity) {
-              zero[k] += z0;
-              continue;
-            }
-            let stress = -Infinity;
-            for (let l = l0; l < l1; l++) {
-              const tau = (layerGr[l] * m) / gj;
-              z0 += tau * 0;
-              stress = Math.max(stress, tau);
-              if (tau > layerMaxShear[l]) {
-                layerMaxShear[l] = tau;
-                layerCombination[l] = k;
-              }
-            }
-            if (stress > stressBest) {
-              stressBest = stress;
-              stressM = m;
-              env.stressCombination[g] = k;
-              env.stressAbs[g] = m;
-              env.stressAt[g] = atK[k];
-              env.stressTwist[g] = twist;
-              env.stressRate[g] = m / gj;
-              for (let l = l0; l < l1; l++) stressLayers[l] = (layerGr[l] * m) / gj;
-            }
-            zero[k] += z0;
-          }
-          env.segMaxAbs[g] = best;
-          env.stressMax[g] = stressBest;
+          segmentEnd(env, rows, open, rigidity[open], layerBase[open], layerBase[open + 1], layerGr, from, cur);
           open = -1;
         }
         if (d === last) break;
@@ -664,17 +573,8 @@ export class Superposition {
           from = cur;
           cur = t;
         }
-        if (pairD[q] === d) {
-          // A run of the segment in this span: one |T| (the first run of the largest wins, at its start).
-          const zq = pairZ[q++];
-          for (let k = 0; k < K; k++) {
-            const a = Math.abs(tK[k]);
-            if (a > mK[k]) {
-              mK[k] = a;
-              atK[k] = zq;
-            }
-          }
-        }
+        // A run of the segment in this span: one |T| (the first run of the largest wins, at its start).
+        if (pairD[q] === d) runPeaks(tK, mK, atK, K, pairZ[q++]);
       }
       let best = env.twistMax[s];
       for (let k = 0; k < K; k++) {
@@ -702,64 +602,54 @@ export class Superposition {
     const meshForce = pack((c) => c.meshForce);
     const couplingA = pack((c) => c.couplingA);
     const sums = pack((c) => c.sums);
-    let dense = false;
-    const sum = (w: Float64Array, a: Float64Array, i: number) => {
-      const b = i * nc;
-      let x = a[b];
-      if (dense) for (let c = 1; c < nc; c++) x += w[c] * a[b + c];
-      else
-        for (let c = 1; c < nc; c++) {
-          const wc = w[c];
-          if (wc !== 0) x += wc * a[b + c];
-        }
-      return x;
-    };
+    const x = new Float64Array(Math.max(reaction.length, meshForce.length, couplingA.length, sums.length) / nc);
     for (let k = 0; k < K; k++) {
       const w = weights[k];
       // `evaluate` skips a column whose weight is 0; with none such, no test per term.
-      dense = w.every((x) => x !== 0);
+      const dense = w.every((v) => v !== 0);
       let z0 = 0;
+      connectionSums(w, reaction, nc, dense, x);
       for (let i = 0; i < reaction.length / nc; i++) {
-        const x = sum(w, reaction, i);
-        z0 += x * 0;
-        if (x < env.reactionMin[i]) {
-          env.reactionMin[i] = x;
+        z0 += x[i] * 0;
+        if (x[i] < env.reactionMin[i]) {
+          env.reactionMin[i] = x[i];
           env.reactionMinAt[i] = k;
         }
-        if (x > env.reactionMax[i]) {
-          env.reactionMax[i] = x;
+        if (x[i] > env.reactionMax[i]) {
+          env.reactionMax[i] = x[i];
           env.reactionMaxAt[i] = k;
         }
       }
+      connectionSums(w, meshForce, nc, dense, x);
       for (let i = 0; i < meshForce.length / nc; i++) {
-        const x = sum(w, meshForce, i);
-        z0 += x * 0;
-        if (Math.abs(x) > env.meshMaxAbs[i]) {
-          env.meshMaxAbs[i] = Math.abs(x);
+        z0 += x[i] * 0;
+        if (Math.abs(x[i]) > env.meshMaxAbs[i]) {
+          env.meshMaxAbs[i] = Math.abs(x[i]);
           env.meshCombination[i] = k;
-          env.meshForce[i] = x;
+          env.meshForce[i] = x[i];
           env.meshA[i] = this.connection(w, (c) => c.meshA, i);
           env.meshB[i] = this.connection(w, (c) => c.meshB, i);
         }
       }
+      connectionSums(w, couplingA, nc, dense, x);
       for (let i = 0; i < couplingA.length / nc; i++) {
-        const x = sum(w, couplingA, i);
-        z0 += x * 0;
-        if (Math.abs(x) > env.couplingMaxAbs[i]) {
-          env.couplingMaxAbs[i] = Math.abs(x);
+        z0 += x[i] * 0;
+        if (Math.abs(x[i]) > env.couplingMaxAbs[i]) {
+          env.couplingMaxAbs[i] = Math.abs(x[i]);
           env.couplingCombination[i] = k;
-          env.couplingA[i] = x;
+          env.couplingA[i] = x[i];
           env.couplingB[i] = this.connection(w, (c) => c.couplingB, i);
         }
       }
+      connectionSums(w, sums, nc, dense, x);
       let res = 0;
-      for (let i = 0; i < sums.length / nc; i++) res = Math.max(res, Math.abs(sum(w, sums, i)));
+      for (let i = 0; i < sums.length / nc; i++) res = Math.max(res, Math.abs(x[i]));
       maxResidual[k] = res;
       zero[k] += z0 + res * 0;
     }
     const finite = new Uint8Array(K);
     for (let k = 0; k < K; k++) finite[k] = zero[k] === 0 ? 1 : 0;
-    return { maxResidual, torqueScale, finite };
+    return { maxResidual, torqueScale: rows.torqueScale, finite };
   }
 
   /** One number of one connection (column `pick`, entry n) in the combination with column weights `w`. */
@@ -1261,4 +1151,195 @@ export function governedItems(env: Envelope, sup: Superposition, combinations: n
     for (let m = 0; m < checks.total; m++) byCheck[checkGovernedBy(env, sup, checks, m)].push(m);
   }
   return { segments, meshes, couplings, checks: byCheck };
+}
+
+/** The rows of the pass by station (`passBySpan`), each K long: one entry per combination. */
+interface PassRows {
+  readonly K: number;
+  /** T and φ at the start of the span at hand. */
+  readonly tK: Float64Array;
+  readonly pK: Float64Array;
+  /** Of the segment at hand: the largest |T| so far and where. */
+  readonly mK: Float64Array;
+  readonly atK: Float64Array;
+  /** Of the shaft at hand: the extremes of φ so far. */
+  readonly shMin: Float64Array;
+  readonly shMax: Float64Array;
+  /** Σ x·0 over every number a combination lists: 0 when all are finite (as `combinationFinite`). */
+  readonly zero: Float64Array;
+  /** The largest peak |T| of a segment. */
+  readonly torqueScale: Float64Array;
+}
+
+/** T and φ at the start of the span whose packed entries start at nC, in every combination: Σ over the columns from 0, in column order. */
+function spanRows(W: Float64Array, C: number, T: Float64Array, P: Float64Array, nC: number, rows: PassRows): void {
+  const { K, tK, pK } = rows;
+  let k = 0;
+  // Four combinations at a time (each its own sum, term by term in column order), then the rest.
+  for (; k + 3 < K; k += 4) {
+    let t0 = 0;
+    let t1 = 0;
+    let t2 = 0;
+    let t3 = 0;
+    let p0 = 0;
+    let p1 = 0;
+    let p2 = 0;
+    let p3 = 0;
+    for (let c = 0, i = k * C; c < C; c++, i++) {
+      const a = T[nC + c];
+      const b = P[nC + c];
+      const w0 = W[i];
+      const w1 = W[i + C];
+      const w2 = W[i + 2 * C];
+      const w3 = W[i + 3 * C];
+      t0 += w0 * a;
+      p0 += w0 * b;
+      t1 += w1 * a;
+      p1 += w1 * b;
+      t2 += w2 * a;
+      p2 += w2 * b;
+      t3 += w3 * a;
+      p3 += w3 * b;
+    }
+    tK[k] = t0;
+    tK[k + 1] = t1;
+    tK[k + 2] = t2;
+    tK[k + 3] = t3;
+    pK[k] = p0;
+    pK[k + 1] = p1;
+    pK[k + 2] = p2;
+    pK[k + 3] = p3;
+  }
+  for (; k < K; k++) {
+    let t = 0;
+    let p = 0;
+    for (let c = 0, i = k * C; c < C; c++, i++) {
+      t += W[i] * T[nC + c];
+      p += W[i] * P[nC + c];
+    }
+    tK[k] = t;
+    pK[k] = p;
+  }
+}
+
+/** The extremes of T over the combinations in span n. */
+function spanExtremes(tK: Float64Array, K: number, spanMin: Float64Array, spanMax: Float64Array, n: number): void {
+  let lo = spanMin[n];
+  let hi = spanMax[n];
+  for (let k = 0; k < K; k++) {
+    lo = Math.min(lo, tK[k]);
+    hi = Math.max(hi, tK[k]);
+  }
+  spanMin[n] = lo;
+  spanMax[n] = hi;
+}
+
+/** φ = p + t·flex at station d in every combination (into `out`), and its extremes. */
+function rotationRow(rows: PassRows, fd: number, out: Float64Array, rotationMin: Float64Array, rotationMax: Float64Array, d: number): void {
+  const { K, tK, pK } = rows;
+  let lo = rotationMin[d];
+  let hi = rotationMax[d];
+  for (let k = 0; k < K; k++) {
+    const x = pK[k] + tK[k] * fd;
+    out[k] = x;
+    lo = Math.min(lo, x);
+    hi = Math.max(hi, x);
+  }
+  rotationMin[d] = lo;
+  rotationMax[d] = hi;
+}
+
+/** The shaft's extremes of φ with φ of one station (the rules of `segmentPeaks`: strict, the first kept). */
+function shaftExtremes(phi: Float64Array, rows: PassRows): void {
+  const { K, shMin, shMax } = rows;
+  for (let k = 0; k < K; k++) {
+    const x = phi[k];
+    if (x < shMin[k]) shMin[k] = x;
+    if (x > shMax[k]) shMax[k] = x;
+  }
+}
+
+/** A run of a segment in a span with T `tK`, starting at z: the segment's largest |T| (the first largest kept). */
+function runPeaks(tK: Float64Array, mK: Float64Array, atK: Float64Array, K: number, z: number): void {
+  for (let k = 0; k < K; k++) {
+    const a = Math.abs(tK[k]);
+    if (a > mK[k]) {
+      mK[k] = a;
+      atK[k] = z;
+    }
+  }
+}
+
+/**
+ * Segment g ends: per combination its peak |T| (rows.mK, at rows.atK), twist (φ `to` − φ `from`), twist
+ * rate |T|/GJ and layer stresses G·r·|T|/GJ, into the envelope as `addToEnvelope` takes them.
+ */
+function segmentEnd(env: Envelope, rows: PassRows, g: number, gj: number, l0: number, l1: number, layerGr: Float64Array, from: Float64Array, to: Float64Array): void {
+  const { K, mK, atK, zero, torqueScale } = rows;
+  const { segLayers, stressLayers, layerMaxShear, layerCombination } = env;
+  let best = env.segMaxAbs[g];
+  let stressBest = env.stressMax[g];
+  // |T| of the combination holding the largest stress: a layer's τ = G·r·|T|/GJ never falls as |T| grows, so
+  // no |T| up to it raises a layer's or the segment's stress (nor makes a τ infinite while that stress is finite).
+  let stressM = stressBest === -Infinity ? -Infinity : env.stressAbs[g];
+  for (let k = 0; k < K; k++) {
+    const m = mK[k];
+    const twist = to[k] - from[k];
+    torqueScale[k] = Math.max(torqueScale[k], m);
+    const z0 = m * 0 + twist * 0;
+    if (m > best) {
+      best = m;
+      env.segCombination[g] = k;
+      env.segAt[g] = atK[k];
+      env.segTwist[g] = twist;
+      env.segRate[g] = m / gj;
+      for (let l = l0; l < l1; l++) segLayers[l] = (layerGr[l] * m) / gj;
+    }
+    if (m <= stressM && stressBest < Infinity) {
+      zero[k] += z0;
+      continue;
+    }
+    let stress = -Infinity;
+    let z1 = z0;
+    for (let l = l0; l < l1; l++) {
+      const tau = (layerGr[l] * m) / gj;
+      z1 += tau * 0;
+      stress = Math.max(stress, tau);
+      if (tau > layerMaxShear[l]) {
+        layerMaxShear[l] = tau;
+        layerCombination[l] = k;
+      }
+    }
+    if (stress > stressBest) {
+      stressBest = stress;
+      stressM = m;
+      env.stressCombination[g] = k;
+      env.stressAbs[g] = m;
+      env.stressAt[g] = atK[k];
+      env.stressTwist[g] = twist;
+      env.stressRate[g] = m / gj;
+      for (let l = l0; l < l1; l++) stressLayers[l] = (layerGr[l] * m) / gj;
+    }
+    zero[k] += z1;
+  }
+  env.segMaxAbs[g] = best;
+  env.stressMax[g] = stressBest;
+}
+
+/**
+ * One combination's number of every item of a packed connection array (`nc` columns per item, the
+ * assembled state's first), into `out`: as `evaluate` sums them (a zero weight's column skipped).
+ */
+function connectionSums(w: Float64Array, a: Float64Array, nc: number, dense: boolean, out: Float64Array): void {
+  const items = a.length / nc;
+  for (let i = 0, b = 0; i < items; i++, b += nc) {
+    let x = a[b];
+    if (dense) for (let c = 1; c < nc; c++) x += w[c] * a[b + c];
+    else
+      for (let c = 1; c < nc; c++) {
+        const wc = w[c];
+        if (wc !== 0) x += wc * a[b + c];
+      }
+    out[i] = x;
+  }
 }
