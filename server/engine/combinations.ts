@@ -534,7 +534,7 @@ export class Superposition {
     const W = new Float64Array(C * K);
     for (let k = 0; k < K; k++) for (let c = 0; c < C; c++) W[k * C + c] = weights[k][c0 + c];
     const rows: PassRows = { K, tK: f(), pK: f(), mK: f(), atK: f(), shMin: f(), shMax: f(), zero: f(), torqueScale: f() };
-    const { tK, pK, mK, atK, shMin, shMax, zero } = rows;
+    const { shMin, shMax, zero } = rows;
     let cur = f();
     let from = f();
     const maxResidual = f();
@@ -549,14 +549,12 @@ export class Superposition {
           // A span starts: its T and φ in every combination (the sums of `evaluate`, in its order).
           n = of[d];
           spanRows(W, C, T, P, n * C, rows);
-          spanExtremes(tK, K, env.spanMin, env.spanMax, n);
+          spanExtremes(rows, env.spanMin, env.spanMax, n);
         }
         // φ at this station in every combination, and its extremes.
-        rotationRow(rows, flex[d], cur, env.rotationMin, env.rotationMax, d);
-        if (d === first) {
-          shMin.set(cur);
-          shMax.set(cur);
-        } else if (of[d - 1] !== n || d === last || of[d + 1] !== n) shaftExtremes(cur, rows);
+        // A shaft's extremes of φ: at its first station, then at its spans' ends.
+        const ends = d === first ? 1 : of[d - 1] !== n || d === last || of[d + 1] !== n ? 2 : 0;
+        rotationRow(rows, flex[d], cur, env.rotationMin, env.rotationMax, d, ends);
         if (open >= 0 && d === segTo[open]) {
           // The segment ends here: its peak, twist and layer stresses per combination, into the envelope.
           segmentEnd(env, rows, open, rigidity[open], layerBase[open], layerBase[open + 1], layerGr, from, cur);
@@ -567,14 +565,12 @@ export class Superposition {
         if (g !== open) {
           // A segment starts: φ here is its start's; the next station's goes to the other row.
           open = g;
-          mK.fill(0);
-          atK.fill(segZ0[g]);
           const t = from;
           from = cur;
           cur = t;
-        }
-        // A run of the segment in this span: one |T| (the first run of the largest wins, at its start).
-        if (pairD[q] === d) runPeaks(tK, mK, atK, K, pairZ[q++]);
+          // Its first run (every segment has one, starting here): its peak from 0, at the segment's start while 0.
+          runPeaks(rows, pairZ[q++], segZ0[g]);
+        } else if (pairD[q] === d) runPeaks(rows, pairZ[q++], Number.NaN);
       }
       let best = env.twistMax[s];
       for (let k = 0; k < K; k++) {
@@ -1222,45 +1218,82 @@ function spanRows(W: Float64Array, C: number, T: Float64Array, P: Float64Array, 
   }
 }
 
-/** The extremes of T over the combinations in span n. */
-function spanExtremes(tK: Float64Array, K: number, spanMin: Float64Array, spanMax: Float64Array, n: number): void {
+/**
+ * The extremes of T over the combinations in span n, and each combination's torque scale: its largest
+ * peak |T| of a segment is its largest |T| of a span (every span has a run of some segment).
+ */
+function spanExtremes(rows: PassRows, spanMin: Float64Array, spanMax: Float64Array, n: number): void {
+  const { K, tK, torqueScale } = rows;
   let lo = spanMin[n];
   let hi = spanMax[n];
   for (let k = 0; k < K; k++) {
-    lo = Math.min(lo, tK[k]);
-    hi = Math.max(hi, tK[k]);
+    const t = tK[k];
+    lo = Math.min(lo, t);
+    hi = Math.max(hi, t);
+    const a = Math.abs(t);
+    if (a > torqueScale[k]) torqueScale[k] = a;
   }
   spanMin[n] = lo;
   spanMax[n] = hi;
 }
 
-/** φ = p + t·flex at station d in every combination (into `out`), and its extremes. */
-function rotationRow(rows: PassRows, fd: number, out: Float64Array, rotationMin: Float64Array, rotationMax: Float64Array, d: number): void {
-  const { K, tK, pK } = rows;
+/**
+ * φ = p + t·flex at station d in every combination (into `out`), and its extremes; with `shaft` 1 the
+ * shaft's extremes start from it, with 2 they take it in (the rules of `segmentPeaks`: strict, the first kept).
+ */
+function rotationRow(rows: PassRows, fd: number, out: Float64Array, rotationMin: Float64Array, rotationMax: Float64Array, d: number, shaft: number): void {
+  const { K, tK, pK, shMin, shMax } = rows;
   let lo = rotationMin[d];
   let hi = rotationMax[d];
-  for (let k = 0; k < K; k++) {
-    const x = pK[k] + tK[k] * fd;
-    out[k] = x;
-    lo = Math.min(lo, x);
-    hi = Math.max(hi, x);
+  if (shaft === 0) {
+    for (let k = 0; k < K; k++) {
+      const x = pK[k] + tK[k] * fd;
+      out[k] = x;
+      lo = Math.min(lo, x);
+      hi = Math.max(hi, x);
+    }
+  } else if (shaft === 1) {
+    for (let k = 0; k < K; k++) {
+      const x = pK[k] + tK[k] * fd;
+      out[k] = x;
+      shMin[k] = x;
+      shMax[k] = x;
+      lo = Math.min(lo, x);
+      hi = Math.max(hi, x);
+    }
+  } else {
+    for (let k = 0; k < K; k++) {
+      const x = pK[k] + tK[k] * fd;
+      out[k] = x;
+      if (x < shMin[k]) shMin[k] = x;
+      if (x > shMax[k]) shMax[k] = x;
+      lo = Math.min(lo, x);
+      hi = Math.max(hi, x);
+    }
   }
   rotationMin[d] = lo;
   rotationMax[d] = hi;
 }
 
-/** The shaft's extremes of φ with φ of one station (the rules of `segmentPeaks`: strict, the first kept). */
-function shaftExtremes(phi: Float64Array, rows: PassRows): void {
-  const { K, shMin, shMax } = rows;
-  for (let k = 0; k < K; k++) {
-    const x = phi[k];
-    if (x < shMin[k]) shMin[k] = x;
-    if (x > shMax[k]) shMax[k] = x;
+/**
+ * A run of a segment in the span at hand, starting at z: the segment's largest |T| (the first largest
+ * kept). `z0` not NaN: the segment's first run, its peak starting from 0 at z0 (the segment's start).
+ */
+function runPeaks(rows: PassRows, z: number, z0: number): void {
+  const { K, tK, mK, atK } = rows;
+  if (z0 === z0) {
+    for (let k = 0; k < K; k++) {
+      const a = Math.abs(tK[k]);
+      if (a > 0) {
+        mK[k] = a;
+        atK[k] = z;
+      } else {
+        mK[k] = 0;
+        atK[k] = z0;
+      }
+    }
+    return;
   }
-}
-
-/** A run of a segment in a span with T `tK`, starting at z: the segment's largest |T| (the first largest kept). */
-function runPeaks(tK: Float64Array, mK: Float64Array, atK: Float64Array, K: number, z: number): void {
   for (let k = 0; k < K; k++) {
     const a = Math.abs(tK[k]);
     if (a > mK[k]) {
@@ -1275,17 +1308,18 @@ function runPeaks(tK: Float64Array, mK: Float64Array, atK: Float64Array, K: numb
  * rate |T|/GJ and layer stresses G·r·|T|/GJ, into the envelope as `addToEnvelope` takes them.
  */
 function segmentEnd(env: Envelope, rows: PassRows, g: number, gj: number, l0: number, l1: number, layerGr: Float64Array, from: Float64Array, to: Float64Array): void {
-  const { K, mK, atK, zero, torqueScale } = rows;
+  const { K, mK, atK, zero } = rows;
   const { segLayers, stressLayers, layerMaxShear, layerCombination } = env;
   let best = env.segMaxAbs[g];
   let stressBest = env.stressMax[g];
   // |T| of the combination holding the largest stress: a layer's τ = G·r·|T|/GJ never falls as |T| grows, so
   // no |T| up to it raises a layer's or the segment's stress (nor makes a τ infinite while that stress is finite).
   let stressM = stressBest === -Infinity ? -Infinity : env.stressAbs[g];
+  // Σ x·0 over the numbers of every combination: 0 unless one is not finite (then taken per combination below).
+  let sum0 = 0;
   for (let k = 0; k < K; k++) {
     const m = mK[k];
     const twist = to[k] - from[k];
-    torqueScale[k] = Math.max(torqueScale[k], m);
     const z0 = m * 0 + twist * 0;
     if (m > best) {
       best = m;
@@ -1296,7 +1330,7 @@ function segmentEnd(env: Envelope, rows: PassRows, g: number, gj: number, l0: nu
       for (let l = l0; l < l1; l++) segLayers[l] = (layerGr[l] * m) / gj;
     }
     if (m <= stressM && stressBest < Infinity) {
-      zero[k] += z0;
+      sum0 += z0;
       continue;
     }
     let stress = -Infinity;
@@ -1320,10 +1354,18 @@ function segmentEnd(env: Envelope, rows: PassRows, g: number, gj: number, l0: nu
       env.stressRate[g] = m / gj;
       for (let l = l0; l < l1; l++) stressLayers[l] = (layerGr[l] * m) / gj;
     }
-    zero[k] += z1;
+    sum0 += z1;
   }
   env.segMaxAbs[g] = best;
   env.stressMax[g] = stressBest;
+  if (sum0 !== 0) {
+    for (let k = 0; k < K; k++) {
+      const m = mK[k];
+      let z1 = m * 0 + (to[k] - from[k]) * 0;
+      for (let l = l0; l < l1; l++) z1 += ((layerGr[l] * m) / gj) * 0;
+      zero[k] += z1;
+    }
+  }
 }
 
 /**
