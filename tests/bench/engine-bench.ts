@@ -235,21 +235,26 @@ function benchCombinations(): void {
     const cpu = process.cpuUsage(cpu0);
     return { ms, phases, chars, cpuMs: (cpu.user + cpu.system) / 1000 };
   };
+  // Best of the same number of repeats for both; the first solve with combinations in the process apart (its code not yet optimised).
   const best = (model: typeof plain, repeats: number) => {
-    let b = run(model);
+    gc();
+    const first = run(model);
+    let b = first;
     for (let r = 1; r < repeats; r++) {
       gc();
       const x = run(model);
       if (x.ms < b.ms) b = x;
     }
-    return b;
+    return { first, best: b };
   };
-  const one = best(plain, 5);
-  const many = best(cased, 2);
+  const one = best(plain, 5).best;
+  const cold = best(cased, 5);
+  const many = cold.best;
   const fmt = (x: ReturnType<typeof run>) =>
     `${x.ms.toFixed(0)} ms (CPU ${x.cpuMs.toFixed(0)} ms; factorise+solves ${(x.phases.factorise ?? 0).toFixed(0)}, recover ${(x.phases.recover ?? 0).toFixed(0)}, json ${(x.phases.output ?? 0).toFixed(0)}; ${(x.chars / 1e6).toFixed(1)} MB of JSON)`;
-  console.log(`1e4-station gear tree, one plain solve + JSON: ${fmt(one)}`);
-  console.log(`same, 10 load cases, 1,000 combinations + JSON with the envelope: ${fmt(many)}`);
+  console.log(`1e4-station gear tree, one plain solve + JSON (best of 5): ${fmt(one)}`);
+  console.log(`same, 10 load cases, 1,000 combinations + JSON with the envelope (best of 5): ${fmt(many)}`);
+  console.log(`  its first run in this process: ${fmt(cold.first)}`);
   console.log(
     `ratio: ${(many.ms / one.ms).toFixed(1)}x one plain solve (CPU ${(many.cpuMs / one.cpuMs).toFixed(1)}x), ${(many.ms / one.ms / 1000).toFixed(3)} plain solves per combination`,
   );
