@@ -336,11 +336,12 @@ export class Superposition {
       }
       return out;
     };
-    this.P = pack(layout.dofCount, (c) => c.phi);
-    this.L = pack(elems, (c) => c.TL);
+    if (!this.hasTaper && !this.distributed && jumps) this.spans = this.makeSpans(jumps);
+    // With spans a combination is formed from them: the rotations and end torques are not packed.
+    this.P = this.spans ? new Float64Array(0) : pack(layout.dofCount, (c) => c.phi);
+    this.L = this.spans ? new Float64Array(0) : pack(elems, (c) => c.TL);
     this.R = this.distributed ? pack(elems, (c) => c.TR) : null;
     if (!this.distributed) this.st = { ...this.st, TR: this.st.TL };
-    if (!this.hasTaper && !this.distributed && jumps) this.spans = this.makeSpans(jumps);
     this.elemTaper = new Uint8Array(elems);
     for (let e = 0; e < elems; e++) this.elemTaper[e] = this.segments[this.segBase[layout.shaftOf[layout.elemLeft[e]]] + layout.elemSegment[e]].taper ? 1 : 0;
     this.segPhiFrom = f(nSeg);
