@@ -599,50 +599,75 @@ export class Superposition {
     const meshForce = pack((c) => c.meshForce);
     const couplingA = pack((c) => c.couplingA);
     const sums = pack((c) => c.sums);
-    const x = new Float64Array(Math.max(reaction.length, meshForce.length, couplingA.length, sums.length) / nc);
-    for (let k = 0; k < K; k++) {
-      const w = weights[k];
-      // `evaluate` skips a column whose weight is 0; with none such, no test per term.
-      const dense = w.every((v) => v !== 0);
-      let z0 = 0;
-      connectionSums(w, reaction, nc, dense, x);
-      for (let i = 0; i < reaction.length / nc; i++) {
-        z0 += x[i] * 0;
-        if (x[i] < env.reactionMin[i]) {
-          env.reactionMin[i] = x[i];
-          env.reactionMinAt[i] = k;
-        }
-        if (x[i] > env.reactionMax[i]) {
-          env.reactionMax[i] = x[i];
-          env.reactionMaxAt[i] = k;
-        }
+    const nR = reaction.length / nc;
+    const nM = meshForce.length / nc;
+    const nK = couplingA.length / nc;
+    const nS = sums.length / nc;
+    // Up to four combinations' sums per kind: entry i of the j-th at j·n + i.
+    const xr = new Float64Array(4 * nR);
+    const xm = new Float64Array(4 * nM);
+    const xc = new Float64Array(4 * nK);
+    const xs = new Float64Array(4 * nS);
+    // `evaluate` skips a column whose weight is 0; with none such, no test per term.
+    const dense = (k: number) => weights[k].every((v) => v !== 0);
+    for (let k = 0; k < K; ) {
+      // Four combinations without a zero weight at a time (each its own sum, term by term in column order), else one.
+      const J = k + 3 < K && dense(k) && dense(k + 1) && dense(k + 2) && dense(k + 3) ? 4 : 1;
+      if (J === 4) {
+        const [w0, w1, w2, w3] = [weights[k], weights[k + 1], weights[k + 2], weights[k + 3]];
+        connectionSums4(w0, w1, w2, w3, reaction, nc, xr);
+        connectionSums4(w0, w1, w2, w3, meshForce, nc, xm);
+        connectionSums4(w0, w1, w2, w3, couplingA, nc, xc);
+        connectionSums4(w0, w1, w2, w3, sums, nc, xs);
+      } else {
+        const w = weights[k];
+        const d = dense(k);
+        connectionSums(w, reaction, nc, d, xr);
+        connectionSums(w, meshForce, nc, d, xm);
+        connectionSums(w, couplingA, nc, d, xc);
+        connectionSums(w, sums, nc, d, xs);
       }
-      connectionSums(w, meshForce, nc, dense, x);
-      for (let i = 0; i < meshForce.length / nc; i++) {
-        z0 += x[i] * 0;
-        if (Math.abs(x[i]) > env.meshMaxAbs[i]) {
-          env.meshMaxAbs[i] = Math.abs(x[i]);
-          env.meshCombination[i] = k;
-          env.meshForce[i] = x[i];
-          env.meshA[i] = this.connection(w, (c) => c.meshA, i);
-          env.meshB[i] = this.connection(w, (c) => c.meshB, i);
+      for (let j = 0; j < J; j++, k++) {
+        const w = weights[k];
+        let z0 = 0;
+        for (let i = 0, o = j * nR; i < nR; i++) {
+          const x = xr[o + i];
+          z0 += x * 0;
+          if (x < env.reactionMin[i]) {
+            env.reactionMin[i] = x;
+            env.reactionMinAt[i] = k;
+          }
+          if (x > env.reactionMax[i]) {
+            env.reactionMax[i] = x;
+            env.reactionMaxAt[i] = k;
+          }
         }
-      }
-      connectionSums(w, couplingA, nc, dense, x);
-      for (let i = 0; i < couplingA.length / nc; i++) {
-        z0 += x[i] * 0;
-        if (Math.abs(x[i]) > env.couplingMaxAbs[i]) {
-          env.couplingMaxAbs[i] = Math.abs(x[i]);
-          env.couplingCombination[i] = k;
-          env.couplingA[i] = x[i];
-          env.couplingB[i] = this.connection(w, (c) => c.couplingB, i);
+        for (let i = 0, o = j * nM; i < nM; i++) {
+          const x = xm[o + i];
+          z0 += x * 0;
+          if (Math.abs(x) > env.meshMaxAbs[i]) {
+            env.meshMaxAbs[i] = Math.abs(x);
+            env.meshCombination[i] = k;
+            env.meshForce[i] = x;
+            env.meshA[i] = this.connection(w, (c) => c.meshA, i);
+            env.meshB[i] = this.connection(w, (c) => c.meshB, i);
+          }
         }
+        for (let i = 0, o = j * nK; i < nK; i++) {
+          const x = xc[o + i];
+          z0 += x * 0;
+          if (Math.abs(x) > env.couplingMaxAbs[i]) {
+            env.couplingMaxAbs[i] = Math.abs(x);
+            env.couplingCombination[i] = k;
+            env.couplingA[i] = x;
+            env.couplingB[i] = this.connection(w, (c) => c.couplingB, i);
+          }
+        }
+        let res = 0;
+        for (let i = 0, o = j * nS; i < nS; i++) res = Math.max(res, Math.abs(xs[o + i]));
+        maxResidual[k] = res;
+        zero[k] += z0 + res * 0;
       }
-      connectionSums(w, sums, nc, dense, x);
-      let res = 0;
-      for (let i = 0; i < sums.length / nc; i++) res = Math.max(res, Math.abs(x[i]));
-      maxResidual[k] = res;
-      zero[k] += z0 + res * 0;
     }
     const finite = new Uint8Array(K);
     for (let k = 0; k < K; k++) finite[k] = zero[k] === 0 ? 1 : 0;
@@ -1384,5 +1409,27 @@ function connectionSums(w: Float64Array, a: Float64Array, nc: number, dense: boo
         if (wc !== 0) x += wc * a[b + c];
       }
     out[i] = x;
+  }
+}
+
+/** As `connectionSums` for four combinations without a zero weight at once: the j-th's into out[j·items + i]. */
+function connectionSums4(w0: Float64Array, w1: Float64Array, w2: Float64Array, w3: Float64Array, a: Float64Array, nc: number, out: Float64Array): void {
+  const items = a.length / nc;
+  for (let i = 0, b = 0; i < items; i++, b += nc) {
+    let x0 = a[b];
+    let x1 = x0;
+    let x2 = x0;
+    let x3 = x0;
+    for (let c = 1; c < nc; c++) {
+      const v = a[b + c];
+      x0 += w0[c] * v;
+      x1 += w1[c] * v;
+      x2 += w2[c] * v;
+      x3 += w3[c] * v;
+    }
+    out[i] = x0;
+    out[items + i] = x1;
+    out[2 * items + i] = x2;
+    out[3 * items + i] = x3;
   }
 }
