@@ -129,6 +129,16 @@ export interface Envelope {
   readonly reactionMaxAt: Int32Array;
 }
 
+/** Per combination, what the solve keeps of it besides the envelope. */
+export interface CombinedAll {
+  /** Largest |Σ torques| of a shaft, N·m. */
+  readonly maxResidual: Float64Array;
+  /** Largest peak |T| of a segment, N·m. */
+  readonly torqueScale: Float64Array;
+  /** 1 when every number it lists is finite. */
+  readonly finite: Uint8Array;
+}
+
 /** The index of the combination to show: the one named, else the first; an unknown id is refused. */
 export function shownCombination(model: ResolvedModel, id: string | undefined): number {
   if (model.loadCases.length === 0 || id === undefined) return 0;
@@ -240,6 +250,8 @@ export class Superposition {
   private readonly segPhiTo: Float64Array;
   private readonly segPeak: Float64Array;
   private readonly roots = new Float64Array(2);
+  /** True when every segment has an element (so the pass by station meets each). */
+  private readonly spansCover: boolean;
 
   /**
    * Spans (a model without tapers and distributed torques): runs of elements between stations where
@@ -259,6 +271,8 @@ export class Superposition {
     readonly pairSeg: Int32Array;
     readonly pairSpan: Int32Array;
     readonly pairZ: Float64Array;
+    /** The station where each run starts. */
+    readonly pairD: Int32Array;
     /** Per segment: its first and last station. */
     readonly segFrom: Int32Array;
     readonly segTo: Int32Array;
@@ -322,16 +336,20 @@ export class Superposition {
       }
       return out;
     };
-    this.P = pack(layout.dofCount, (c) => c.phi);
-    this.L = pack(elems, (c) => c.TL);
+    if (!this.hasTaper && !this.distributed && jumps) this.spans = this.makeSpans(jumps);
+    // With spans a combination is formed from them: the rotations and end torques are not packed.
+    this.P = this.spans ? new Float64Array(0) : pack(layout.dofCount, (c) => c.phi);
+    this.L = this.spans ? new Float64Array(0) : pack(elems, (c) => c.TL);
     this.R = this.distributed ? pack(elems, (c) => c.TR) : null;
     if (!this.distributed) this.st = { ...this.st, TR: this.st.TL };
-    if (!this.hasTaper && !this.distributed && jumps) this.spans = this.makeSpans(jumps);
     this.elemTaper = new Uint8Array(elems);
     for (let e = 0; e < elems; e++) this.elemTaper[e] = this.segments[this.segBase[layout.shaftOf[layout.elemLeft[e]]] + layout.elemSegment[e]].taper ? 1 : 0;
     this.segPhiFrom = f(nSeg);
     this.segPhiTo = f(nSeg);
     this.segPeak = f(this.hasTaper ? nSeg : 0);
+    const met = new Uint8Array(nSeg);
+    for (let e = 0; e < elems; e++) met[this.segBase[layout.shaftOf[layout.elemLeft[e]]] + layout.elemSegment[e]] = 1;
+    this.spansCover = met.every((x) => x === 1);
   }
 
   /** The spans of a model without tapers and distributed torques (see `spans`). */
@@ -373,6 +391,7 @@ export class Superposition {
     const pairSeg: number[] = [];
     const pairSpan: number[] = [];
     const pairZ: number[] = [];
+    const pairD: number[] = [];
     const segFrom = new Int32Array(this.segments.length);
     const segTo = new Int32Array(this.segments.length);
     for (let s = 0; s + 1 < shaftStart.length; s++) {
@@ -384,6 +403,7 @@ export class Superposition {
           pairSeg.push(g);
           pairSpan.push(elemOf[e]);
           pairZ.push(z[d]);
+          pairD.push(d);
         }
         if (q < 0 || pairSeg[q] !== g) segFrom[g] = d;
         segTo[g] = d + 1;
@@ -400,6 +420,7 @@ export class Superposition {
       pairSeg: Int32Array.from(pairSeg),
       pairSpan: Int32Array.from(pairSpan),
       pairZ: Float64Array.from(pairZ),
+      pairD: Int32Array.from(pairD),
       segFrom,
       segTo,
     };
@@ -467,6 +488,190 @@ export class Superposition {
     if (this.skeleton === undefined && this.model.raisers.length === 0) this.skeleton = this.checks(st);
     st.raisers = this.model.raisers.length > 0 ? recoverRaisers(this.model, { ...this.layout, elemT1: st.t1, elemT2: st.t2 }, st) : undefined;
     return st;
+  }
+
+  /**
+   * Every combination (its column weights) into `env`: by station (`passBySpan`) where the model
+   * has spans and no stress raisers, else evaluated one by one. `byStation` false: one by one always
+   * (the reference the tests hold the pass to).
+   */
+  combineAll(weights: readonly Float64Array[], env: Envelope, byStation = true): CombinedAll {
+    const K = weights.length;
+    if (byStation && K > 0 && this.spans && this.model.raisers.length === 0 && this.spansCover) {
+      // The checks' kinds, places and limits (`checkList`) are made from the first combination evaluated.
+      if (this.skeleton === undefined) this.evaluate(weights[0], false);
+      return this.passBySpan(weights, env);
+    }
+    const out = { maxResidual: new Float64Array(K), torqueScale: new Float64Array(K), finite: new Uint8Array(K) };
+    weights.forEach((w, k) => {
+      const r = this.evaluate(w, false);
+      addToEnvelope(env, this, r, k, w);
+      let torqueScale = 0;
+      for (let g = 0; g < r.segMaxAbs.length; g++) torqueScale = Math.max(torqueScale, r.segMaxAbs[g]);
+      out.maxResidual[k] = r.maxResidual;
+      out.torqueScale[k] = torqueScale;
+      out.finite[k] = combinationFinite(r) ? 1 : 0;
+    });
+    return out;
+  }
+
+  /**
+   * Every combination (column weights `weights`) into `env` in one pass by station, for a model with
+   * spans and no stress raisers: the numbers of `evaluate` and `addToEnvelope` taken combination by
+   * combination, bit for bit (the same sums in the same order; the first combination wins ties).
+   * Per span the T and φ of every combination at its start are formed once into rows K long;
+   * each station, each run of a segment in a span and each segment's end then sweep those rows
+   * with the envelope's extremes held in locals. A shaft's extremes of φ are at its spans' ends
+   * (φ is p + t·flex along a span, flex growing), so its total twist reads those only.
+   */
+  private passBySpan(weights: readonly Float64Array[], env: Envelope): CombinedAll {
+    const sp = this.spans as NonNullable<Superposition['spans']>;
+    const { layout, columns, C, first: c0, layerBase, layerGr, rigidity, segBase, segZ0 } = this;
+    const { shaftStart, elemSegment } = layout;
+    const { T, P, of, flex, pairD, pairZ, segTo } = sp;
+    const K = weights.length;
+    const f = () => new Float64Array(K);
+    // The weights on the packed columns, combination by combination: W[k·C + c].
+    const W = new Float64Array(C * K);
+    for (let k = 0; k < K; k++) for (let c = 0; c < C; c++) W[k * C + c] = weights[k][c0 + c];
+    const rows: PassRows = { K, tK: f(), pK: f(), mK: f(), atK: f(), shMin: f(), shMax: f(), zero: f(), torqueScale: f() };
+    const { shMin, shMax, zero } = rows;
+    let cur = f();
+    let from = f();
+    const maxResidual = f();
+    let q = 0;
+    for (let s = 0; s + 1 < shaftStart.length; s++) {
+      const first = shaftStart[s];
+      const last = shaftStart[s + 1] - 1;
+      let n = -1;
+      let open = -1;
+      for (let d = first; d <= last; d++) {
+        if (of[d] !== n) {
+          // A span starts: its T and φ in every combination (the sums of `evaluate`, in its order).
+          n = of[d];
+          spanRows(W, C, T, P, n * C, rows);
+          spanExtremes(rows, env.spanMin, env.spanMax, n);
+        }
+        // φ at this station in every combination, and its extremes.
+        // A shaft's extremes of φ: at its first station, then at its spans' ends.
+        const ends = d === first ? 1 : of[d - 1] !== n || d === last || of[d + 1] !== n ? 2 : 0;
+        rotationRow(rows, flex[d], cur, env.rotationMin, env.rotationMax, d, ends);
+        if (open >= 0 && d === segTo[open]) {
+          // The segment ends here: its peak, twist and layer stresses per combination, into the envelope.
+          segmentEnd(env, rows, open, rigidity[open], layerBase[open], layerBase[open + 1], layerGr, from, cur);
+          open = -1;
+        }
+        if (d === last) break;
+        const g = segBase[s] + elemSegment[d - s];
+        if (g !== open) {
+          // A segment starts: φ here is its start's; the next station's goes to the other row.
+          open = g;
+          const t = from;
+          from = cur;
+          cur = t;
+          // Its first run (every segment has one, starting here): its peak from 0, at the segment's start while 0.
+          runPeaks(rows, pairZ[q++], segZ0[g]);
+        } else if (pairD[q] === d) runPeaks(rows, pairZ[q++], Number.NaN);
+      }
+      let best = env.twistMax[s];
+      for (let k = 0; k < K; k++) {
+        const x = shMax[k] - shMin[k];
+        zero[k] += x * 0;
+        if (x > best) {
+          best = x;
+          env.twistCombination[s] = k;
+        }
+      }
+      env.twistMax[s] = best;
+    }
+    // Supports, gear meshes, couplings and shaft sums: few; combination by combination, as `evaluate` sums them.
+    const nc = columns.length;
+    const pack = (pick: (c: StateColumn) => Float64Array) => {
+      const n = pick(columns[0]).length;
+      const out = new Float64Array(n * nc);
+      for (let c = 0; c < nc; c++) {
+        const a = pick(columns[c]);
+        for (let i = 0; i < n; i++) out[i * nc + c] = a[i];
+      }
+      return out;
+    };
+    const reaction = pack((c) => c.reaction);
+    const meshForce = pack((c) => c.meshForce);
+    const couplingA = pack((c) => c.couplingA);
+    const sums = pack((c) => c.sums);
+    const nR = reaction.length / nc;
+    const nM = meshForce.length / nc;
+    const nK = couplingA.length / nc;
+    const nS = sums.length / nc;
+    // Up to four combinations' sums per kind: entry i of the j-th at j·n + i.
+    const xr = new Float64Array(4 * nR);
+    const xm = new Float64Array(4 * nM);
+    const xc = new Float64Array(4 * nK);
+    const xs = new Float64Array(4 * nS);
+    // `evaluate` skips a column whose weight is 0; with none such, no test per term.
+    const dense = (k: number) => weights[k].every((v) => v !== 0);
+    for (let k = 0; k < K; ) {
+      // Four combinations without a zero weight at a time (each its own sum, term by term in column order), else one.
+      const J = k + 3 < K && dense(k) && dense(k + 1) && dense(k + 2) && dense(k + 3) ? 4 : 1;
+      if (J === 4) {
+        const [w0, w1, w2, w3] = [weights[k], weights[k + 1], weights[k + 2], weights[k + 3]];
+        connectionSums4(w0, w1, w2, w3, reaction, nc, xr);
+        connectionSums4(w0, w1, w2, w3, meshForce, nc, xm);
+        connectionSums4(w0, w1, w2, w3, couplingA, nc, xc);
+        connectionSums4(w0, w1, w2, w3, sums, nc, xs);
+      } else {
+        const w = weights[k];
+        const d = dense(k);
+        connectionSums(w, reaction, nc, d, xr);
+        connectionSums(w, meshForce, nc, d, xm);
+        connectionSums(w, couplingA, nc, d, xc);
+        connectionSums(w, sums, nc, d, xs);
+      }
+      for (let j = 0; j < J; j++, k++) {
+        const w = weights[k];
+        let z0 = 0;
+        for (let i = 0, o = j * nR; i < nR; i++) {
+          const x = xr[o + i];
+          z0 += x * 0;
+          if (x < env.reactionMin[i]) {
+            env.reactionMin[i] = x;
+            env.reactionMinAt[i] = k;
+          }
+          if (x > env.reactionMax[i]) {
+            env.reactionMax[i] = x;
+            env.reactionMaxAt[i] = k;
+          }
+        }
+        for (let i = 0, o = j * nM; i < nM; i++) {
+          const x = xm[o + i];
+          z0 += x * 0;
+          if (Math.abs(x) > env.meshMaxAbs[i]) {
+            env.meshMaxAbs[i] = Math.abs(x);
+            env.meshCombination[i] = k;
+            env.meshForce[i] = x;
+            env.meshA[i] = this.connection(w, (c) => c.meshA, i);
+            env.meshB[i] = this.connection(w, (c) => c.meshB, i);
+          }
+        }
+        for (let i = 0, o = j * nK; i < nK; i++) {
+          const x = xc[o + i];
+          z0 += x * 0;
+          if (Math.abs(x) > env.couplingMaxAbs[i]) {
+            env.couplingMaxAbs[i] = Math.abs(x);
+            env.couplingCombination[i] = k;
+            env.couplingA[i] = x;
+            env.couplingB[i] = this.connection(w, (c) => c.couplingB, i);
+          }
+        }
+        let res = 0;
+        for (let i = 0, o = j * nS; i < nS; i++) res = Math.max(res, Math.abs(xs[o + i]));
+        maxResidual[k] = res;
+        zero[k] += z0 + res * 0;
+      }
+    }
+    const finite = new Uint8Array(K);
+    for (let k = 0; k < K; k++) finite[k] = zero[k] === 0 ? 1 : 0;
+    return { maxResidual, torqueScale: rows.torqueScale, finite };
   }
 
   /** One number of one connection (column `pick`, entry n) in the combination with column weights `w`. */
@@ -968,4 +1173,263 @@ export function governedItems(env: Envelope, sup: Superposition, combinations: n
     for (let m = 0; m < checks.total; m++) byCheck[checkGovernedBy(env, sup, checks, m)].push(m);
   }
   return { segments, meshes, couplings, checks: byCheck };
+}
+
+/** The rows of the pass by station (`passBySpan`), each K long: one entry per combination. */
+interface PassRows {
+  readonly K: number;
+  /** T and φ at the start of the span at hand. */
+  readonly tK: Float64Array;
+  readonly pK: Float64Array;
+  /** Of the segment at hand: the largest |T| so far and where. */
+  readonly mK: Float64Array;
+  readonly atK: Float64Array;
+  /** Of the shaft at hand: the extremes of φ so far. */
+  readonly shMin: Float64Array;
+  readonly shMax: Float64Array;
+  /** Σ x·0 over every number a combination lists: 0 when all are finite (as `combinationFinite`). */
+  readonly zero: Float64Array;
+  /** The largest peak |T| of a segment. */
+  readonly torqueScale: Float64Array;
+}
+
+/** T and φ at the start of the span whose packed entries start at nC, in every combination: Σ over the columns from 0, in column order. */
+function spanRows(W: Float64Array, C: number, T: Float64Array, P: Float64Array, nC: number, rows: PassRows): void {
+  const { K, tK, pK } = rows;
+  let k = 0;
+  // Four combinations at a time (each its own sum, term by term in column order), then the rest.
+  for (; k + 3 < K; k += 4) {
+    let t0 = 0;
+    let t1 = 0;
+    let t2 = 0;
+    let t3 = 0;
+    let p0 = 0;
+    let p1 = 0;
+    let p2 = 0;
+    let p3 = 0;
+    for (let c = 0, i = k * C; c < C; c++, i++) {
+      const a = T[nC + c];
+      const b = P[nC + c];
+      const w0 = W[i];
+      const w1 = W[i + C];
+      const w2 = W[i + 2 * C];
+      const w3 = W[i + 3 * C];
+      t0 += w0 * a;
+      p0 += w0 * b;
+      t1 += w1 * a;
+      p1 += w1 * b;
+      t2 += w2 * a;
+      p2 += w2 * b;
+      t3 += w3 * a;
+      p3 += w3 * b;
+    }
+    tK[k] = t0;
+    tK[k + 1] = t1;
+    tK[k + 2] = t2;
+    tK[k + 3] = t3;
+    pK[k] = p0;
+    pK[k + 1] = p1;
+    pK[k + 2] = p2;
+    pK[k + 3] = p3;
+  }
+  for (; k < K; k++) {
+    let t = 0;
+    let p = 0;
+    for (let c = 0, i = k * C; c < C; c++, i++) {
+      t += W[i] * T[nC + c];
+      p += W[i] * P[nC + c];
+    }
+    tK[k] = t;
+    pK[k] = p;
+  }
+}
+
+/**
+ * The extremes of T over the combinations in span n, and each combination's torque scale: its largest
+ * peak |T| of a segment is its largest |T| of a span (every span has a run of some segment).
+ */
+function spanExtremes(rows: PassRows, spanMin: Float64Array, spanMax: Float64Array, n: number): void {
+  const { K, tK, torqueScale } = rows;
+  let lo = spanMin[n];
+  let hi = spanMax[n];
+  for (let k = 0; k < K; k++) {
+    const t = tK[k];
+    lo = Math.min(lo, t);
+    hi = Math.max(hi, t);
+    const a = Math.abs(t);
+    if (a > torqueScale[k]) torqueScale[k] = a;
+  }
+  spanMin[n] = lo;
+  spanMax[n] = hi;
+}
+
+/**
+ * φ = p + t·flex at station d in every combination (into `out`), and its extremes; with `shaft` 1 the
+ * shaft's extremes start from it, with 2 they take it in (the rules of `segmentPeaks`: strict, the first kept).
+ */
+function rotationRow(rows: PassRows, fd: number, out: Float64Array, rotationMin: Float64Array, rotationMax: Float64Array, d: number, shaft: number): void {
+  const { K, tK, pK, shMin, shMax } = rows;
+  let lo = rotationMin[d];
+  let hi = rotationMax[d];
+  if (shaft === 0) {
+    for (let k = 0; k < K; k++) {
+      const x = pK[k] + tK[k] * fd;
+      out[k] = x;
+      lo = Math.min(lo, x);
+      hi = Math.max(hi, x);
+    }
+  } else if (shaft === 1) {
+    for (let k = 0; k < K; k++) {
+      const x = pK[k] + tK[k] * fd;
+      out[k] = x;
+      shMin[k] = x;
+      shMax[k] = x;
+      lo = Math.min(lo, x);
+      hi = Math.max(hi, x);
+    }
+  } else {
+    for (let k = 0; k < K; k++) {
+      const x = pK[k] + tK[k] * fd;
+      out[k] = x;
+      if (x < shMin[k]) shMin[k] = x;
+      if (x > shMax[k]) shMax[k] = x;
+      lo = Math.min(lo, x);
+      hi = Math.max(hi, x);
+    }
+  }
+  rotationMin[d] = lo;
+  rotationMax[d] = hi;
+}
+
+/**
+ * A run of a segment in the span at hand, starting at z: the segment's largest |T| (the first largest
+ * kept). `z0` not NaN: the segment's first run, its peak starting from 0 at z0 (the segment's start).
+ */
+function runPeaks(rows: PassRows, z: number, z0: number): void {
+  const { K, tK, mK, atK } = rows;
+  if (z0 === z0) {
+    for (let k = 0; k < K; k++) {
+      const a = Math.abs(tK[k]);
+      if (a > 0) {
+        mK[k] = a;
+        atK[k] = z;
+      } else {
+        mK[k] = 0;
+        atK[k] = z0;
+      }
+    }
+    return;
+  }
+  for (let k = 0; k < K; k++) {
+    const a = Math.abs(tK[k]);
+    if (a > mK[k]) {
+      mK[k] = a;
+      atK[k] = z;
+    }
+  }
+}
+
+/**
+ * Segment g ends: per combination its peak |T| (rows.mK, at rows.atK), twist (φ `to` − φ `from`), twist
+ * rate |T|/GJ and layer stresses G·r·|T|/GJ, into the envelope as `addToEnvelope` takes them.
+ */
+function segmentEnd(env: Envelope, rows: PassRows, g: number, gj: number, l0: number, l1: number, layerGr: Float64Array, from: Float64Array, to: Float64Array): void {
+  const { K, mK, atK, zero } = rows;
+  const { segLayers, stressLayers, layerMaxShear, layerCombination } = env;
+  let best = env.segMaxAbs[g];
+  let stressBest = env.stressMax[g];
+  // |T| of the combination holding the largest stress: a layer's τ = G·r·|T|/GJ never falls as |T| grows, so
+  // no |T| up to it raises a layer's or the segment's stress (nor makes a τ infinite while that stress is finite).
+  let stressM = stressBest === -Infinity ? -Infinity : env.stressAbs[g];
+  // Σ x·0 over the numbers of every combination: 0 unless one is not finite (then taken per combination below).
+  let sum0 = 0;
+  for (let k = 0; k < K; k++) {
+    const m = mK[k];
+    const twist = to[k] - from[k];
+    const z0 = m * 0 + twist * 0;
+    if (m > best) {
+      best = m;
+      env.segCombination[g] = k;
+      env.segAt[g] = atK[k];
+      env.segTwist[g] = twist;
+      env.segRate[g] = m / gj;
+      for (let l = l0; l < l1; l++) segLayers[l] = (layerGr[l] * m) / gj;
+    }
+    if (m <= stressM && stressBest < Infinity) {
+      sum0 += z0;
+      continue;
+    }
+    let stress = -Infinity;
+    let z1 = z0;
+    for (let l = l0; l < l1; l++) {
+      const tau = (layerGr[l] * m) / gj;
+      z1 += tau * 0;
+      stress = Math.max(stress, tau);
+      if (tau > layerMaxShear[l]) {
+        layerMaxShear[l] = tau;
+        layerCombination[l] = k;
+      }
+    }
+    if (stress > stressBest) {
+      stressBest = stress;
+      stressM = m;
+      env.stressCombination[g] = k;
+      env.stressAbs[g] = m;
+      env.stressAt[g] = atK[k];
+      env.stressTwist[g] = twist;
+      env.stressRate[g] = m / gj;
+      for (let l = l0; l < l1; l++) stressLayers[l] = (layerGr[l] * m) / gj;
+    }
+    sum0 += z1;
+  }
+  env.segMaxAbs[g] = best;
+  env.stressMax[g] = stressBest;
+  if (sum0 !== 0) {
+    for (let k = 0; k < K; k++) {
+      const m = mK[k];
+      let z1 = m * 0 + (to[k] - from[k]) * 0;
+      for (let l = l0; l < l1; l++) z1 += ((layerGr[l] * m) / gj) * 0;
+      zero[k] += z1;
+    }
+  }
+}
+
+/**
+ * One combination's number of every item of a packed connection array (`nc` columns per item, the
+ * assembled state's first), into `out`: as `evaluate` sums them (a zero weight's column skipped).
+ */
+function connectionSums(w: Float64Array, a: Float64Array, nc: number, dense: boolean, out: Float64Array): void {
+  const items = a.length / nc;
+  for (let i = 0, b = 0; i < items; i++, b += nc) {
+    let x = a[b];
+    if (dense) for (let c = 1; c < nc; c++) x += w[c] * a[b + c];
+    else
+      for (let c = 1; c < nc; c++) {
+        const wc = w[c];
+        if (wc !== 0) x += wc * a[b + c];
+      }
+    out[i] = x;
+  }
+}
+
+/** As `connectionSums` for four combinations without a zero weight at once: the j-th's into out[j·items + i]. */
+function connectionSums4(w0: Float64Array, w1: Float64Array, w2: Float64Array, w3: Float64Array, a: Float64Array, nc: number, out: Float64Array): void {
+  const items = a.length / nc;
+  for (let i = 0, b = 0; i < items; i++, b += nc) {
+    let x0 = a[b];
+    let x1 = x0;
+    let x2 = x0;
+    let x3 = x0;
+    for (let c = 1; c < nc; c++) {
+      const v = a[b + c];
+      x0 += w0[c] * v;
+      x1 += w1[c] * v;
+      x2 += w2[c] * v;
+      x3 += w3[c] * v;
+    }
+    out[i] = x0;
+    out[items + i] = x1;
+    out[2 * items + i] = x2;
+    out[3 * items + i] = x3;
+  }
 }

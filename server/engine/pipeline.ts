@@ -27,11 +27,9 @@ import { forcedResponse } from './dynamics/forced.js';
 import type { SegmentInertia } from './dynamics/forced-assembly.js';
 import {
   abridgedWarning,
-  addToEnvelope,
   assembledStateModel,
   caseFactors,
   columnWeights,
-  combinationFinite,
   combinedLayout,
   combinedModel,
   emptyEnvelope,
@@ -344,14 +342,12 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
   const superposition = new Superposition(model, layout, columns, jumps);
   const envelope = emptyEnvelope(superposition);
   const lost: string[] = [];
+  const weights = model.combinations.map(columnWeights);
+  const all = superposition.combineAll(weights, envelope);
   const combinations: CombinationSolved[] = model.combinations.map((c, k) => {
-    const weights = columnWeights(c);
-    const r = superposition.evaluate(weights, false);
-    addToEnvelope(envelope, superposition, r, k, weights);
-    let torqueScale = 0;
-    for (let g = 0; g < r.segMaxAbs.length; g++) torqueScale = Math.max(torqueScale, r.segMaxAbs[g]);
-    if (r.maxResidual > 1e-8 * torqueScale) lost.push(c.id);
-    return { id: c.id, ...(c.name === undefined ? {} : { name: c.name }), weights, maxResidual: r.maxResidual, finite: combinationFinite(r) };
+    const maxResidual = all.maxResidual[k];
+    if (maxResidual > 1e-8 * all.torqueScale[k]) lost.push(c.id);
+    return { id: c.id, ...(c.name === undefined ? {} : { name: c.name }), weights: weights[k], maxResidual, finite: all.finite[k] === 1 };
   });
   finishEnvelope(envelope, superposition);
   const { springs, load } = parts;
