@@ -298,6 +298,8 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
   let next = 1;
   let jumps: Uint8Array | undefined;
   const columns: StateColumn[] = states.map((st, c) => {
+    // Progress: each column recovered, then the pass over the combinations.
+    checkpoint(options.progress, 'recovery', (0.6 * c) / states.length);
     if (c === 0 && !withAssembled) return zeroColumn(model, layout, ws);
     const x = xs[next++];
     const phi = ws.stage(() => expandRotations(st.reduction, x, ws));
@@ -343,7 +345,9 @@ function solveCombinations(model: ResolvedModel, options: PipelineOptions, ws: W
   const envelope = emptyEnvelope(superposition);
   const lost: string[] = [];
   const weights = model.combinations.map(columnWeights);
+  checkpoint(options.progress, 'recovery', 0.7);
   const all = superposition.combineAll(weights, envelope);
+  checkpoint(options.progress, 'recovery', 0.95);
   const combinations: CombinationSolved[] = model.combinations.map((c, k) => {
     const maxResidual = all.maxResidual[k];
     if (maxResidual > 1e-8 * all.torqueScale[k]) lost.push(c.id);

@@ -69,8 +69,12 @@ describe('solve progress', () => {
     // solutions (superposition), so three right-hand sides are solved, not five.
     const cased = longChain(200, 2, 5);
     const solves: number[] = [];
-    json(cased, { progress: { report: (p, f) => void (p === 'solve' && solves.push(f)), aborted: false } });
+    const recovery: number[] = [];
+    json(cased, { progress: { report: (p, f) => void (p === 'solve' ? solves.push(f) : p === 'recovery' && recovery.push(f)), aborted: false } });
     expect(solves).toEqual([0, 1 / 3, 2 / 3]);
+    // Recovery: each column (the assembled state, none here, and the two cases) over the first 0.6,
+    // then before and after the one pass over the five combinations.
+    expect(recovery).toEqual([...[0, 1, 2].map((c) => (0.6 * c) / 3), 0.7, 0.95]);
   });
 
   it('throttled passes on at most one report per interval', () => {
