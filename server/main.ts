@@ -10,7 +10,11 @@ import { fileURLToPath } from 'node:url';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from './http/app.js';
 import { ConfigError, isLoopback, parseConfig, usage, type ServerConfig } from './http/config.js';
-import { LibraryOpenError, openSqliteStore } from './store/sqlite-store.js';
+import { describeTarget } from './store/pg-target.js';
+import { openLibrary, type AsyncModelStore } from './store/async-store.js';
+import { SchemaRefusedError } from './store/pg-migrations.js';
+import { LibraryOpenError } from './store/sqlite-store.js';
+import { StoreConnectError } from './store/store-errors.js';
 
 /** A running server and how to stop it. */
 export interface RunningServer {
@@ -19,13 +23,17 @@ export interface RunningServer {
   readonly config: ServerConfig;
   /** Personal keys in the library at start (revoked ones too): any makes the server need a key. */
   readonly personalKeys: number;
+  /** The library it serves. */
+  readonly store: AsyncModelStore;
   close(): Promise<void>;
 }
 
 /** Starts a server with a checked configuration; resolves once it listens. */
 export async function startServer(config: ServerConfig): Promise<RunningServer> {
-  const store = openSqliteStore(config.dataDir);
+  // PostgreSQL when --database is given, else SQLite in --data; rejects when it cannot be opened.
+  const store = await openLibrary({ database: config.database, dataDir: config.dataDir });
   let app: FastifyInstance;
+  let personalKeys: number;
   try {
     app = await buildApp({
       store,
@@ -43,9 +51,10 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
       warmWorkers: true,
       logger: config.logLevel === 'silent' ? false : { level: config.logLevel },
     });
+    personalKeys = (await store.keys()).length;
     await app.listen({ port: config.port, host: config.host });
   } catch (err) {
-    store.close();
+    await store.close().catch(() => undefined);
     throw err;
   }
   const address = app.server.address();
@@ -56,10 +65,11 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
     app,
     url,
     config,
-    personalKeys: store.keys().length,
+    personalKeys,
+    store,
     async close() {
       await app.close();
-      store.close();
+      await store.close();
     },
   };
 }
@@ -96,8 +106,8 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
   } catch (err) {
     const e = err as NodeJS.ErrnoException;
     const reason =
-      err instanceof LibraryOpenError
-        ? err.message // names the directory or file, and what to do
+      err instanceof LibraryOpenError || err instanceof StoreConnectError || err instanceof SchemaRefusedError
+        ? err.message // names the directory, file or database server, and what to do
         : e.code === 'EADDRINUSE'
           ? `port ${config.port} on ${config.host} is in use (choose another with --port)`
           : e.code === 'EACCES' && e.syscall === 'listen'
@@ -108,7 +118,7 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
     return;
   }
   process.stdout.write(
-    `Shaftnet is listening on ${server.url}  (library: ${path.join(config.dataDir, 'shaftnet.sqlite')}${config.token ? ', team token required' : ''})\n`,
+    `Shaftnet is listening on ${server.url}  (library: ${server.store.kind === 'postgres' ? `PostgreSQL at ${describeTarget(config.database ?? '')}` : path.join(config.dataDir, 'shaftnet.sqlite')}${config.token ? ', team token required' : ''})\n`,
   );
   if (server.personalKeys > 0) {
     process.stdout.write(

@@ -20,15 +20,15 @@ export interface SessionEntry {
 /** Where sessions live. Times are milliseconds since the epoch, passed in (testable, no hidden clock). */
 export interface SessionStore {
   /** Makes a new session (made with the personal key `keyId`, or the team token) and answers its id (the cookie value). */
-  create(now: number, keyId?: string | null): string;
+  create(now: number, keyId?: string | null): string | Promise<string>;
   /** True when the id is a live session; a use refreshes its idle timer. */
-  check(id: string, now: number): boolean;
+  check(id: string, now: number): boolean | Promise<boolean>;
   /** The live session of this id, or undefined; a use (`touch`, default true) refreshes its idle timer. */
-  lookup(id: string, now: number, touch?: boolean): SessionEntry | undefined;
+  lookup(id: string, now: number, touch?: boolean): SessionEntry | undefined | Promise<SessionEntry | undefined>;
   /** Ends the session (sign-out). Unknown ids are ignored. */
-  revoke(id: string): void;
+  revoke(id: string): void | Promise<void>;
   /** Live sessions (for tests and the log). */
-  size(now: number): number;
+  size(now: number): number | Promise<number>;
 }
 
 export interface SessionLimits {

@@ -53,6 +53,32 @@ CREATE TABLE meta (
   value  text NOT NULL
 );`,
   },
+  {
+    version: 2,
+    name: 'review changes, personal keys',
+    sql: `
+CREATE TABLE reviews (
+  model_id  text COLLATE "C" NOT NULL,
+  revision  integer NOT NULL,
+  seq       integer NOT NULL CHECK (seq >= 1),
+  state     text NOT NULL CHECK (state IN ('checked', 'approved', 'returned')),
+  actor     text NOT NULL,
+  at        text COLLATE "C" NOT NULL,
+  note      text,
+  PRIMARY KEY (model_id, revision, seq),
+  FOREIGN KEY (model_id, revision) REFERENCES revisions (model_id, revision)
+);
+CREATE TABLE keys (
+  id        text COLLATE "C" PRIMARY KEY,
+  name      text NOT NULL,
+  role      text NOT NULL CHECK (role IN ('editor', 'checker', 'approver')),
+  created   text COLLATE "C" NOT NULL,
+  revoked   text,
+  salt      text NOT NULL,
+  hash      text NOT NULL,
+  params    text NOT NULL
+);`,
+  },
 ];
 
 /** Key of the advisory lock held while migrating ("ShNt" and 1). */

@@ -69,7 +69,7 @@ function postgresBackend(): Backend {
       const client = new pg.Client({ connectionString: url });
       await client.connect();
       try {
-        await client.query('TRUNCATE revisions, models, meta');
+        await client.query('TRUNCATE reviews, keys, revisions, models, meta');
       } finally {
         await client.end();
       }
