@@ -9,6 +9,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from './http/app.js';
+import type { PgBroadcaster } from './http/pg-broadcaster.js';
 import { ConfigError, isLoopback, parseConfig, usage, type ServerConfig } from './http/config.js';
 import { describeTarget } from './store/pg-target.js';
 import { openLibrary, type AsyncModelStore } from './store/async-store.js';
@@ -32,11 +33,18 @@ export interface RunningServer {
 export async function startServer(config: ServerConfig): Promise<RunningServer> {
   // PostgreSQL when --database is given, else SQLite in --data; rejects when it cannot be opened.
   const store = await openLibrary({ database: config.database, dataDir: config.dataDir });
-  let app: FastifyInstance;
+  let app: FastifyInstance | undefined;
   let personalKeys: number;
+  let notices: PgBroadcaster | undefined;
   try {
+    // Several instances on one PostgreSQL library tell each other of saves and review changes.
+    if (store.kind === 'postgres' && config.database !== undefined) {
+      const { PgBroadcaster } = await import('./http/pg-broadcaster.js'); // the driver only when it is used
+      notices = await PgBroadcaster.start(config.database, (message) => app?.log.warn(message));
+    }
     app = await buildApp({
       store,
+      notices,
       token: config.token,
       listenHost: config.host,
       allowedHosts: config.allowedHosts,
@@ -54,21 +62,25 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
     personalKeys = (await store.keys()).length;
     await app.listen({ port: config.port, host: config.host });
   } catch (err) {
+    await app?.close().catch(() => undefined);
+    await notices?.close();
     await store.close().catch(() => undefined);
     throw err;
   }
-  const address = app.server.address();
+  const running = app;
+  const address = running.server.address();
   const port = typeof address === 'object' && address ? address.port : config.port;
   const host = config.host.includes(':') ? `[${config.host}]` : config.host;
   const url = `http://${host === '0.0.0.0' || host === '[::]' ? 'localhost' : host}:${port}/`;
   return {
-    app,
+    app: running,
     url,
     config,
     personalKeys,
     store,
     async close() {
-      await app.close();
+      await running.close();
+      await notices?.close();
       await store.close();
     },
   };

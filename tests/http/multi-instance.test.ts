@@ -6,7 +6,9 @@
  *     the winner's revision, as with one instance;
  *   - one instance killed with SIGKILL in the middle of a burst of saves: every
  *     save it acknowledged is read back whole from the other instance, its model
- *     byte for byte as sent.
+ *     byte for byte as sent;
+ *   - a save on one instance reaches a live-notice stream open on the other
+ *     (LISTEN/NOTIFY), also after the listening connection was cut and re-made.
  * Skipped (loudly) where PostgreSQL is missing, unless SHAFTNET_REQUIRE_POSTGRES=1.
  * Expected values are what the test itself sent.
  */
@@ -18,7 +20,37 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pgSuiteGate, startPgCluster, type PgCluster } from '../helpers/pg-cluster.js';
 import { spawnServer, type ServerProcess } from '../helpers/server-process.js';
+import pg from 'pg';
 import { cantilever } from './helpers.js';
+
+/** An open events stream: the text so far, and how to close it. */
+function openEvents(base: string, id: string): { text: () => string; opened: Promise<void>; close: () => void } {
+  const ac = new AbortController();
+  let text = '';
+  let markOpen: () => void = () => undefined;
+  const opened = new Promise<void>((resolve) => (markOpen = resolve));
+  void (async () => {
+    try {
+      const r = await fetch(`${base}/api/models/${id}/events`, { headers: { accept: 'text/event-stream' }, signal: ac.signal });
+      const decoder = new TextDecoder();
+      for await (const chunk of r.body as unknown as AsyncIterable<Uint8Array>) {
+        text += decoder.decode(chunk, { stream: true });
+        if (text.includes(': open')) markOpen();
+      }
+    } catch {
+      // aborted
+    }
+  })();
+  return { text: () => text, opened, close: () => ac.abort() };
+}
+
+/** The `revision` events' data in a stream's text. */
+function revisionEvents(text: string): Array<{ id: string; revision: number; author: string }> {
+  return text
+    .split('\n\n')
+    .filter((block) => block.startsWith('event: revision'))
+    .map((block) => JSON.parse(block.split('\n').find((l) => l.startsWith('data: '))!.slice(6)));
+}
 
 const gate = pgSuiteGate('two server instances on one PostgreSQL database');
 const root = fileURLToPath(new URL('../../', import.meta.url));
@@ -135,4 +167,38 @@ describe.skipIf(gate.skip)('two server instances on one PostgreSQL database', ()
       b.child.kill('SIGTERM');
     }
   }, 120_000);
+
+  it('live notices between instances: a save on A reaches an events stream on B, also after B\'s LISTEN connection was cut', async () => {
+    const [a, b] = await Promise.all([start(), start()]);
+    const streams: Array<{ close: () => void }> = [];
+    try {
+      const created = await call(a.url, 'POST', '/api/models', { model: cantilever(), author: 'A' });
+      const id = created.json.id as string;
+      const onB = openEvents(b.url, id);
+      streams.push(onB);
+      await onB.opened;
+      expect((await call(a.url, 'PUT', `/api/models/${id}`, { model: cantilever(2), author: 'Ann on A', baseRevision: 1 })).status).toBe(200);
+      await expect.poll(() => revisionEvents(onB.text()).map((e) => [e.id, e.revision, e.author]), { timeout: 10_000, interval: 50 }).toEqual([[id, 2, 'Ann on A']]);
+
+      // Cut every listening connection (both instances'): each opens a new one and LISTENs again.
+      const admin = new pg.Client({ connectionString: url });
+      await admin.connect();
+      try {
+        // The killed instance of the test before may leave its backend for a moment: wait for exactly A's and B's.
+        const listening = async () => (await admin.query("SELECT count(*)::int AS n FROM pg_stat_activity WHERE application_name = 'shaftnet-listen'")).rows[0].n;
+        await expect.poll(listening, { timeout: 20_000, interval: 100 }).toBe(2);
+        const cut = await admin.query("SELECT pg_terminate_backend(pid) FROM pg_stat_activity WHERE application_name = 'shaftnet-listen'");
+        expect(cut.rowCount).toBe(2);
+        await expect.poll(listening, { timeout: 20_000, interval: 100 }).toBe(2);
+      } finally {
+        await admin.end();
+      }
+      expect((await call(a.url, 'PUT', `/api/models/${id}`, { model: cantilever(3), author: 'Ann on A', baseRevision: 2 })).status).toBe(200);
+      await expect.poll(() => revisionEvents(onB.text()).map((e) => e.revision), { timeout: 10_000, interval: 50 }).toEqual([2, 3]);
+    } finally {
+      for (const s of streams) s.close();
+      a.child.kill('SIGTERM');
+      b.child.kill('SIGTERM');
+    }
+  }, 90_000);
 });
