@@ -10,6 +10,8 @@ import { fileURLToPath } from 'node:url';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from './http/app.js';
 import type { PgBroadcaster } from './http/pg-broadcaster.js';
+import { SESSION_DEFAULTS, type SessionStore } from './http/sessions.js';
+import type { PgStore } from './store/pg-store.js';
 import { ConfigError, isLoopback, parseConfig, usage, type ServerConfig } from './http/config.js';
 import { describeTarget } from './store/pg-target.js';
 import { openLibrary, type AsyncModelStore } from './store/async-store.js';
@@ -36,15 +38,20 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
   let app: FastifyInstance | undefined;
   let personalKeys: number;
   let notices: PgBroadcaster | undefined;
+  let sessions: SessionStore | undefined;
   try {
     // Several instances on one PostgreSQL library tell each other of saves and review changes.
     if (store.kind === 'postgres' && config.database !== undefined) {
       const { PgBroadcaster } = await import('./http/pg-broadcaster.js'); // the driver only when it is used
       notices = await PgBroadcaster.start(config.database, (message) => app?.log.warn(message));
+      // Sessions in the database: a sign-in on one instance holds on all, a sign-out ends it on all.
+      const { PgSessionStore } = await import('./store/pg-sessions.js');
+      sessions = new PgSessionStore(store as PgStore, SESSION_DEFAULTS);
     }
     app = await buildApp({
       store,
       notices,
+      sessions,
       token: config.token,
       listenHost: config.host,
       allowedHosts: config.allowedHosts,

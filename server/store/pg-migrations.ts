@@ -79,6 +79,18 @@ CREATE TABLE keys (
   params    text NOT NULL
 );`,
   },
+  {
+    version: 3,
+    name: 'sign-in sessions',
+    sql: `
+CREATE TABLE sessions (
+  digest     text COLLATE "C" PRIMARY KEY,
+  key_id     text,
+  created    bigint NOT NULL,
+  last_used  bigint NOT NULL
+);
+CREATE INDEX sessions_created ON sessions (created);`,
+  },
 ];
 
 /** Key of the advisory lock held while migrating ("ShNt" and 1). */

@@ -453,6 +453,20 @@ export class PgStore implements AsyncModelStore {
   }
 
   /**
+   * One statement of another part of the server kept in this database (the
+   * sign-in sessions, pg-sessions.ts), by a name of its own (prepared per
+   * connection); a lost server rejects with StoreUnavailableError.
+   */
+  async query<R extends pg.QueryResultRow>(name: string, text: string, values: unknown[]): Promise<pg.QueryResult<R>> {
+    if (this.closed) throw new Error('the library store is closed');
+    try {
+      return await this.pool.query<R>({ name: `sn_x_${name}`, text, values });
+    } catch (err) {
+      throw this.fault(err);
+    }
+  }
+
+  /**
    * Runs `work` in one transaction on one of the pool's connections (for the
    * migrate command's bulk copy); a lost server rejects with StoreUnavailableError.
    */

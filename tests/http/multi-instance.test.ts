@@ -8,7 +8,9 @@
  *     save it acknowledged is read back whole from the other instance, its model
  *     byte for byte as sent;
  *   - a save on one instance reaches a live-notice stream open on the other
- *     (LISTEN/NOTIFY), also after the listening connection was cut and re-made.
+ *     (LISTEN/NOTIFY), also after the listening connection was cut and re-made;
+ *   - a sign-in session made on one instance is accepted by the other; a
+ *     sign-out, or the revocation of its personal key, ends it on both at once.
  * Skipped (loudly) where PostgreSQL is missing, unless SHAFTNET_REQUIRE_POSTGRES=1.
  * Expected values are what the test itself sent.
  */
@@ -21,6 +23,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pgSuiteGate, startPgCluster, type PgCluster } from '../helpers/pg-cluster.js';
 import { spawnServer, type ServerProcess } from '../helpers/server-process.js';
 import pg from 'pg';
+import { makeKey } from '../../server/store/keys.js';
+import { openPgStore } from '../../server/store/pg-store.js';
 import { cantilever } from './helpers.js';
 
 /** An open events stream: the text so far, and how to close it. */
@@ -66,8 +70,8 @@ describe.skipIf(gate.skip)('two server instances on one PostgreSQL database', ()
   let cluster: PgCluster;
   let dataDir: string;
   let url: string;
-  const start = (): Promise<ServerProcess> =>
-    spawnServer(mainJs, ['--port', '0', '--data', dataDir, '--database', url, '--log-level', 'warn', '--rate-limit', '0'], { cwd: root, children, timeoutMs: 30_000 });
+  const start = (database = url, extra: string[] = []): Promise<ServerProcess> =>
+    spawnServer(mainJs, ['--port', '0', '--data', dataDir, '--database', database, '--log-level', 'warn', '--rate-limit', '0', ...extra], { cwd: root, children, timeoutMs: 30_000 });
 
   beforeAll(async () => {
     if (!fs.existsSync(mainJs)) {
@@ -199,6 +203,48 @@ describe.skipIf(gate.skip)('two server instances on one PostgreSQL database', ()
       for (const s of streams) s.close();
       a.child.kill('SIGTERM');
       b.child.kill('SIGTERM');
+    }
+  }, 90_000);
+
+  it('sessions in the database: made on A, accepted by B; sign-out and key revocation end them on both at once', async () => {
+    const database = await cluster.createDatabase('sessions');
+    const tokenFile = path.join(dataDir, 'team-token');
+    fs.writeFileSync(tokenFile, 'team-token-of-the-test\n');
+    const store = await openPgStore(database);
+    const [a, b] = await Promise.all([start(database, ['--token-file', tokenFile]), start(database, ['--token-file', tokenFile])]);
+    const signIn = async (base: string, token: string): Promise<string> => {
+      const r = await fetch(`${base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ token }) });
+      expect(r.status).toBe(200);
+      return /shaftnet_session=([^;]+)/.exec(r.headers.get('set-cookie') ?? '')![1];
+    };
+    const list = async (base: string, cookie: string) => (await fetch(`${base}/api/models`, { headers: { cookie: `shaftnet_session=${cookie}` } })).status;
+    try {
+      expect(await list(b.url, 'no-such-session')).toBe(401);
+      // The team token's session.
+      const team = await signIn(a.url, 'team-token-of-the-test');
+      expect(await list(a.url, team)).toBe(200);
+      expect(await list(b.url, team)).toBe(200);
+      const out = await fetch(`${b.url}/api/session`, { method: 'DELETE', headers: { cookie: `shaftnet_session=${team}`, 'content-type': 'application/json' } });
+      expect(out.status).toBe(200);
+      expect(await list(a.url, team)).toBe(401);
+      expect(await list(b.url, team)).toBe(401);
+      // A personal key's session, and the key revoked (as `keys revoke` does) while both instances run.
+      const { key, record } = await makeKey('Ann Lee', 'checker');
+      await store.addKey(record);
+      const personal = await signIn(b.url, key);
+      expect(await list(a.url, personal)).toBe(200);
+      expect(await list(b.url, personal)).toBe(200);
+      await store.revokeKey('Ann Lee', new Date().toISOString());
+      expect(await list(a.url, personal)).toBe(401);
+      expect(await list(b.url, personal)).toBe(401);
+      // Only digests are kept: no session id in the table.
+      const rows = (await store.query<{ digest: string }>('test_sessions', 'SELECT digest FROM sessions', [])).rows.map((r) => r.digest);
+      expect(rows).not.toContain(team);
+      expect(rows).not.toContain(personal);
+    } finally {
+      a.child.kill('SIGTERM');
+      b.child.kill('SIGTERM');
+      await store.close();
     }
   }, 90_000);
 });
