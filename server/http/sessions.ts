@@ -4,7 +4,8 @@
  * A session is a random id (256 bits) made at each sign-in and sent to the
  * browser in the cookie; the server keeps it, with when it was made and last
  * used, behind the `SessionStore` interface (in memory here, so a restart signs
- * everyone out; a database can hold it later). A session ends when it has not
+ * everyone out; with PostgreSQL in the database, server/store/pg-sessions.ts, whose
+ * methods answer Promises: callers await every call). A session ends when it has not
  * been used for `idleMs`, when `absoluteMs` have passed since the sign-in, or
  * when it is signed out: a copied cookie then stops working.
  *
