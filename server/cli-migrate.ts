@@ -4,13 +4,16 @@
  *
  * Copied as they are: every model (id, name, times, author, latest revision,
  * archived flag), every revision (author, message, time, and the model's stored
- * text character for character) and every meta flag. The copy is one
+ * text character for character), every review change (state, who, when, note),
+ * every personal key (name, role, times; its salt and scrypt hash only: no
+ * secret exists to copy) and every meta flag. The copy is one
  * transaction: a failure leaves the target as it was. The target must hold no
  * library yet; `--force` empties it first (in the same transaction).
  *
  * The check reads both sides afresh: counts of models, archived models,
- * revisions and meta flags; every model row and revision field; and a SHA-256
- * of each revision's stored model text, computed by PostgreSQL itself on the
+ * revisions, review changes, keys and meta flags; every model row, revision,
+ * review change and key field; and a SHA-256 of each revision's stored model
+ * text and of each key's salt, hash and cost parameters, computed by PostgreSQL itself on the
  * target and by this process on the source. Exit status 0 when all agree, 1
  * otherwise (and for any error: usage, source, target).
  *
@@ -78,23 +81,60 @@ interface RevisionRow {
   created: string;
 }
 
+interface ReviewRow {
+  model_id: string;
+  revision: number;
+  seq: number;
+  state: string;
+  actor: string;
+  at: string;
+  note: string | null;
+}
+
+interface KeyRow {
+  id: string;
+  name: string;
+  role: string;
+  created: string;
+  revoked: string | null;
+  /** SHA-256 (hex) of "salt|hash|params". */
+  sha256: string;
+}
+
 /** Everything the check compares, from one side. */
 interface Snapshot {
   models: Map<string, ModelRow>;
   /** "id#revision" → the revision's fields and the SHA-256 (hex) of its model text. */
   revisions: Map<string, RevisionRow & { sha256: string }>;
+  /** "id#revision#seq" → the review change. */
+  reviews: Map<string, ReviewRow>;
+  /** key id → the key's fields and the SHA-256 of its hash material. */
+  keys: Map<string, KeyRow>;
   meta: Map<string, string>;
 }
 
 /** What the check found: the figures of each side and the differences (empty when identical). */
 export interface Verification {
-  readonly source: { models: number; archived: number; revisions: number; meta: number };
-  readonly target: { models: number; archived: number; revisions: number; meta: number };
+  readonly source: Figures;
+  readonly target: Figures;
   /** Revisions whose SHA-256 matched on both sides. */
   readonly hashesEqual: number;
+  /** Keys whose SHA-256 of salt, hash and parameters matched on both sides. */
+  readonly keyHashesEqual: number;
   readonly differences: readonly string[];
 }
 
+/** The counts of one side. */
+export interface Figures {
+  readonly models: number;
+  readonly archived: number;
+  readonly revisions: number;
+  readonly reviews: number;
+  readonly keys: number;
+  readonly meta: number;
+}
+
+const reviewKey = (r: Pick<ReviewRow, 'model_id' | 'revision' | 'seq'>) => `${r.model_id}#${r.revision}#${r.seq}`;
 const sha256 = (text: string) => createHash('sha256').update(text, 'utf8').digest('hex');
 const revKey = (id: string, revision: number) => `${id}#${revision}`;
 
@@ -116,7 +156,13 @@ function readSource(db: Database.Database): Snapshot {
     revisions.set(revKey(r.model_id, r.revision), { model_id: r.model_id, revision: r.revision, author: r.author, message: r.message, created: r.created, sha256: sha256(r.model) });
   }
   const meta = new Map((db.prepare('SELECT key, value FROM meta').all() as Array<{ key: string; value: string }>).map((r) => [r.key, r.value]));
-  return { models, revisions, meta };
+  const reviews = new Map<string, ReviewRow>();
+  for (const r of db.prepare('SELECT model_id, revision, seq, state, actor, at, note FROM reviews').all() as ReviewRow[]) reviews.set(reviewKey(r), r);
+  const keys = new Map<string, KeyRow>();
+  for (const k of db.prepare('SELECT id, name, role, created, revoked, salt, hash, params FROM keys').all() as Array<Omit<KeyRow, 'sha256'> & { salt: string; hash: string; params: string }>) {
+    keys.set(k.id, { id: k.id, name: k.name, role: k.role, created: k.created, revoked: k.revoked, sha256: sha256(`${k.salt}|${k.hash}|${k.params}`) });
+  }
+  return { models, revisions, reviews, keys, meta };
 }
 
 async function readTarget(store: PgStore): Promise<Snapshot> {
@@ -130,14 +176,21 @@ async function readTarget(store: PgStore): Promise<Snapshot> {
     );
     for (const r of revs.rows) revisions.set(revKey(r.model_id, r.revision), r);
     const meta = new Map((await c.query<{ key: string; value: string }>('SELECT key, value FROM meta')).rows.map((r) => [r.key, r.value]));
-    return { models, revisions, meta };
+    const reviews = new Map<string, ReviewRow>();
+    for (const r of (await c.query<ReviewRow>('SELECT model_id, revision, seq, state, actor, at, note FROM reviews')).rows) reviews.set(reviewKey(r), r);
+    const keys = new Map<string, KeyRow>();
+    const keyRows = await c.query<KeyRow>(
+      "SELECT id, name, role, created, revoked, encode(sha256(convert_to(salt || '|' || hash || '|' || params, 'UTF8')), 'hex') AS sha256 FROM keys",
+    );
+    for (const k of keyRows.rows) keys.set(k.id, k);
+    return { models, revisions, reviews, keys, meta };
   });
 }
 
 function figures(s: Snapshot) {
   let archived = 0;
   for (const m of s.models.values()) if (m.archived) archived++;
-  return { models: s.models.size, archived, revisions: s.revisions.size, meta: s.meta.size };
+  return { models: s.models.size, archived, revisions: s.revisions.size, reviews: s.reviews.size, keys: s.keys.size, meta: s.meta.size };
 }
 
 /** Compares two snapshots field by field; at most `limit` differences are listed. */
@@ -165,9 +218,27 @@ function compare(source: Snapshot, target: Snapshot, limit = 20): Verification {
     else differ(`revision ${key}: the model text differs (SHA-256 ${r.sha256.slice(0, 12)}… here, ${t.sha256.slice(0, 12)}… there)`);
   }
   for (const key of target.revisions.keys()) if (!source.revisions.has(key)) differ(`revision ${key} is in the target only`);
+  for (const [key, r] of source.reviews) {
+    const t = target.reviews.get(key);
+    if (!t) differ(`review change ${key} is missing from the target`);
+    else for (const f of sameRow(r, t, ['state', 'actor', 'at', 'note'])) differ(`review change ${key}: ${f} differs`);
+  }
+  for (const key of target.reviews.keys()) if (!source.reviews.has(key)) differ(`review change ${key} is in the target only`);
+  let keyHashesEqual = 0;
+  for (const [id, k] of source.keys) {
+    const t = target.keys.get(id);
+    if (!t) {
+      differ(`key ${id} is missing from the target`);
+      continue;
+    }
+    for (const f of sameRow(k, t, ['name', 'role', 'created', 'revoked'])) differ(`key ${id}: ${f} differs`);
+    if (t.sha256 === k.sha256) keyHashesEqual++;
+    else differ(`key ${id}: its salt, hash or parameters differ`);
+  }
+  for (const id of target.keys.keys()) if (!source.keys.has(id)) differ(`key ${id} is in the target only`);
   for (const [key, v] of source.meta) if (target.meta.get(key) !== v) differ(`meta flag ${key} differs or is missing`);
   for (const key of target.meta.keys()) if (!source.meta.has(key)) differ(`meta flag ${key} is in the target only`);
-  return { source: figures(source), target: figures(target), hashesEqual, differences };
+  return { source: figures(source), target: figures(target), hashesEqual, keyHashesEqual, differences };
 }
 
 /** Reads both libraries afresh and compares them (the command's check, also usable alone). */
@@ -186,12 +257,12 @@ export async function verifyMigration(fromDir: string, toUrl: string): Promise<V
 }
 
 /** Copies the library in one transaction; answers how many models, revisions and meta flags. */
-async function copy(db: Database.Database, store: PgStore, force: boolean): Promise<{ models: number; revisions: number; meta: number }> {
+async function copy(db: Database.Database, store: PgStore, force: boolean): Promise<{ models: number; revisions: number; reviews: number; keys: number; meta: number }> {
   return store.withTransaction(async (c) => {
-    const held = (await c.query<{ n: number }>('SELECT (SELECT count(*) FROM models) + (SELECT count(*) FROM meta) AS n')).rows[0].n;
+    const held = (await c.query<{ n: number }>('SELECT (SELECT count(*) FROM models) + (SELECT count(*) FROM meta) + (SELECT count(*) FROM keys) AS n')).rows[0].n;
     if (Number(held) > 0) {
       if (!force) throw new TargetNotEmptyError(store.target);
-      await c.query('TRUNCATE revisions, models, meta');
+      await c.query('TRUNCATE reviews, keys, sessions, revisions, models, meta');
     }
     db.exec('BEGIN'); // one snapshot of the source
     try {
@@ -215,7 +286,25 @@ async function copy(db: Database.Database, store: PgStore, force: boolean): Prom
       }
       const meta = db.prepare('SELECT key, value FROM meta ORDER BY key').all() as Array<{ key: string; value: string }>;
       for (const { key, value } of meta) await c.query('INSERT INTO meta (key, value) VALUES ($1, $2)', [key, value]);
-      return { models: models.length, revisions, meta: meta.length };
+      // Review changes after the revisions they refer to.
+      const reviews = db.prepare('SELECT model_id, revision, seq, state, actor, at, note FROM reviews ORDER BY model_id, revision, seq').all() as ReviewRow[];
+      for (const r of reviews) {
+        await c.query({
+          name: 'sn_migrate_review',
+          text: 'INSERT INTO reviews (model_id, revision, seq, state, actor, at, note) VALUES ($1, $2, $3, $4, $5, $6, $7)',
+          values: [r.model_id, r.revision, r.seq, r.state, r.actor, r.at, r.note],
+        });
+      }
+      // Personal keys: their hash material as stored (a secret is never stored anywhere).
+      const keys = db.prepare('SELECT id, name, role, created, revoked, salt, hash, params FROM keys ORDER BY created, id').all() as Array<Record<string, string | null>>;
+      for (const k of keys) {
+        await c.query({
+          name: 'sn_migrate_key',
+          text: 'INSERT INTO keys (id, name, role, created, revoked, salt, hash, params) VALUES ($1, $2, $3, $4, $5, $6, $7, $8)',
+          values: [k.id, k.name, k.role, k.created, k.revoked, k.salt, k.hash, k.params],
+        });
+      }
+      return { models: models.length, revisions, reviews: reviews.length, keys: keys.length, meta: meta.length };
     } finally {
       db.exec('COMMIT');
     }
@@ -246,7 +335,7 @@ export async function migrateFromArgs(args: string[], out: (s: string) => void, 
     out(`copying ${source} into ${store.target}`);
     const t0 = Date.now();
     const copied = await copy(db, store, parsed.force);
-    out(`copied ${copied.models} models, ${copied.revisions} revisions, ${copied.meta} meta flags in ${((Date.now() - t0) / 1000).toFixed(1)} s; checking`);
+    out(`copied ${copied.models} models, ${copied.revisions} revisions, ${copied.reviews} review changes, ${copied.keys} keys, ${copied.meta} meta flags in ${((Date.now() - t0) / 1000).toFixed(1)} s; checking`);
   } catch (e) {
     if (e instanceof LibraryOpenError || e instanceof StoreConnectError || e instanceof StoreUnavailableError || e instanceof SchemaRefusedError || e instanceof TargetNotEmptyError) {
       err(`migrate: ${e.message}`);
@@ -265,16 +354,17 @@ export async function migrateFromArgs(args: string[], out: (s: string) => void, 
     err(`migrate: the copy was made, but the check could not run: ${(e as Error).message}`);
     return 1;
   }
-  const row = (label: string, s: Verification['source']) =>
-    `  ${label.padEnd(7)} ${String(s.models).padStart(8)} models (${s.archived} archived) ${String(s.revisions).padStart(9)} revisions ${String(s.meta).padStart(4)} meta flags`;
+  const row = (label: string, s: Figures) =>
+    `  ${label.padEnd(7)} ${String(s.models).padStart(8)} models (${s.archived} archived) ${String(s.revisions).padStart(9)} revisions ${String(s.reviews).padStart(6)} review changes ${String(s.keys).padStart(4)} keys ${String(s.meta).padStart(4)} meta flags`;
   out(row('source', v.source));
   out(row('target', v.target));
   out(`  SHA-256 of the stored model text: ${v.hashesEqual} of ${v.source.revisions} revisions equal on both sides`);
+  out(`  SHA-256 of each key's salt, hash and parameters: ${v.keyHashesEqual} of ${v.source.keys} keys equal on both sides`);
   if (v.differences.length > 0) {
     for (const d of v.differences) err(`  differs: ${d}`);
     err('migrate: the target does NOT hold the same library (differences above)');
     return 1;
   }
-  out('verified: the target holds the same models, revisions and meta flags, byte for byte');
+  out('verified: the target holds the same models, revisions, review changes, keys and meta flags, byte for byte');
   return 0;
 }

@@ -9,8 +9,15 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from './http/app.js';
+import type { PgBroadcaster } from './http/pg-broadcaster.js';
+import { SESSION_DEFAULTS, type SessionStore } from './http/sessions.js';
+import type { PgStore } from './store/pg-store.js';
 import { ConfigError, isLoopback, parseConfig, usage, type ServerConfig } from './http/config.js';
-import { LibraryOpenError, openSqliteStore } from './store/sqlite-store.js';
+import { describeTarget } from './store/pg-target.js';
+import { openLibrary, type AsyncModelStore } from './store/async-store.js';
+import { SchemaRefusedError } from './store/pg-migrations.js';
+import { LibraryOpenError } from './store/sqlite-store.js';
+import { StoreConnectError } from './store/store-errors.js';
 
 /** A running server and how to stop it. */
 export interface RunningServer {
@@ -19,16 +26,32 @@ export interface RunningServer {
   readonly config: ServerConfig;
   /** Personal keys in the library at start (revoked ones too): any makes the server need a key. */
   readonly personalKeys: number;
+  /** The library it serves. */
+  readonly store: AsyncModelStore;
   close(): Promise<void>;
 }
 
 /** Starts a server with a checked configuration; resolves once it listens. */
 export async function startServer(config: ServerConfig): Promise<RunningServer> {
-  const store = openSqliteStore(config.dataDir);
-  let app: FastifyInstance;
+  // PostgreSQL when --database is given, else SQLite in --data; rejects when it cannot be opened.
+  const store = await openLibrary({ database: config.database, dataDir: config.dataDir });
+  let app: FastifyInstance | undefined;
+  let personalKeys: number;
+  let notices: PgBroadcaster | undefined;
+  let sessions: SessionStore | undefined;
   try {
+    // Several instances on one PostgreSQL library tell each other of saves and review changes.
+    if (store.kind === 'postgres' && config.database !== undefined) {
+      const { PgBroadcaster } = await import('./http/pg-broadcaster.js'); // the driver only when it is used
+      notices = await PgBroadcaster.start(config.database, (message) => app?.log.warn(message));
+      // Sessions in the database: a sign-in on one instance holds on all, a sign-out ends it on all.
+      const { PgSessionStore } = await import('./store/pg-sessions.js');
+      sessions = new PgSessionStore(store as PgStore, SESSION_DEFAULTS);
+    }
     app = await buildApp({
       store,
+      notices,
+      sessions,
       token: config.token,
       listenHost: config.host,
       allowedHosts: config.allowedHosts,
@@ -43,23 +66,29 @@ export async function startServer(config: ServerConfig): Promise<RunningServer> 
       warmWorkers: true,
       logger: config.logLevel === 'silent' ? false : { level: config.logLevel },
     });
+    personalKeys = (await store.keys()).length;
     await app.listen({ port: config.port, host: config.host });
   } catch (err) {
-    store.close();
+    await app?.close().catch(() => undefined);
+    await notices?.close();
+    await store.close().catch(() => undefined);
     throw err;
   }
-  const address = app.server.address();
+  const running = app;
+  const address = running.server.address();
   const port = typeof address === 'object' && address ? address.port : config.port;
   const host = config.host.includes(':') ? `[${config.host}]` : config.host;
   const url = `http://${host === '0.0.0.0' || host === '[::]' ? 'localhost' : host}:${port}/`;
   return {
-    app,
+    app: running,
     url,
     config,
-    personalKeys: store.keys().length,
+    personalKeys,
+    store,
     async close() {
-      await app.close();
-      store.close();
+      await running.close();
+      await notices?.close();
+      await store.close();
     },
   };
 }
@@ -96,8 +125,8 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
   } catch (err) {
     const e = err as NodeJS.ErrnoException;
     const reason =
-      err instanceof LibraryOpenError
-        ? err.message // names the directory or file, and what to do
+      err instanceof LibraryOpenError || err instanceof StoreConnectError || err instanceof SchemaRefusedError
+        ? err.message // names the directory, file or database server, and what to do
         : e.code === 'EADDRINUSE'
           ? `port ${config.port} on ${config.host} is in use (choose another with --port)`
           : e.code === 'EACCES' && e.syscall === 'listen'
@@ -108,7 +137,7 @@ export async function serveFromArgs(argv: string[]): Promise<void> {
     return;
   }
   process.stdout.write(
-    `Shaftnet is listening on ${server.url}  (library: ${path.join(config.dataDir, 'shaftnet.sqlite')}${config.token ? ', team token required' : ''})\n`,
+    `Shaftnet is listening on ${server.url}  (library: ${server.store.kind === 'postgres' ? `PostgreSQL at ${describeTarget(config.database ?? '')}` : path.join(config.dataDir, 'shaftnet.sqlite')}${config.token ? ', team token required' : ''})\n`,
   );
   if (server.personalKeys > 0) {
     process.stdout.write(

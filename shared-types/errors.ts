@@ -63,6 +63,8 @@ export const ERROR_CODES = {
   SN_INTERNAL: { status: 500, summary: 'A fault in the server itself (not in the request); the server log has the details.' },
   // Progress and cancel (issue 14): the caller stopped the solve (closed the connection, Ctrl+C).
   SN_CANCELLED: { status: 499, summary: 'The solve was cancelled by its caller before it finished; nothing is wrong with the model.' },
+  // The library in PostgreSQL (issue 15): its database server lost while the server runs.
+  SN_STORE_UNAVAILABLE: { status: 503, summary: "The library's database server cannot be reached; nothing of this request was saved. Retry shortly (Retry-After)." },
 } as const satisfies Record<string, ErrorCodeInfo>;
 
 export type ErrorCode = keyof typeof ERROR_CODES;

@@ -8,7 +8,9 @@ import swagger from '@fastify/swagger';
 import swaggerUi from '@fastify/swagger-ui';
 import type { TypeBoxTypeProvider } from '@fastify/type-provider-typebox';
 import Fastify, { type FastifyInstance, type FastifyReply, type FastifyServerOptions } from 'fastify';
+import { asyncFromSync, isAsyncStore, type AsyncModelStore } from '../store/async-store.js';
 import type { ModelStore } from '../store/store.js';
+import { StoreUnavailableError } from '../store/store-errors.js';
 import { authHook, TeamAuth } from './auth.js';
 import { loadDemos, seedDemos } from './demos.js';
 import { clientErrorResponse, toErrorReply } from './errors.js';
@@ -16,7 +18,7 @@ import { crossSiteHook, hostHook, hostPolicy } from './guard.js';
 import { defaultClientDir, defaultDemosDir, packageVersion } from './paths.js';
 import clientRoutes from './routes/client.js';
 import demosRoutes from './routes/demos.js';
-import healthRoutes from './routes/health.js';
+import healthRoutes, { STORE_RETRY_AFTER_S } from './routes/health.js';
 import eventsRoutes from './routes/events.js';
 import modelsRoutes from './routes/models.js';
 import reviewRoutes from './routes/review.js';
@@ -33,8 +35,11 @@ import { readJsonBody } from './body.js';
 import { validatorCompiler } from './validation.js';
 
 export interface AppOptions {
-  /** The model library. The app does not close it: whoever opened it does. */
-  readonly store: ModelStore;
+  /**
+   * The model library (SQLite's synchronous store is wrapped by asyncFromSync).
+   * The app does not close it: whoever opened it does.
+   */
+  readonly store: ModelStore | AsyncModelStore;
   /** Team token; undefined = open server. */
   readonly token?: string;
   /** Sign-in attempts per minute per address (default 10). */
@@ -119,10 +124,11 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   const token = opts.token;
   if (token !== undefined && token.length === 0) throw new Error('buildApp: token must not be empty');
   const sessionLimits: SessionLimits = { ...SESSION_DEFAULTS, ...opts.sessionLimits };
+  const store: AsyncModelStore = isAsyncStore(opts.store) ? opts.store : asyncFromSync(opts.store);
   // Always made: personal keys in the library put the server in token mode even without a team token.
   const auth = new TeamAuth({
     token,
-    keys: opts.store,
+    keys: store,
     sessions: opts.sessions ?? new MemorySessionStore(sessionLimits),
     signInPerMinute: positiveInt('signInPerMinute', opts.signInPerMinute ?? 10),
     now: opts.now,
@@ -182,7 +188,10 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.setErrorHandler((err, req, reply) => {
     const { status, body, internal } = toErrorReply(err);
     if (internal) req.log.error({ err }, 'internal error');
-    else req.log.info({ code: body.error.code, status }, 'request refused');
+    else if (err instanceof StoreUnavailableError) {
+      req.log.warn({ code: body.error.code, status, detail: err.message }, 'library unavailable');
+      void reply.header('retry-after', String(STORE_RETRY_AFTER_S));
+    } else req.log.info({ code: body.error.code, status }, 'request refused');
     return reply.code(status).send(body);
   });
 
@@ -218,7 +227,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
           session: { type: 'apiKey', in: 'cookie', name: 'shaftnet_session', description: 'Set by POST /api/session.' },
         },
       },
-      security: token === undefined && !opts.store.hasKeys() ? [] : [{ bearer: [] }, { session: [] }],
+      security: token === undefined && !(await store.hasKeys()) ? [] : [{ bearer: [] }, { session: [] }],
     },
   });
   await app.register(swaggerUi, {
@@ -246,19 +255,19 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
 
   const demos = loadDemos(opts.demosDir ?? defaultDemosDir());
   if (opts.seedDemos ?? true) {
-    const n = seedDemos(opts.store, demos);
+    const n = await seedDemos(store, demos);
     if (n > 0) app.log.info(`seeded ${n} demo models into the empty library`);
   }
 
-  await app.register(healthRoutes, { version: opts.version ?? packageVersion(), workers: () => pool.stats() });
+  await app.register(healthRoutes, { version: opts.version ?? packageVersion(), workers: () => pool.stats(), ready: () => store.ready() });
   await app.register(sessionRoutes, { auth, maxAgeMs: sessionLimits.absoluteMs });
   await app.register(solveRoutes, { pool, limits, workerThreshold, rateLimitPerMinute });
-  await app.register(modelsRoutes, { store: opts.store, pool, limits, workerThreshold, notices });
-  await app.register(reviewRoutes, { store: opts.store, notices });
-  await app.register(eventsRoutes, { store: opts.store, notices, auth, keepAliveMs: opts.eventsKeepAliveMs });
+  await app.register(modelsRoutes, { store, pool, limits, workerThreshold, notices });
+  await app.register(reviewRoutes, { store, notices });
+  await app.register(eventsRoutes, { store, notices, auth, keepAliveMs: opts.eventsKeepAliveMs });
   await app.register(demosRoutes, { demos });
-  await app.register(sheetRoutes, { store: opts.store, pool, limits, workerThreshold, rateLimitPerMinute, version: opts.version ?? packageVersion() });
-  await app.register(compareRoutes, { store: opts.store, pool, limits, workerThreshold, rateLimitPerMinute });
+  await app.register(sheetRoutes, { store, pool, limits, workerThreshold, rateLimitPerMinute, version: opts.version ?? packageVersion() });
+  await app.register(compareRoutes, { store, pool, limits, workerThreshold, rateLimitPerMinute });
   await app.register(clientRoutes, { clientDir: opts.clientDir === undefined ? defaultClientDir() : opts.clientDir, auth, routes });
 
   return app as unknown as FastifyInstance;

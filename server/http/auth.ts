@@ -16,7 +16,10 @@ import type { FastifyReply, FastifyRequest } from 'fastify';
 import type { KeyRole, ReviewTarget } from '../../shared-types/library.js';
 import { parseKey, secretMatches } from '../store/keys.js';
 import { ROLE_FOR, roleMay } from '../store/review-rules.js';
-import type { KeyStore } from '../store/store.js';
+import type { AsyncModelStore } from '../store/async-store.js';
+
+/** What auth reads of the library: a key's row, and whether any key exists. */
+export type AuthKeys = Pick<AsyncModelStore, 'keyRecord' | 'hasKeys'>;
 import { HttpError } from './errors.js';
 import { AttemptLimiter, type SessionStore } from './sessions.js';
 
@@ -67,7 +70,7 @@ export interface AuthOptions {
   /** The team token; undefined = none (then only personal keys, if any, are needed). */
   readonly token: string | undefined;
   /** The personal keys (the library); undefined = none. */
-  readonly keys: KeyStore | undefined;
+  readonly keys: AuthKeys | undefined;
   readonly sessions: SessionStore;
   readonly signInPerMinute: number;
   /** The clock (ms since the epoch); tests pass their own. */
@@ -86,7 +89,7 @@ export class TeamAuth {
   readonly sessions: SessionStore;
   readonly now: () => number;
   private readonly token: string | undefined;
-  private readonly keys: KeyStore | undefined;
+  private readonly keys: AuthKeys | undefined;
   /** keyId → the digest of the key text last verified, until when, and the hash it was verified against. */
   private readonly verified = new Map<string, { digest: Buffer; until: number; hash: string }>();
 
@@ -99,8 +102,8 @@ export class TeamAuth {
   }
 
   /** True when requests need the team token or a personal key. */
-  required(): boolean {
-    return this.token !== undefined || (this.keys?.hasKeys() ?? false);
+  async required(): Promise<boolean> {
+    return this.token !== undefined || ((await this.keys?.hasKeys()) ?? false);
   }
 
   /** Throws 429 SN_RATE_LIMITED (with Retry-After) when the address has used up its sign-in attempts. */
@@ -113,8 +116,8 @@ export class TeamAuth {
   }
 
   /** The identity of a live, unrevoked personal key with this id, or null. */
-  private liveKey(keyId: string): KeyIdentity | null {
-    const row = this.keys?.keyRecord(keyId);
+  private async liveKey(keyId: string): Promise<KeyIdentity | null> {
+    const row = await this.keys?.keyRecord(keyId);
     if (!row || row.revoked !== null) {
       this.verified.delete(keyId);
       return null;
@@ -130,7 +133,7 @@ export class TeamAuth {
   private async keyIdentity(text: string): Promise<KeyIdentity | null> {
     const parsed = parseKey(text);
     if (parsed === null || this.keys === undefined) return null;
-    const row = this.keys.keyRecord(parsed.id);
+    const row = await this.keys.keyRecord(parsed.id);
     if (!row || row.revoked !== null) {
       this.verified.delete(parsed.id);
       return null;
@@ -142,7 +145,7 @@ export class TeamAuth {
     if (!cached) {
       if (!(await secretMatches(parsed.secret, row))) return null;
       // A revocation made during the slow hash counts too.
-      if (this.liveKey(row.id) === null) return null;
+      if ((await this.liveKey(row.id)) === null) return null;
       this.verified.set(row.id, { digest, until: now + KEY_CACHE_MS, hash: row.hash });
     }
     return { keyId: row.id, name: row.name, role: row.role };
@@ -155,7 +158,7 @@ export class TeamAuth {
    */
   async principal(req: FastifyRequest, reply?: FastifyReply, touch = true): Promise<{ identity: KeyIdentity | null } | undefined> {
     const header = req.headers.authorization;
-    if (typeof header === 'string' && header.length > 0 && this.required()) {
+    if (typeof header === 'string' && header.length > 0 && (await this.required())) {
       this.guard(req, reply);
       const m = /^Bearer\s+(\S+)\s*$/i.exec(header);
       if (m) {
@@ -168,15 +171,15 @@ export class TeamAuth {
     }
     const cookie = req.cookies?.[SESSION_COOKIE];
     if (typeof cookie === 'string') {
-      const session = this.sessions.lookup(cookie, this.now(), touch);
+      const session = await this.sessions.lookup(cookie, this.now(), touch);
       if (session !== undefined) {
         if (session.keyId === null) return { identity: null };
-        const identity = this.liveKey(session.keyId);
+        const identity = await this.liveKey(session.keyId);
         if (identity !== null) return { identity };
-        this.sessions.revoke(cookie); // its key was revoked: the session ends with it
+        await this.sessions.revoke(cookie); // its key was revoked: the session ends with it
       }
     }
-    return this.required() ? undefined : { identity: null };
+    return (await this.required()) ? undefined : { identity: null };
   }
 
   /** True when the request carries the team token or a live key (bearer), or the cookie of a live session; always in open mode. */
@@ -192,17 +195,17 @@ export class TeamAuth {
   async signIn(req: FastifyRequest, reply: FastifyReply, given: string): Promise<{ sessionId: string; identity: KeyIdentity | null }> {
     this.guard(req, reply);
     this.limiter.count(req.ip, this.now());
-    if (this.token !== undefined && sameSecret(given, this.token)) return { sessionId: this.sessions.create(this.now(), null), identity: null };
+    if (this.token !== undefined && sameSecret(given, this.token)) return { sessionId: await this.sessions.create(this.now(), null), identity: null };
     const identity = await this.keyIdentity(given);
-    if (identity !== null) return { sessionId: this.sessions.create(this.now(), identity.keyId), identity };
+    if (identity !== null) return { sessionId: await this.sessions.create(this.now(), identity.keyId), identity };
     const message = this.token !== undefined ? 'that is neither the team token nor a live personal key' : 'that is not a live personal key';
     throw new HttpError('SN_UNAUTHORISED', message, [{ code: 'SN_UNAUTHORISED', pointer: '/token', message }]);
   }
 
   /** Sign-out: ends the session of the request's cookie, if any. */
-  signOut(req: FastifyRequest): void {
+  async signOut(req: FastifyRequest): Promise<void> {
     const cookie = req.cookies?.[SESSION_COOKIE];
-    if (typeof cookie === 'string') this.sessions.revoke(cookie);
+    if (typeof cookie === 'string') await this.sessions.revoke(cookie);
   }
 }
 

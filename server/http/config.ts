@@ -12,8 +12,10 @@ import path from 'node:path';
 export interface ServerConfig {
   port: number;
   host: string;
-  /** Directory of the SQLite file. */
+  /** Directory of the SQLite file (unused when `database` is set). */
   dataDir: string;
+  /** A postgres:// URL: the library lives in that PostgreSQL database instead; undefined = SQLite in dataDir. */
+  database: string | undefined;
   /** Team token; undefined = open server. */
   token: string | undefined;
   /** Names (or addresses) the server answers to besides its own address (Host header). */
@@ -44,6 +46,7 @@ export const DEFAULTS: ServerConfig = {
   port: 8080,
   host: '127.0.0.1',
   dataDir: './data',
+  database: undefined,
   token: undefined,
   allowedHosts: [],
   trustProxy: [],
@@ -154,10 +157,17 @@ function proxyList(text: string, name: string): string[] {
 
 const LOG_LEVELS = ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'];
 
+/** A postgres:// (or postgresql://) URL; the driver reads the rest (and PGPASSWORD, ~/.pgpass). */
+function databaseUrl(text: string, name: string): string {
+  if (!/^postgres(ql)?:\/\//.test(text)) throw new ConfigError(`${name} must be a postgres:// URL (postgres://user@host:5432/db), not "${text.replace(/:[^:@/]*@/, ':***@')}"`);
+  return text;
+}
+
 export const OPTIONS: readonly OptionSpec[] = [
   { key: 'port', flag: '--port', env: 'SHAFTNET_PORT', help: 'TCP port (0 = any free port)', read: integer(0, 65535) },
   { key: 'host', flag: '--host', env: 'SHAFTNET_HOST', help: 'address to bind; 0.0.0.0 serves the network', read: nonEmpty },
   { key: 'dataDir', flag: '--data', env: 'SHAFTNET_DATA', help: 'directory of the model library database', read: nonEmpty },
+  { key: 'database', flag: '--database', env: 'SHAFTNET_DATABASE', help: 'postgres:// URL: keep the library in PostgreSQL (shared by several servers) instead of --data', read: databaseUrl },
   { key: 'token', flag: '--token', env: 'SHAFTNET_TOKEN', help: 'team token; every API call then needs it (visible in ps: prefer the next two)', read: token },
   { key: 'token', flag: '--token-file', env: 'SHAFTNET_TOKEN_FILE', help: 'file whose first line is the team token', read: tokenFile },
   { key: 'allowedHosts', flag: '--allowed-hosts', env: 'SHAFTNET_ALLOWED_HOSTS', help: 'names the server answers to (a,b), besides its address', read: hostList },

@@ -4,7 +4,7 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import type { ModelStore } from '../store/store.js';
+import type { AsyncModelStore } from '../store/async-store.js';
 
 export interface Demo {
   /** File name without .json. */
@@ -47,13 +47,13 @@ export const SEEDED = 'demosSeeded';
  * Seeds each demo as a model into a new library, so a new team finds something
  * to open. Once per library, decided inside the library: the demos are created
  * and the flag `demosSeeded` set in one transaction that holds the write lock
- * (BEGIN IMMEDIATE), so servers starting together on one new directory seed them
+ * (BEGIN IMMEDIATE in SQLite, an advisory lock in PostgreSQL), so servers starting together on one new directory seed them
  * exactly once between them, and a start interrupted half-way leaves no demo.
  * Never again afterwards: a library whose demos were archived (nothing can be
  * deleted through the API) or one that held models before the flag existed gets
  * none. Returns how many were created by this call.
  */
-export function seedDemos(store: ModelStore, demos: readonly Demo[]): number {
+export function seedDemos(store: Pick<AsyncModelStore, 'seedOnce'>, demos: readonly Demo[]): Promise<number> {
   return store.seedOnce(
     SEEDED,
     demos.map((demo) => ({ model: demo.model, name: demo.name, author: 'Shaftnet', message: 'Demo model, seeded on first start' })),

@@ -7,6 +7,7 @@
  */
 import type { FastifyError } from 'fastify';
 import { ERROR_CODES, ModelError, type ErrorCode, type ModelIssue } from '../../shared-types/errors.js';
+import { StoreUnavailableError } from '../store/store-errors.js';
 import { StoreFullError } from '../store/store.js';
 import { validationIssues, type ValidationErrorLike } from './validation.js';
 
@@ -81,6 +82,13 @@ const PARTS: Record<string, string> = { body: 'body', querystring: 'query parame
 export function toErrorReply(err: unknown): ErrorReply & { internal: boolean } {
   if (err instanceof HttpError) return { ...errorReply(err.code, err.message, err.issues, err.extra), internal: false };
   if (err instanceof ModelError) return { ...modelErrorReply(err), internal: false };
+  if (err instanceof StoreUnavailableError) {
+    // No host or port in the answer; the server's log has them.
+    return {
+      ...errorReply('SN_STORE_UNAVAILABLE', "nothing of this request was saved: the library's database server cannot be reached; retry shortly"),
+      internal: false,
+    };
+  }
   if (err instanceof StoreFullError) {
     // No path in the answer; the server's log has the code and status of every refusal.
     return { ...errorReply('SN_DISK_FULL', "nothing was saved: the library's disk is full; the same save succeeds once space is freed"), internal: false };

@@ -4,7 +4,8 @@
  * A session is a random id (256 bits) made at each sign-in and sent to the
  * browser in the cookie; the server keeps it, with when it was made and last
  * used, behind the `SessionStore` interface (in memory here, so a restart signs
- * everyone out; a database can hold it later). A session ends when it has not
+ * everyone out; with PostgreSQL in the database, server/store/pg-sessions.ts, whose
+ * methods answer Promises: callers await every call). A session ends when it has not
  * been used for `idleMs`, when `absoluteMs` have passed since the sign-in, or
  * when it is signed out: a copied cookie then stops working.
  *
@@ -20,15 +21,15 @@ export interface SessionEntry {
 /** Where sessions live. Times are milliseconds since the epoch, passed in (testable, no hidden clock). */
 export interface SessionStore {
   /** Makes a new session (made with the personal key `keyId`, or the team token) and answers its id (the cookie value). */
-  create(now: number, keyId?: string | null): string;
+  create(now: number, keyId?: string | null): string | Promise<string>;
   /** True when the id is a live session; a use refreshes its idle timer. */
-  check(id: string, now: number): boolean;
+  check(id: string, now: number): boolean | Promise<boolean>;
   /** The live session of this id, or undefined; a use (`touch`, default true) refreshes its idle timer. */
-  lookup(id: string, now: number, touch?: boolean): SessionEntry | undefined;
+  lookup(id: string, now: number, touch?: boolean): SessionEntry | undefined | Promise<SessionEntry | undefined>;
   /** Ends the session (sign-out). Unknown ids are ignored. */
-  revoke(id: string): void;
+  revoke(id: string): void | Promise<void>;
   /** Live sessions (for tests and the log). */
-  size(now: number): number;
+  size(now: number): number | Promise<number>;
 }
 
 export interface SessionLimits {

@@ -9,7 +9,20 @@
  * ModelNotFoundError, StoreFullError (SQLite), StoreUnavailableError (a database
  * server lost while running, store-errors.ts).
  */
-import type { ListFilter, ModelStore, ModelSummary, RevisionInfo, SaveInput, SaveResult, StoredRevision } from './store.js';
+import type {
+  KeyInfo,
+  KeyRecord,
+  ListFilter,
+  ModelStore,
+  ModelSummary,
+  NewKey,
+  ReviewInput,
+  ReviewResult,
+  RevisionInfo,
+  SaveInput,
+  SaveResult,
+  StoredRevision,
+} from './store.js';
 
 export interface AsyncModelStore {
   /** Which store this is, for logs and health: 'sqlite' or 'postgres'. */
@@ -22,6 +35,8 @@ export interface AsyncModelStore {
   list(filter: ListFilter): Promise<ModelSummary[]>;
   /** The latest revision, or the given one; undefined if either does not exist. */
   get(id: string, revision?: number): Promise<StoredRevision | undefined>;
+  /** The number of a model's latest revision, without reading it; undefined for an unknown id. */
+  latestRevision(id: string): Promise<number | undefined>;
   /** Every revision of a model, newest first; undefined for an unknown id. */
   revisions(id: string): Promise<RevisionInfo[] | undefined>;
   /** Archives or restores; undefined for an unknown id. */
@@ -33,6 +48,18 @@ export interface AsyncModelStore {
   setMeta(key: string, value: string): Promise<void>;
   /** ModelStore.seedOnce: all or none, once per library, even with several processes starting together. */
   seedOnce(marker: string, inputs: readonly SaveInput[]): Promise<number>;
+  /** ModelStore.review: one transaction, the rules checked inside it. */
+  review(input: ReviewInput): Promise<ReviewResult>;
+  /** KeyStore.addKey: rejects with KeyNameTakenError when a key not revoked has the name. */
+  addKey(key: NewKey): Promise<KeyInfo>;
+  /** KeyStore.keys: every key, revoked ones too, oldest first. */
+  keys(): Promise<KeyInfo[]>;
+  /** KeyStore.keyRecord: one key with its hash; undefined for an unknown id. */
+  keyRecord(id: string): Promise<KeyRecord | undefined>;
+  /** KeyStore.revokeKey: by id, or else by the name of a key not revoked. */
+  revokeKey(idOrName: string, at: string): Promise<KeyInfo | undefined>;
+  /** KeyStore.hasKeys: any personal key, revoked or not. */
+  hasKeys(): Promise<boolean>;
   /**
    * Whether the library answers now (for /api/health): true or false, never a
    * rejection, and bounded in time.
@@ -40,6 +67,11 @@ export interface AsyncModelStore {
   ready(): Promise<boolean>;
   /** Closes the store (the pool's connections); later calls reject. */
   close(): Promise<void>;
+}
+
+/** True for a store that is already asynchronous (it says which kind it is). */
+export function isAsyncStore(store: ModelStore | AsyncModelStore): store is AsyncModelStore {
+  return 'kind' in store && 'ready' in store;
 }
 
 /**
@@ -54,12 +86,19 @@ export function asyncFromSync(store: ModelStore): AsyncModelStore {
     save: async (id, baseRevision, input) => store.save(id, baseRevision, input),
     list: async (filter) => store.list(filter),
     get: async (id, revision) => store.get(id, revision),
+    latestRevision: async (id) => store.latestRevision(id),
     revisions: async (id) => store.revisions(id),
     setArchived: async (id, archived) => store.setArchived(id, archived),
     count: async () => store.count(),
     getMeta: async (key) => store.getMeta(key),
     setMeta: async (key, value) => store.setMeta(key, value),
     seedOnce: async (marker, inputs) => store.seedOnce(marker, inputs),
+    review: async (input) => store.review(input),
+    addKey: async (key) => store.addKey(key),
+    keys: async () => store.keys(),
+    keyRecord: async (id) => store.keyRecord(id),
+    revokeKey: async (idOrName, at) => store.revokeKey(idOrName, at),
+    hasKeys: async () => store.hasKeys(),
     ready: async () => {
       try {
         store.count();

@@ -53,6 +53,44 @@ CREATE TABLE meta (
   value  text NOT NULL
 );`,
   },
+  {
+    version: 2,
+    name: 'review changes, personal keys',
+    sql: `
+CREATE TABLE reviews (
+  model_id  text COLLATE "C" NOT NULL,
+  revision  integer NOT NULL,
+  seq       integer NOT NULL CHECK (seq >= 1),
+  state     text NOT NULL CHECK (state IN ('checked', 'approved', 'returned')),
+  actor     text NOT NULL,
+  at        text COLLATE "C" NOT NULL,
+  note      text,
+  PRIMARY KEY (model_id, revision, seq),
+  FOREIGN KEY (model_id, revision) REFERENCES revisions (model_id, revision)
+);
+CREATE TABLE keys (
+  id        text COLLATE "C" PRIMARY KEY,
+  name      text NOT NULL,
+  role      text NOT NULL CHECK (role IN ('editor', 'checker', 'approver')),
+  created   text COLLATE "C" NOT NULL,
+  revoked   text,
+  salt      text NOT NULL,
+  hash      text NOT NULL,
+  params    text NOT NULL
+);`,
+  },
+  {
+    version: 3,
+    name: 'sign-in sessions',
+    sql: `
+CREATE TABLE sessions (
+  digest     text COLLATE "C" PRIMARY KEY,
+  key_id     text,
+  created    bigint NOT NULL,
+  last_used  bigint NOT NULL
+);
+CREATE INDEX sessions_created ON sessions (created);`,
+  },
 ];
 
 /** Key of the advisory lock held while migrating ("ShNt" and 1). */

@@ -21,11 +21,25 @@
  */
 import pg from 'pg';
 import { migrate, type MigrationResult } from './pg-migrations.js';
+import { describeTarget } from './pg-target.js';
+
+export { describeTarget };
 import { StoreConnectError, StoreUnavailableError } from './store-errors.js';
 import { newModelId } from './sqlite-store.js';
+import type { KeyRole, ReviewEntry, ReviewState } from '../../shared-types/library.js';
+import { currentState, reviewRefusal, samePerson } from './review-rules.js';
 import {
+  KeyNameTakenError,
   ModelNotFoundError,
+  ReviewRefusedError,
+  ReviewStaleError,
+  RevisionNotFoundError,
   StaleRevisionError,
+  type KeyInfo,
+  type KeyRecord,
+  type NewKey,
+  type ReviewInput,
+  type ReviewResult,
   type ListFilter,
   type ModelSummary,
   type RevisionInfo,
@@ -43,6 +57,8 @@ const READY_TIMEOUT_MS = 2_000;
 const DEFAULT_POOL_SIZE = 10;
 /** Key of the advisory lock held while seeding ("ShNt" and 2). */
 const SEED_LOCK_KEY = 0x53684e74_02;
+/** Key of the advisory lock held while adding or revoking a personal key ("ShNt" and 3): names stay unique among live keys. */
+const KEYS_LOCK_KEY = 0x53684e74_03;
 
 /** SQLSTATE of a unique violation. */
 const UNIQUE_VIOLATION = '23505';
@@ -63,22 +79,6 @@ export function isConnectionLoss(err: unknown): boolean {
   return /Connection terminated|connection timeout|timeout exceeded when trying to connect|Client has encountered a connection error|Client was closed|not queryable/i.test(msg);
 }
 
-/** "host:port" (or "socket directory, port N") of a connection string, without user or password. */
-export function describeTarget(connectionString: string): string {
-  let url: URL;
-  try {
-    // A URL without a host (postgres://user@/db?host=/run/postgresql) is valid for the driver, not for URL.
-    url = new URL(connectionString.replace(/^(postgres(?:ql)?:\/\/(?:[^/@]*@)?)\//, '$1localhost/'));
-  } catch {
-    return 'an address that is not a postgres:// URL';
-  }
-  const hostParam = url.searchParams.get('host');
-  const port = url.port || url.searchParams.get('port') || '5432';
-  const db = decodeURIComponent(url.pathname.replace(/^\//, '')) || '(default database)';
-  const host = hostParam ?? (url.hostname || 'localhost');
-  return host.startsWith('/') ? `socket directory ${host}, port ${port}, database ${db}` : `${host}:${port}, database ${db}`;
-}
-
 interface ModelRow {
   id: string;
   name: string;
@@ -86,7 +86,23 @@ interface ModelRow {
   author: string;
   revision: number;
   archived: boolean;
+  review_state: ReviewState;
 }
+
+interface KeyRow {
+  id: string;
+  name: string;
+  role: KeyRole;
+  created: string;
+  revoked: string | null;
+  salt: string;
+  hash: string;
+  params: string;
+}
+
+/** The review state of a revision: its last review change, else prepared (as in the SQLite store). */
+const STATE_OF = (model: string, revision: string) =>
+  `COALESCE((SELECT state FROM reviews r WHERE r.model_id = ${model} AND r.revision = ${revision} ORDER BY r.seq DESC LIMIT 1), 'prepared')`;
 
 export interface PgStoreOptions {
   /** Connections in this process's pool (default 10). */
@@ -157,10 +173,19 @@ const SQL = {
   latestRevision: 'SELECT revision FROM models WHERE id = $1',
   getRevision:
     'SELECT r.revision, r.model, r.author, r.message, r.created, m.archived FROM models m JOIN revisions r ON r.model_id = m.id AND r.revision = COALESCE($2::integer, m.revision) WHERE m.id = $1',
-  revisions: 'SELECT revision, author, message, created FROM revisions WHERE model_id = $1 ORDER BY revision DESC',
-  list: 'SELECT id, name, updated, author, revision, archived FROM models WHERE archived = $1 ORDER BY updated DESC, id',
-  search:
-    "SELECT id, name, updated, author, revision, archived FROM models WHERE archived = $1 AND name ILIKE $2 ESCAPE '\\' ORDER BY updated DESC, id",
+  revisions: `SELECT revision, author, message, created, ${STATE_OF('v.model_id', 'v.revision')} AS review_state FROM revisions v WHERE model_id = $1 ORDER BY revision DESC`,
+  list: `SELECT id, name, updated, author, revision, archived, ${STATE_OF('m.id', 'm.revision')} AS review_state FROM models m WHERE archived = $1 ORDER BY updated DESC, id`,
+  search: `SELECT id, name, updated, author, revision, archived, ${STATE_OF('m.id', 'm.revision')} AS review_state FROM models m WHERE archived = $1 AND name ILIKE $2 ESCAPE '\\' ORDER BY updated DESC, id`,
+  revisionRow: 'SELECT revision, author, created FROM revisions WHERE model_id = $1 AND revision = $2',
+  reviews: 'SELECT state, actor, at, note FROM reviews WHERE model_id = $1 AND revision = $2 ORDER BY seq',
+  insertReview: 'INSERT INTO reviews (model_id, revision, seq, state, actor, at, note) VALUES ($1, $2, $3, $4, $5, $6, $7)',
+  insertKey: 'INSERT INTO keys (id, name, role, created, revoked, salt, hash, params) VALUES ($1, $2, $3, $4, NULL, $5, $6, $7)',
+  keys: 'SELECT id, name, role, created, revoked, salt, hash, params FROM keys ORDER BY created, id',
+  keyById: 'SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE id = $1',
+  activeKeys: 'SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE revoked IS NULL',
+  revokeKey: 'UPDATE keys SET revoked = $1 WHERE id = $2 AND revoked IS NULL',
+  anyKey: 'SELECT 1 AS one FROM keys LIMIT 1',
+  keysLock: 'SELECT pg_advisory_xact_lock($1)',
   setArchived: 'UPDATE models SET archived = $1 WHERE id = $2',
   count: 'SELECT count(*)::integer AS n FROM models',
   getMeta: 'SELECT value FROM meta WHERE key = $1',
@@ -302,8 +327,7 @@ export class PgStore implements AsyncModelStore {
       q === ''
         ? await this.run<ModelRow>('list', [filter.archived])
         : await this.run<ModelRow>('search', [filter.archived, '%' + q.replace(/[\\%_]/g, (ch) => '\\' + ch) + '%']);
-    // No review changes are kept here yet (phase 2 of the PostgreSQL store): every revision is as saved, prepared.
-    return rows.rows.map((r) => ({ id: r.id, name: r.name, author: r.author, updated: r.updated, revision: r.revision, archived: r.archived, reviewState: 'prepared' as const }));
+    return rows.rows.map((r) => ({ id: r.id, name: r.name, author: r.author, updated: r.updated, revision: r.revision, archived: r.archived, reviewState: r.review_state }));
   }
 
   async get(id: string, revision?: number): Promise<StoredRevision | undefined> {
@@ -313,6 +337,7 @@ export class PgStore implements AsyncModelStore {
     ]);
     const r = res.rows[0];
     if (r === undefined) return undefined;
+    const history = await historyOf(this.pool, id, r, (e) => this.fault(e));
     return {
       id,
       revision: r.revision,
@@ -321,15 +346,78 @@ export class PgStore implements AsyncModelStore {
       message: r.message,
       created: r.created,
       archived: r.archived,
-      review: { state: 'prepared', history: [{ state: 'prepared', by: r.author, at: r.created, note: null }] },
+      review: { state: currentState(history), history },
     };
   }
 
   async revisions(id: string): Promise<RevisionInfo[] | undefined> {
     // Every model has its revision 1, so no rows means no model.
-    const res = await this.run<RevisionInfo>('revisions', [id]);
+    const res = await this.run<RevisionInfo & { review_state: ReviewState }>('revisions', [id]);
     if (res.rows.length === 0) return undefined;
-    return res.rows.map((r) => ({ revision: r.revision, author: r.author, message: r.message, created: r.created, reviewState: 'prepared' as const }));
+    return res.rows.map((r) => ({ revision: r.revision, author: r.author, message: r.message, created: r.created, reviewState: r.review_state }));
+  }
+
+  async latestRevision(id: string): Promise<number | undefined> {
+    return (await this.run<{ revision: number }>('latestRevision', [id])).rows[0]?.revision;
+  }
+
+  /**
+   * One transaction: the model's row is locked (FOR UPDATE), so a save or another
+   * review change on this model, from any process, waits; the rules are checked
+   * against the history read under that lock, then the change is inserted.
+   */
+  async review(input: ReviewInput): Promise<ReviewResult> {
+    return this.transaction(async (c) => {
+      const row = await c.query<{ revision: number }>(named('modelForUpdate', [input.id]));
+      if (row.rows.length === 0) throw new ModelNotFoundError(input.id);
+      const rev = (await c.query<{ revision: number; author: string; created: string }>(named('revisionRow', [input.id, input.revision]))).rows[0];
+      if (rev === undefined) throw new RevisionNotFoundError(input.id, input.revision);
+      const current = row.rows[0].revision;
+      if (current !== input.revision) throw new ReviewStaleError(input.id, input.revision, current);
+      const history = await historyOf(c, input.id, rev);
+      const refusal = reviewRefusal(history, input.state, input.by);
+      if (refusal) throw new ReviewRefusedError(refusal.kind, refusal.message);
+      const note = input.note === null || input.note.trim() === '' ? null : input.note;
+      const at = new Date().toISOString();
+      await c.query(named('insertReview', [input.id, input.revision, history.length, input.state, input.by, at, note]));
+      history.push({ state: input.state, by: input.by, at, note });
+      return { id: input.id, revision: input.revision, state: input.state, history };
+    });
+  }
+
+  async addKey(key: NewKey): Promise<KeyInfo> {
+    return this.transaction(async (c) => {
+      await c.query(named('keysLock', [KEYS_LOCK_KEY]));
+      const live = await c.query<KeyRow>(named('activeKeys', []));
+      if (live.rows.some((k) => samePerson(k.name, key.name))) throw new KeyNameTakenError(key.name);
+      await c.query(named('insertKey', [key.id, key.name, key.role, key.created, key.salt, key.hash, key.params]));
+      return { id: key.id, name: key.name, role: key.role, created: key.created, revoked: null };
+    });
+  }
+
+  async keys(): Promise<KeyInfo[]> {
+    return (await this.run<KeyRow>('keys', [])).rows.map(keyInfo);
+  }
+
+  async keyRecord(id: string): Promise<KeyRecord | undefined> {
+    const row = (await this.run<KeyRow>('keyById', [id])).rows[0];
+    return row && { ...keyInfo(row), salt: row.salt, hash: row.hash, params: row.params };
+  }
+
+  async revokeKey(idOrName: string, at: string): Promise<KeyInfo | undefined> {
+    return this.transaction(async (c) => {
+      await c.query(named('keysLock', [KEYS_LOCK_KEY]));
+      const row =
+        (await c.query<KeyRow>(named('keyById', [idOrName]))).rows[0] ??
+        (await c.query<KeyRow>(named('activeKeys', []))).rows.find((k) => samePerson(k.name, idOrName));
+      if (!row) return undefined;
+      await c.query(named('revokeKey', [at, row.id]));
+      return keyInfo((await c.query<KeyRow>(named('keyById', [row.id]))).rows[0]);
+    });
+  }
+
+  async hasKeys(): Promise<boolean> {
+    return (await this.run('anyKey', [])).rows.length > 0;
   }
 
   async setArchived(id: string, archived: boolean): Promise<{ id: string; archived: boolean } | undefined> {
@@ -365,6 +453,20 @@ export class PgStore implements AsyncModelStore {
   }
 
   /**
+   * One statement of another part of the server kept in this database (the
+   * sign-in sessions, pg-sessions.ts), by a name of its own (prepared per
+   * connection); a lost server rejects with StoreUnavailableError.
+   */
+  async query<R extends pg.QueryResultRow>(name: string, text: string, values: unknown[]): Promise<pg.QueryResult<R>> {
+    if (this.closed) throw new Error('the library store is closed');
+    try {
+      return await this.pool.query<R>({ name: `sn_x_${name}`, text, values });
+    } catch (err) {
+      throw this.fault(err);
+    }
+  }
+
+  /**
    * Runs `work` in one transaction on one of the pool's connections (for the
    * migrate command's bulk copy); a lost server rejects with StoreUnavailableError.
    */
@@ -377,6 +479,28 @@ export class PgStore implements AsyncModelStore {
     this.closed = true;
     await this.pool.end();
   }
+}
+
+function keyInfo(row: KeyRow): KeyInfo {
+  return { id: row.id, name: row.name, role: row.role, created: row.created, revoked: row.revoked };
+}
+
+/** A revision's review history, oldest first: the save (prepared), then every change. */
+async function historyOf(
+  q: Queryable | pg.Pool,
+  id: string,
+  rev: { revision: number; author: string; created: string },
+  fault: (err: unknown) => unknown = (err) => err,
+): Promise<ReviewEntry[]> {
+  const history: ReviewEntry[] = [{ state: 'prepared', by: rev.author, at: rev.created, note: null }];
+  let res: pg.QueryResult<{ state: ReviewState; actor: string; at: string; note: string | null }>;
+  try {
+    res = await q.query(named('reviews', [id, rev.revision]));
+  } catch (err) {
+    throw fault(err);
+  }
+  for (const r of res.rows) history.push({ state: r.state as ReviewEntry['state'], by: r.actor, at: r.at, note: r.note });
+  return history;
 }
 
 /** Inserts a new model at revision 1 (inside the caller's transaction). */

@@ -13,7 +13,16 @@ import pg from 'pg';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { openLibrary, type AsyncModelStore } from '../../server/store/async-store.js';
 import { openPgStore } from '../../server/store/pg-store.js';
-import { ModelNotFoundError, StaleRevisionError, type SaveInput } from '../../server/store/store.js';
+import { makeKey, parseKey, secretMatches } from '../../server/store/keys.js';
+import {
+  KeyNameTakenError,
+  ModelNotFoundError,
+  ReviewRefusedError,
+  ReviewStaleError,
+  RevisionNotFoundError,
+  StaleRevisionError,
+  type SaveInput,
+} from '../../server/store/store.js';
 import { pgSuiteGate, startPgCluster, type PgCluster } from '../helpers/pg-cluster.js';
 
 interface Backend {
@@ -69,7 +78,7 @@ function postgresBackend(): Backend {
       const client = new pg.Client({ connectionString: url });
       await client.connect();
       try {
-        await client.query('TRUNCATE revisions, models, meta');
+        await client.query('TRUNCATE reviews, keys, revisions, models, meta');
       } finally {
         await client.end();
       }
@@ -273,6 +282,91 @@ for (const backend of [sqliteBackend(), postgresBackend()]) {
       const { id } = await store.create({ model: m, name: 'large', author: 'ann', message: 'big' });
       const got = await store.get(id);
       expect(JSON.stringify(got?.model)).toBe(text);
+    });
+
+    it('review: records each change with who, when and the note, in the revision, its history and the lists', async () => {
+      const store = await fresh();
+      const { id } = await store.create(input('A'));
+      const r = await store.review({ id, revision: 1, state: 'checked', by: 'Bob', note: 'ok' });
+      expect(r.history.map((h) => [h.state, h.by, h.note])).toEqual([
+        ['prepared', 'ann', null],
+        ['checked', 'Bob', 'ok'],
+      ]);
+      await store.review({ id, revision: 1, state: 'approved', by: 'Dan', note: '  ' });
+      const got = (await store.get(id, 1))!;
+      expect(got.review.state).toBe('approved');
+      expect(got.review.history.map((h) => h.state)).toEqual(['prepared', 'checked', 'approved']);
+      expect(got.review.history[2]).toMatchObject({ state: 'approved', by: 'Dan', note: null });
+      expect((await store.list({ archived: false }))[0].reviewState).toBe('approved');
+      expect((await store.revisions(id))![0].reviewState).toBe('approved');
+      // A new save starts prepared again; the old revision keeps its state.
+      await store.save(id, 1, input('A2'));
+      expect((await store.revisions(id))!.map((v) => [v.revision, v.reviewState])).toEqual([
+        [2, 'prepared'],
+        [1, 'approved'],
+      ]);
+      expect((await store.list({ archived: false }))[0].reviewState).toBe('prepared');
+    });
+
+    it('review: refuses an unknown model or revision, a stale revision, a state that cannot follow, four eyes; nothing is recorded', async () => {
+      const store = await fresh();
+      const { id } = await store.create(input('A'));
+      await expect(store.review({ id: 'nope', revision: 1, state: 'checked', by: 'Bob', note: null })).rejects.toBeInstanceOf(ModelNotFoundError);
+      await expect(store.review({ id, revision: 2, state: 'checked', by: 'Bob', note: null })).rejects.toBeInstanceOf(RevisionNotFoundError);
+      await store.save(id, 1, input('A2'));
+      const stale = await store.review({ id, revision: 1, state: 'checked', by: 'Bob', note: null }).catch((e: unknown) => e);
+      expect(stale).toBeInstanceOf(ReviewStaleError);
+      expect((stale as ReviewStaleError).currentRevision).toBe(2);
+      await expect(store.review({ id, revision: 2, state: 'approved', by: 'Dan', note: null })).rejects.toBeInstanceOf(ReviewRefusedError);
+      await expect(store.review({ id, revision: 2, state: 'checked', by: ' ANN ', note: null })).rejects.toThrow(/authored/);
+      await store.review({ id, revision: 2, state: 'checked', by: 'Bob', note: null });
+      await expect(store.review({ id, revision: 2, state: 'approved', by: 'bob', note: null })).rejects.toThrow(/checked this revision/);
+      expect((await store.get(id, 1))!.review.history).toHaveLength(1);
+      expect((await store.get(id, 2))!.review.history.map((h) => h.state)).toEqual(['prepared', 'checked']);
+    });
+
+    it('review: concurrent changes of one revision from two stores: exactly one checks it, the other is refused', async () => {
+      const a = await fresh();
+      const b = await another();
+      const { id } = await a.create(input('A'));
+      const results = await settle([a, b, a, b].map((s, k) => s.review({ id, revision: 1, state: 'checked', by: `checker ${k}`, note: null })));
+      expect(results.filter((r) => !(r instanceof Error))).toHaveLength(1);
+      expect(results.filter((r) => r instanceof ReviewRefusedError)).toHaveLength(3);
+      expect((await b.get(id))!.review.history.map((h) => h.state)).toEqual(['prepared', 'checked']);
+    });
+
+    it('keys: stores the hash only; lists, finds and revokes by id or name; a live name is unique', async () => {
+      const store = await fresh();
+      const { key, record } = await makeKey('Ann Lee', 'checker');
+      expect(await store.hasKeys()).toBe(false);
+      expect(await store.addKey(record)).toEqual({ id: record.id, name: 'Ann Lee', role: 'checker', created: record.created, revoked: null });
+      expect(await store.hasKeys()).toBe(true);
+      const parsed = parseKey(key)!;
+      const stored = (await (await another()).keyRecord(record.id))!; // seen by another store on the library
+      expect(stored).toMatchObject({ id: record.id, salt: record.salt, hash: record.hash, params: record.params });
+      expect(JSON.stringify(stored)).not.toContain(parsed.secret);
+      expect(await secretMatches(parsed.secret, stored)).toBe(true);
+      const other = await makeKey('ann lee', 'editor');
+      await expect(store.addKey(other.record)).rejects.toBeInstanceOf(KeyNameTakenError);
+      expect(await store.revokeKey('ANN LEE', '2026-12-02T08:00:00.000Z')).toMatchObject({ id: record.id, revoked: '2026-12-02T08:00:00.000Z' });
+      expect(await store.revokeKey('Ann Lee', '2026-12-02T09:00:00.000Z')).toBeUndefined(); // by name: live keys only
+      expect((await store.revokeKey(record.id, '2026-12-02T09:00:00.000Z'))?.revoked).toBe('2026-12-02T08:00:00.000Z'); // keeps its time
+      await store.addKey(other.record); // the name is free again
+      expect((await store.keys()).map((k) => [k.name, k.revoked === null])).toEqual([
+        ['Ann Lee', false],
+        ['ann lee', true],
+      ]);
+      expect(await store.keyRecord('nope')).toBeUndefined();
+    });
+
+    it('keys: two stores adding one name at once: exactly one key is made', async () => {
+      const a = await fresh();
+      const b = await another();
+      const made = await Promise.all([0, 1, 2, 3].map((k) => makeKey(k % 2 === 0 ? 'Cy Doe' : 'CY DOE', 'editor')));
+      const results = await settle(made.map((m, k) => (k % 2 === 0 ? a : b).addKey(m.record)));
+      expect(results.filter((r) => !(r instanceof Error))).toHaveLength(1);
+      expect(results.filter((r) => r instanceof KeyNameTakenError)).toHaveLength(3);
+      expect(await a.keys()).toHaveLength(1);
     });
   });
 }

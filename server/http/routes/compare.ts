@@ -13,7 +13,7 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import Type from 'typebox';
 import { compareRevisions, type ComparableSolution } from '../../../shared-types/compare.js';
-import type { ModelStore } from '../../store/store.js';
+import type { AsyncModelStore } from '../../store/async-store.js';
 import { ModelError } from '../../../shared-types/errors.js';
 import { HttpError, prefixIssues } from '../errors.js';
 import { EmbeddedModel, errorResponses, IdParams, RevisionNumber } from '../schemas.js';
@@ -21,7 +21,7 @@ import type { FastifyInstance } from 'fastify';
 import { isUnsolvable, limitSolves, routeSolver, type SolvePath } from './sheet.js';
 
 export interface CompareOptions extends SolvePath {
-  readonly store: ModelStore;
+  readonly store: AsyncModelStore;
 }
 
 const Unsolved = Type.Object({ side: Type.Union([Type.Literal('from'), Type.Literal('to')]), code: Type.String(), message: Type.String() });
@@ -91,7 +91,7 @@ const compareRoutes: FastifyPluginAsyncTypebox<CompareOptions> = async (app, opt
     async (req) => {
       const { id } = req.params;
       const { from, to } = req.query;
-      if (!opts.store.get(id)) {
+      if ((await opts.store.latestRevision(id)) === undefined) {
         const message = `no model "${id}"`;
         throw new HttpError('SN_NOT_FOUND', message, [{ code: 'SN_NOT_FOUND', pointer: '/id', message }]);
       }
@@ -99,14 +99,15 @@ const compareRoutes: FastifyPluginAsyncTypebox<CompareOptions> = async (app, opt
         ['from', from],
         ['to', to],
       ] as const;
-      const found = sides.map(([name, rev]) => {
-        const r = opts.store.get(id, rev);
+      const found = [];
+      for (const [name, rev] of sides) {
+        const r = await opts.store.get(id, rev);
         if (!r) {
           const message = `model "${id}" has no revision ${rev}`;
           throw new HttpError('SN_NOT_FOUND', message, [{ code: 'SN_NOT_FOUND', pointer: `/${name}`, message }]);
         }
-        return r;
-      });
+        found.push(r);
+      }
       return compare(found[0].model, found[1].model);
     },
   );

@@ -10,14 +10,14 @@
  */
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import type { ServerResponse } from 'node:http';
-import type { ModelStore } from '../../store/store.js';
+import type { AsyncModelStore } from '../../store/async-store.js';
 import type { TeamAuth } from '../auth.js';
 import type { Broadcaster, Notice } from '../broadcaster.js';
 import { HttpError } from '../errors.js';
 import { errorResponses, IdParams } from '../schemas.js';
 
 export interface EventsOptions {
-  readonly store: ModelStore;
+  readonly store: AsyncModelStore;
   readonly notices: Broadcaster;
   readonly auth: TeamAuth | undefined;
   /** Between keep-alive comments, ms (default 25,000). */
@@ -53,7 +53,7 @@ const eventsRoutes: FastifyPluginAsyncTypebox<EventsOptions> = async (app, opts)
     },
     async (req, reply) => {
       const { id } = req.params;
-      if (store.latestRevision(id) === undefined) {
+      if ((await store.latestRevision(id)) === undefined) {
         const message = `no model "${id}"`;
         throw new HttpError('SN_NOT_FOUND', message, [{ code: 'SN_NOT_FOUND', pointer: '/id', message }]);
       }

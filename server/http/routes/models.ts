@@ -16,7 +16,8 @@ import { Model, type Model as ModelT } from '../../../shared-types/model.js';
 import { ArchiveState, ModelList, RevisionList, Saved, StoredModel } from '../../../shared-types/library.js';
 import { slug } from '../../../shared-types/present.js';
 import { normaliseModel } from '../../engine/normalise.js';
-import type { ModelStore, SaveResult, StoredRevision } from '../../store/store.js';
+import type { AsyncModelStore } from '../../store/async-store.js';
+import type { SaveResult, StoredRevision } from '../../store/store.js';
 import { ModelNotFoundError, StaleRevisionError } from '../../store/store.js';
 import { identityOf } from '../auth.js';
 import type { Broadcaster } from '../broadcaster.js';
@@ -26,7 +27,7 @@ import { checkSize, type SizeLimits } from '../solve-core.js';
 import type { SolverPool } from '../solver-pool.js';
 
 export interface ModelsOptions {
-  readonly store: ModelStore;
+  readonly store: AsyncModelStore;
   readonly pool: SolverPool;
   readonly limits: SizeLimits;
   /** stations above which validation runs in a worker */
@@ -82,10 +83,9 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
   }
 
   /** Tells the model's live notice about a save. */
-  function told(saved: SaveResult, author: string): SaveResult {
+  async function told(saved: SaveResult, author: string): Promise<SaveResult> {
     if (opts.notices === undefined) return saved;
-    const latest = store.revisions(saved.id)?.[0]; // the save just made (the store is synchronous: nothing came between)
-    const at = latest?.revision === saved.revision ? latest.created : new Date().toISOString();
+    const at = (await store.revisions(saved.id))?.find((r) => r.revision === saved.revision)?.created ?? new Date().toISOString(); // the save just made
     opts.notices.publish(saved.id, { event: 'revision', data: { id: saved.id, revision: saved.revision, author, at } });
     return saved;
   }
@@ -104,8 +104,8 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
       const { model, message } = req.body;
       const author = authorOf(req, req.body.author);
       await validateForSave(model, '/model');
-      const saved = store.create({ model, name: nameOf(model), author, message: message ?? '' });
-      return reply.code(201).send(told(saved, author));
+      const saved = await store.create({ model, name: nameOf(model), author, message: message ?? '' });
+      return reply.code(201).send(await told(saved, author));
     },
   );
 
@@ -119,7 +119,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         response: { 200: ModelList, ...errorResponses(400, 401) },
       },
     },
-    async (req) => ({ models: store.list({ q: req.query.q, archived: req.query.archived ?? false }) }),
+    async (req) => ({ models: await store.list({ q: req.query.q, archived: req.query.archived ?? false }) }),
   );
 
   app.get(
@@ -133,7 +133,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
       },
     },
     async (req) => {
-      const found = store.get(req.params.id);
+      const found = await store.get(req.params.id);
       if (!found) throw notFound(req.params.id);
       return found as StoredRevision & { model: ModelT };
     },
@@ -155,10 +155,10 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
       const { id } = req.params;
       const { model, baseRevision, message } = req.body;
       const author = authorOf(req, req.body.author);
-      if (store.latestRevision(id) === undefined) throw notFound(id);
+      if ((await store.latestRevision(id)) === undefined) throw notFound(id);
       await validateForSave(model, '/model');
       try {
-        return told(store.save(id, baseRevision, { model, name: nameOf(model), author, message: message ?? '' }), author);
+        return await told(await store.save(id, baseRevision, { model, name: nameOf(model), author, message: message ?? '' }), author);
       } catch (err) {
         if (err instanceof StaleRevisionError) {
           const text = `model "${id}" was saved since revision ${baseRevision}: the current revision is ${err.currentRevision}; reload it, merge your changes and save on top of it`;
@@ -186,7 +186,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
       },
     },
     async (req) => {
-      const revisions = store.revisions(req.params.id);
+      const revisions = await store.revisions(req.params.id);
       if (!revisions) throw notFound(req.params.id);
       return { revisions };
     },
@@ -204,8 +204,8 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
     },
     async (req) => {
       const { id, rev } = req.params;
-      if (store.latestRevision(id) === undefined) throw notFound(id);
-      const found = store.get(id, rev);
+      if ((await store.latestRevision(id)) === undefined) throw notFound(id);
+      const found = await store.get(id, rev);
       if (!found) throw notFound(id, rev);
       return found as StoredRevision & { model: ModelT };
     },
@@ -226,7 +226,7 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
         },
       },
       async (req) => {
-        const result = store.setArchived(req.params.id, archived);
+        const result = await store.setArchived(req.params.id, archived);
         if (!result) throw notFound(req.params.id);
         return result;
       },
@@ -246,8 +246,8 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
     },
     async (req, reply) => {
       const { id } = req.params;
-      if (!store.get(id)) throw notFound(id);
-      const found = store.get(id, req.query.revision);
+      if ((await store.latestRevision(id)) === undefined) throw notFound(id);
+      const found = await store.get(id, req.query.revision);
       if (!found) throw notFound(id, req.query.revision);
       const name = typeof (found.model as { name?: unknown }).name === 'string' ? (found.model as { name: string }).name : id;
       return reply
@@ -273,13 +273,13 @@ const modelsRoutes: FastifyPluginAsyncTypebox<ModelsOptions> = async (app, opts)
       const model = req.body;
       const author = authorOf(req, req.query.author);
       await validateForSave(model, '');
-      const saved = store.create({
+      const saved = await store.create({
         model,
         name: nameOf(model),
         author,
         message: req.query.message ?? 'Imported from a file',
       });
-      return reply.code(201).send(told(saved, author));
+      return reply.code(201).send(await told(saved, author));
     },
   );
 };

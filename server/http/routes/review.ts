@@ -17,15 +17,15 @@ import {
   ReviewRefusedError,
   ReviewStaleError,
   RevisionNotFoundError,
-  type ModelStore,
 } from '../../store/store.js';
+import type { AsyncModelStore } from '../../store/async-store.js';
 import { requireRole } from '../auth.js';
 import type { Broadcaster } from '../broadcaster.js';
 import { HttpError } from '../errors.js';
 import { errorResponses, RevisionParams } from '../schemas.js';
 
 export interface ReviewOptions {
-  readonly store: ModelStore;
+  readonly store: AsyncModelStore;
   readonly notices: Broadcaster;
 }
 
@@ -66,7 +66,7 @@ const reviewRoutes: FastifyPluginAsyncTypebox<ReviewOptions> = async (app, opts)
       const identity = requireRole(req, state);
       let result;
       try {
-        result = store.review({ id, revision: rev, state, by: identity.name, note });
+        result = await store.review({ id, revision: rev, state, by: identity.name, note });
       } catch (err) {
         if (err instanceof ModelNotFoundError) {
           const message = `no model "${id}"`;

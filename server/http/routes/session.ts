@@ -46,7 +46,7 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
     async (req, reply) => {
       if (auth === undefined) return { tokenRequired: false, signedIn: true, identity: null };
       const principal = await auth.principal(req, reply);
-      return { tokenRequired: auth.required(), signedIn: principal !== undefined, identity: wire(principal?.identity ?? null) };
+      return { tokenRequired: await auth.required(), signedIn: principal !== undefined, identity: wire(principal?.identity ?? null) };
     },
   );
 
@@ -64,7 +64,7 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
       },
     },
     async (req, reply) => {
-      if (auth === undefined || !auth.required()) return { tokenRequired: false, signedIn: true, identity: null };
+      if (auth === undefined || !(await auth.required())) return { tokenRequired: false, signedIn: true, identity: null };
       const { sessionId, identity } = await auth.signIn(req, reply, req.body.token);
       reply.setCookie(SESSION_COOKIE, sessionId, { ...cookieOptions(req.protocol === 'https'), maxAge });
       return { tokenRequired: true, signedIn: true, identity: wire(identity) };
@@ -78,9 +78,9 @@ const sessionRoutes: FastifyPluginAsyncTypebox<SessionOptions> = async (app, opt
       schema: { security: [], tags: ['session'], summary: 'Sign out (ends the session on the server and clears the cookie)', response: { 200: SessionState, ...errorResponses(403) } },
     },
     async (req, reply) => {
-      auth?.signOut(req);
+      await auth?.signOut(req);
       reply.clearCookie(SESSION_COOKIE, cookieOptions(req.protocol === 'https'));
-      const required = auth?.required() ?? false;
+      const required = (await auth?.required()) ?? false;
       return { tokenRequired: required, signedIn: !required, identity: null };
     },
   );

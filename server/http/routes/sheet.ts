@@ -18,7 +18,7 @@ import { Model, type Model as ModelT } from '../../../shared-types/model.js';
 import type { Solution } from '../../../shared-types/solution.js';
 import { loadLpSolver, solveModelJson, Workspace, type LpSolver } from '../../engine/index.js';
 import { renderSheet, type SheetRevision } from '../../sheet/sheet.js';
-import type { ModelStore } from '../../store/store.js';
+import type { AsyncModelStore } from '../../store/async-store.js';
 import { HttpError } from '../errors.js';
 import { errorResponses, RevisionParams } from '../schemas.js';
 import { checkSize, type SizeLimits } from '../solve-core.js';
@@ -76,7 +76,7 @@ export function isUnsolvable(err: unknown): err is ModelError | HttpError {
 }
 
 export interface SheetOptions extends SolvePath {
-  readonly store: ModelStore;
+  readonly store: AsyncModelStore;
   /** Software version printed on the sheet. */
   readonly version: string;
 }
@@ -107,8 +107,8 @@ const sheetRoutes: FastifyPluginAsyncTypebox<SheetOptions> = async (app, opts) =
     },
     async (req, reply) => {
       const { id, rev } = req.params;
-      if (!opts.store.get(id)) throw notFound(id);
-      const found = opts.store.get(id, rev);
+      if ((await opts.store.latestRevision(id)) === undefined) throw notFound(id);
+      const found = await opts.store.get(id, rev);
       if (!found) throw notFound(id, rev);
       const solution = await solve(found.model);
       const stored = found as typeof found & { review?: SheetRevision['review'] };
