@@ -11,12 +11,16 @@ export { EmbeddedModel } from '../../shared-types/library.js';
 
 export const ModelId = Type.String({ pattern: '^[A-Za-z0-9_-]{1,64}$', description: 'Model id, as answered by a create.' });
 export const RevisionNumber = Type.Integer({ minimum: 1, maximum: 1_000_000_000, description: 'Revision number, from 1.' });
+/** No NUL character: PostgreSQL's text refuses it, and no name or note needs it (both stores refuse it alike). */
+const NO_NUL = '^[^\\u0000]*$';
+
 export const Author = Type.String({
   minLength: 1,
   maxLength: 100,
+  pattern: NO_NUL,
   description: "Who saves: a name or initials. Required unless the request carries a personal key, whose name is then the author (a typed one is ignored).",
 });
-export const Message = Type.String({ maxLength: 2000, description: 'What changed; may be empty.' });
+export const Message = Type.String({ maxLength: 2000, pattern: NO_NUL, description: 'What changed; may be empty.' });
 
 export const Issue = Type.Object({
   code: Type.String(),

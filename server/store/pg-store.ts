@@ -288,7 +288,7 @@ export class PgStore implements AsyncModelStore {
         const now = new Date().toISOString();
         const revision = current + 1;
         await c.query(named('insertRevision', [id, revision, text, input.author, input.message, now]));
-        await c.query(named('updateModel', [input.name, now, input.author, revision, id]));
+        await c.query(named('updateModel', [listingName(input.name), now, input.author, revision, id]));
         return { id, revision };
       });
     } catch (err) {
@@ -506,7 +506,16 @@ async function historyOf(
 /** Inserts a new model at revision 1 (inside the caller's transaction). */
 async function insertNew(c: Queryable, id: string, text: string, input: SaveInput): Promise<SaveResult> {
   const now = new Date().toISOString();
-  await c.query(named('insertModel', [id, input.name, now, input.author]));
+  await c.query(named('insertModel', [id, listingName(input.name), now, input.author]));
   await c.query(named('insertRevision', [id, 1, text, input.author, input.message, now]));
   return { id, revision: 1 };
+}
+
+/**
+ * The model's name as kept in the listing column: PostgreSQL's text holds no NUL character,
+ * so one (a model may carry it in its name; its stored JSON text escapes it and keeps it
+ * exactly) shows there as U+FFFD.
+ */
+function listingName(name: string): string {
+  return name.includes('\u0000') ? name.replaceAll('\u0000', '\uFFFD') : name;
 }

@@ -96,6 +96,33 @@ describe.skipIf(gate.skip)('the server on PostgreSQL', () => {
     expect(r.stderr).not.toContain('pw');
   });
 
+  it('a NUL character: 400 at /author and /message (never a 500), while a model whose name holds one keeps it exactly', async () => {
+    const url = await cluster.createDatabase(`serve_${++dbs}`);
+    const store: PgStore = await openPgStore(url);
+    const app = await buildApp({ store, seedDemos: false, rateLimitPerMinute: 0 });
+    try {
+      const send = (body: unknown) => app.inject({ method: 'POST', url: '/api/models', headers: { 'content-type': 'application/json' }, payload: JSON.stringify(body) });
+      for (const [field, body] of [
+        ['/author', { model: cantilever(), author: 'A\u0000B' }],
+        ['/message', { model: cantilever(), author: 'A', message: 'x\u0000' }],
+      ] as const) {
+        const r = await send(body);
+        expect(r.statusCode, field).toBe(400);
+        expect(r.json().error.issues[0].pointer).toBe(field);
+      }
+      const named = { ...cantilever(), name: 'Welle\u0000B' };
+      const created = await send({ model: named, author: 'A' });
+      expect(created.statusCode, created.body).toBe(201);
+      const { id } = created.json() as { id: string };
+      expect((await app.inject({ method: 'GET', url: `/api/models/${id}` })).json().model.name).toBe('Welle\u0000B');
+      const listed = (await app.inject({ method: 'GET', url: '/api/models' })).json() as { models: Array<{ id: string; name: string }> };
+      expect(listed.models.find((m) => m.id === id)?.name).toBe('Welle\uFFFDB');
+    } finally {
+      await app.close();
+      await store.close();
+    }
+  });
+
   it('database lost while running: health 503 { ready: false }, saves 503 SN_STORE_UNAVAILABLE with Retry-After, nothing half written; back again: it recovers', async () => {
     const url = await cluster.createDatabase(`serve_${++dbs}`);
     const store: PgStore = await openPgStore(url);

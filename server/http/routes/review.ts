@@ -32,7 +32,7 @@ export interface ReviewOptions {
 export const ReviewBody = Type.Object(
   {
     state: ReviewTarget,
-    note: Type.Optional(Type.Union([Type.String({ maxLength: 2000 }), Type.Null()], { description: 'Why; required when returning.' })),
+    note: Type.Optional(Type.Union([Type.String({ maxLength: 2000, pattern: '^[^\\u0000]*$' }), Type.Null()], { description: 'Why; required when returning.' })),
   },
   { additionalProperties: false },
 );
