@@ -19,16 +19,20 @@
  * solve, and its values are candidates too.
  */
 
-/** Chebyshev points per piece (geometric convergence: 17 reach 1e-10 where the nearest pole
- * lies a third of a piece or more off the real axis). */
-export const CHEB_POINTS = 17;
+/**
+ * Chebyshev points per piece, by level: a piece starts with the first count and doubles its
+ * intervals (second-kind points nest: every earlier solve is kept) while the tail keeps
+ * shrinking, before it is halved (geometric convergence: 17 reach 1e-10 where the nearest pole
+ * lies a third of a piece or more off the real axis).
+ */
+export const CHEB_LEVELS: readonly number[] = [9, 17, 33];
 /**
  * Relative size of the last two Chebyshev coefficients under which a piece is accepted: about the
  * relative round-off of the complex solves on a stiff, lightly damped drivetrain (measured on the
  * benchmark model: the tails level off near 1e-10 however short the piece).
  */
 export const INTERP_TOL = 1e-10;
-/** Most halvings of a bracket around a sharp resonance (a piece of 1/256 of the bracket). */
+/** Most halvings of a bracket around a sharp resonance (a piece of 1/256 of the bracket), each after its points were doubled to the last level. */
 export const MAX_SPLITS = 8;
 /** Most Brent iterations for one peak. */
 const MAX_BRENT_ITERATIONS = 100;
