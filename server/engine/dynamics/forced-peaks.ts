@@ -7,12 +7,13 @@
  * rotations φ(s) at every station (and the rotation difference Δφ across every element,
  * interpolated apart so a stiff element keeps its digits) are interpolated in speed: they
  * are analytic in s on the real axis (the poles of the damped response lie off it, at
- * Ω ≈ ω_n·(1 + iζ)), so polynomial interpolation at CHEB_POINTS Chebyshev points of the
- * second kind converges geometrically. The bracket is accepted when the last two Chebyshev
- * coefficients of every interpolated quantity are below INTERP_TOL of its size over the
- * bracket, and halved (up to MAX_SPLITS times) until they are, or until a halving no longer
- * shrinks them (the solves' own round-off is reached): a resonance sharper than the bracket
- * gets short pieces around it. Brackets that overlap share their pieces. Each curve is then
+ * Ω ≈ ω_n·(1 + iζ)), so polynomial interpolation at Chebyshev points of the second kind
+ * converges geometrically. A piece starts with the first count of CHEB_LEVELS and doubles its
+ * intervals (the points nest: no solve is lost) while it is not accepted, then is halved (up
+ * to MAX_SPLITS times). It is accepted when the last two Chebyshev coefficients of every
+ * interpolated quantity are below INTERP_TOL of its size over the piece, or when doubling the
+ * points no longer shrinks a small tail (the solves' own round-off is reached): a resonance
+ * sharper than the bracket gets more points, then short pieces, around it. Brackets that overlap share their pieces. Each curve is then
  * maximised on the interpolant
  * (element torques recovered exactly from the interpolated rotations) by Brent's method to
  * the peak tolerance in speed, with no further solve. Every Chebyshev point is an exact

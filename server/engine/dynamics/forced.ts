@@ -20,7 +20,8 @@
  * each excitation and the sum) is then refined on the bracket of its grid
  * neighbours to PEAK_SPEED_TOL relative in speed, so a resonance sharper than
  * the grid is not under-read: the rotations are solved exactly at Chebyshev
- * points of the bracket and interpolated in speed, and each curve is
+ * points of the bracket (9, doubled while the interpolation's tail shrinks, then halved) and
+ * interpolated in speed, and each curve is
  * maximised on the interpolant by Brent's method (forced-peaks.ts), so every
  * curve peaking in one bracket shares the same few solves. A peak is
  * assumed single between two grid neighbours (two peaks closer than two grid
