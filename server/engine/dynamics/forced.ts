@@ -359,19 +359,21 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
   const lam = new Float64Array(CHEB_LEVELS[CHEB_LEVELS.length - 1]);
   const nd = layout.dofCount;
   // The rotations of the Chebyshev points, taken from the workspace in blocks (large arrays: one
-  // slab, kept warm between solves, rather than many chunks let go to the collector).
+  // slab, kept warm between solves, rather than many chunks let go to the collector), and used
+  // again by the next run of pieces (`solved` is cleared: runs share no point).
   const NODES_PER_BLOCK = 32;
-  let block: Float64Array = new Float64Array(0);
+  const blocks: Float64Array[] = [];
+  let blockAt = -1;
   let blockUsed = NODES_PER_BLOCK;
   /** The rotations at speed s (an exact solve, or the one made there before: nested points share). */
   const rotationsAt = (s: number): Float64Array => {
     let hit = solved.get(s);
     if (hit === undefined) {
       if (blockUsed === NODES_PER_BLOCK) {
-        block = ws.f64(NODES_PER_BLOCK * E * phiStride);
+        if (++blockAt === blocks.length) blocks.push(ws.f64(NODES_PER_BLOCK * E * phiStride));
         blockUsed = 0;
       }
-      hit = block.subarray(blockUsed * E * phiStride, (blockUsed + 1) * E * phiStride);
+      hit = blocks[blockAt].subarray(blockUsed * E * phiStride, (blockUsed + 1) * E * phiStride);
       blockUsed++;
       evaluate(s, null, hit);
       solved.set(s, hit);
@@ -511,6 +513,9 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     let t = r;
     while (t + 1 < order.length && order[t + 1] <= order[t] + 2) t++;
     const list: Piece[] = [];
+    solved.clear();
+    blockAt = -1;
+    blockUsed = NODES_PER_BLOCK;
     pieces(speeds[Math.max(0, order[r] - 1)], speeds[Math.min(nS - 1, order[t] + 1)], 0, list);
     for (let u = r; u <= t; u++) {
       const i = order[u];
