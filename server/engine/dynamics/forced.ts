@@ -57,8 +57,13 @@ import {
 } from './forced-assembly.js';
 import { baryCoefficients, baryWeights, brentMax, chebPoints, chebTailTables, CHEB_LEVELS, INTERP_TOL, MAX_SPLITS } from './forced-peaks.js';
 
-/** A doubling of the points that leaves the worst Chebyshev tail above this fraction of the previous level's has reached the solves' round-off... */
-const NOISE_PLATEAU = 0.25;
+/**
+ * A doubling of the points that leaves the worst Chebyshev tail above this fraction of the
+ * previous level's has reached the solves' round-off (noise shrinks by about √2 per doubling;
+ * a converging series by ρ^(m−1), and a ρ so close to 1 that this is under 16 leaves a tail far
+ * above NOISE_CEILING)...
+ */
+const NOISE_PLATEAU = 1 / 16;
 /** ...provided the tail is this small (relative): a larger tail that shrinks slowly is a resonance not yet resolved, not round-off. */
 const NOISE_CEILING = 1e-6;
 
