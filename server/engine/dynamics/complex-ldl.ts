@@ -42,6 +42,8 @@ export interface ComplexLdlFactor {
   readonly Di: Float64Array;
   /** Smallest |pivot| / |diagonal entry|: a conditioning indicator. */
   readonly minPivotRatio: number;
+  /** Work space of the numeric phase (kept with the factor so a refactorisation into it takes nothing new). */
+  readonly work: { readonly Yr: Float64Array; readonly Yi: Float64Array; readonly pattern: Int32Array; readonly flag: Int32Array; readonly lnz: Int32Array };
 }
 
 /** A pivot vanished: the matrix is singular (or nearly) in the order used. */
@@ -75,11 +77,8 @@ export function complexLdlNumeric(
   const Lxi = into ? into.Lxi : ws.f64(nnz);
   const Dr = into ? into.Dr : ws.f64(n);
   const Di = into ? into.Di : ws.f64(n);
-  const Yr = ws.f64(n);
-  const Yi = ws.f64(n);
-  const pattern = ws.i32(n);
-  const flag = ws.i32(n);
-  const lnz = ws.i32(n);
+  const work = into ? into.work : { Yr: ws.f64(n), Yi: ws.f64(n), pattern: ws.i32(n), flag: ws.i32(n), lnz: ws.i32(n) };
+  const { Yr, Yi, pattern, flag, lnz } = work;
   let minRatio = Infinity;
   for (let k = 0; k < n; k++) {
     Yr[k] = 0;
@@ -143,7 +142,7 @@ export function complexLdlNumeric(
     Dr[k] = dkr;
     Di[k] = dki;
   }
-  return { Li, Lxr, Lxi, Dr, Di, minPivotRatio: n === 0 ? 1 : minRatio };
+  return { Li, Lxr, Lxi, Dr, Di, minPivotRatio: n === 0 ? 1 : minRatio, work };
 }
 
 /**

@@ -105,6 +105,14 @@ export interface ForcedSystem {
   readonly elemK: Float64Array;
   readonly elemC: Float64Array;
   readonly elemTaper: Uint8Array;
+  /**
+   * Per uniform element with inertia: its class, the index of its h·√(m/GJ) among the distinct
+   * ones (classC); −1 otherwise. Elements of one class share λ at each Ω, so a fill computes
+   * λ cot λ and λ / sin λ once per class (classLam, 4 numbers per class, at the last Ω filled).
+   */
+  readonly elemClass: Int32Array;
+  readonly classC: Float64Array;
+  readonly classLam: Float64Array;
   /** Per element: global segment index. */
   readonly elemSeg: Int32Array;
   /** Per uniform element, at the last Ω filled: k11 and k12 of its dynamic stiffness (re, im), N·m/rad. */
@@ -223,6 +231,20 @@ export function buildForcedSystem(
     const mass = inertia.perLength[g];
     elemC[e] = mass > 0 ? h * Math.sqrt(mass / sg.rigidity) : 0;
   }
+  const elemClass = ws.i32(ne);
+  const classOf = new Map<number, number>();
+  for (let e = 0; e < ne; e++) {
+    const c = elemC[e];
+    if (elemTaper[e] || c === 0) {
+      elemClass[e] = -1;
+      continue;
+    }
+    let k = classOf.get(c);
+    if (k === undefined) classOf.set(c, (k = classOf.size));
+    elemClass[e] = k;
+  }
+  const classC = ws.f64(classOf.size);
+  for (const [c, k] of classOf) classC[k] = c;
   const dofInertia = ws.f64(layout.dofCount);
   for (const disc of model.discs) dofInertia[layout.stationAt(disc.shaft, disc.z)] += disc.inertia;
   return {
@@ -235,6 +257,9 @@ export function buildForcedSystem(
     elemK,
     elemC,
     elemTaper,
+    elemClass,
+    classC,
+    classLam: ws.f64(4 * classOf.size),
     elemSeg,
     elemK11r: ws.f64(ne),
     elemK11i: ws.f64(ne),
@@ -350,6 +375,14 @@ export function fillDynamicStiffness(
     }
   };
   const ne = springs.elemCount;
+  const { elemClass, classC, classLam } = sys;
+  for (let k = 0; k < classC.length; k++) {
+    lambdaFunctions(omega * classC[k] * wr, omega * classC[k] * wi, scratch);
+    classLam[4 * k] = scratch[0];
+    classLam[4 * k + 1] = scratch[1];
+    classLam[4 * k + 2] = scratch[2];
+    classLam[4 * k + 3] = scratch[3];
+  }
   for (let s = 0; s < springs.count; s++) {
     spring.read(s);
     const u = varOf[spring.i];
@@ -378,11 +411,12 @@ export function fillDynamicStiffness(
           k12r = -k;
           k12i = -k * damp;
         } else {
-          lambdaFunctions(omega * elemC[s] * wr, omega * elemC[s] * wi, scratch);
-          k11r = k * (scratch[0] - damp * scratch[1]);
-          k11i = k * (scratch[1] + damp * scratch[0]);
-          k12r = -k * (scratch[2] - damp * scratch[3]);
-          k12i = -k * (scratch[3] + damp * scratch[2]);
+          // λ = Ω·c·w of the element's class (computed above, as lambdaFunctions(Ω·c·wr, Ω·c·wi)).
+          const L = 4 * elemClass[s];
+          k11r = k * (classLam[L] - damp * classLam[L + 1]);
+          k11i = k * (classLam[L + 1] + damp * classLam[L]);
+          k12r = -k * (classLam[L + 2] - damp * classLam[L + 3]);
+          k12i = -k * (classLam[L + 3] + damp * classLam[L + 2]);
         }
         k22r = k11r;
         k22i = k11i;

@@ -7,28 +7,33 @@
  * rotations φ(s) at every station (and the rotation difference Δφ across every element,
  * interpolated apart so a stiff element keeps its digits) are interpolated in speed: they
  * are analytic in s on the real axis (the poles of the damped response lie off it, at
- * Ω ≈ ω_n·(1 + iζ)), so polynomial interpolation at CHEB_POINTS Chebyshev points of the
- * second kind converges geometrically. The bracket is accepted when the last two Chebyshev
- * coefficients of every interpolated quantity are below INTERP_TOL of its size over the
- * bracket, and halved (up to MAX_SPLITS times) until they are, or until a halving no longer
- * shrinks them (the solves' own round-off is reached): a resonance sharper than the bracket
- * gets short pieces around it. Brackets that overlap share their pieces. Each curve is then
+ * Ω ≈ ω_n·(1 + iζ)), so polynomial interpolation at Chebyshev points of the second kind
+ * converges geometrically. A piece starts with the first count of CHEB_LEVELS and doubles its
+ * intervals (the points nest: no solve is lost) while it is not accepted, then is halved (up
+ * to MAX_SPLITS times). It is accepted when the last two Chebyshev coefficients of every
+ * interpolated quantity are below INTERP_TOL of its size over the piece, or when doubling the
+ * points no longer shrinks a small tail (the solves' own round-off is reached): a resonance
+ * sharper than the bracket gets more points, then short pieces, around it. Brackets that overlap share their pieces. Each curve is then
  * maximised on the interpolant
  * (element torques recovered exactly from the interpolated rotations) by Brent's method to
  * the peak tolerance in speed, with no further solve. Every Chebyshev point is an exact
  * solve, and its values are candidates too.
  */
 
-/** Chebyshev points per piece (geometric convergence: 17 reach 1e-10 where the nearest pole
- * lies a third of a piece or more off the real axis). */
-export const CHEB_POINTS = 17;
+/**
+ * Chebyshev points per piece, by level: a piece starts with the first count and doubles its
+ * intervals (second-kind points nest: every earlier solve is kept) while the tail keeps
+ * shrinking, before it is halved (geometric convergence: 17 reach 1e-10 where the nearest pole
+ * lies a third of a piece or more off the real axis).
+ */
+export const CHEB_LEVELS: readonly number[] = [9, 17, 33];
 /**
  * Relative size of the last two Chebyshev coefficients under which a piece is accepted: about the
  * relative round-off of the complex solves on a stiff, lightly damped drivetrain (measured on the
  * benchmark model: the tails level off near 1e-10 however short the piece).
  */
 export const INTERP_TOL = 1e-10;
-/** Most halvings of a bracket around a sharp resonance (a piece of 1/256 of the bracket). */
+/** Most halvings of a bracket around a sharp resonance (a piece of 1/256 of the bracket), each after its points were doubled to the last level. */
 export const MAX_SPLITS = 8;
 /** Most Brent iterations for one peak. */
 const MAX_BRENT_ITERATIONS = 100;

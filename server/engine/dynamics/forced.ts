@@ -20,7 +20,8 @@
  * each excitation and the sum) is then refined on the bracket of its grid
  * neighbours to PEAK_SPEED_TOL relative in speed, so a resonance sharper than
  * the grid is not under-read: the rotations are solved exactly at Chebyshev
- * points of the bracket and interpolated in speed, and each curve is
+ * points of the bracket (9, doubled while the interpolation's tail shrinks, then halved) and
+ * interpolated in speed, and each curve is
  * maximised on the interpolant by Brent's method (forced-peaks.ts), so every
  * curve peaking in one bracket shares the same few solves. A peak is
  * assumed single between two grid neighbours (two peaks closer than two grid
@@ -54,15 +55,22 @@ import {
   taperDynamicStiffness,
   type SegmentInertia,
 } from './forced-assembly.js';
-import { baryCoefficients, baryWeights, brentMax, chebPoints, chebTail, chebTailTables, CHEB_POINTS, INTERP_TOL, MAX_SPLITS } from './forced-peaks.js';
+import { baryCoefficients, baryWeights, brentMax, chebPoints, chebTailTables, CHEB_LEVELS, INTERP_TOL, MAX_SPLITS } from './forced-peaks.js';
 
-/** A halving that leaves the worst Chebyshev tail above this fraction of its parent's has reached the solves' round-off. */
-const NOISE_PLATEAU = 0.25;
+/**
+ * A doubling of the points that leaves the worst Chebyshev tail above this fraction of the
+ * previous level's has reached the solves' round-off (noise shrinks by about √2 per doubling;
+ * a converging series by ρ^(m−1), and a ρ so close to 1 that this is under 16 leaves a tail far
+ * above NOISE_CEILING)...
+ */
+const NOISE_PLATEAU = 1 / 16;
+/** ...provided the tail is this small (relative): a larger tail that shrinks slowly is a resonance not yet resolved, not round-off. */
+const NOISE_CEILING = 1e-6;
 
-/** A piece of a bracket: its Chebyshev points, the exact values and rotations solved there. */
+/** A piece of a bracket: its Chebyshev points, their barycentric weights and the exact rotations solved there. */
 interface Piece {
   readonly nodes: Float64Array;
-  readonly rows: Float64Array[];
+  readonly weights: Float64Array;
   readonly phis: Float64Array[];
 }
 
@@ -219,8 +227,10 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
   /** Torque (first `stride`) and shear (next `stride`) of every curve and segment at speed s, into out. */
   // Per excitation in an evaluation's rotations: φ at every dof, then Δφ across every element (re, im each).
   const phiStride = 2 * layout.dofCount + 2 * ne;
-  const evaluate = (s: number, out: Float64Array, phis?: Float64Array): void => {
-    out.fill(0);
+  // With `phis` (a bracket's Chebyshev point), only the rotations are kept: the values there are
+  // recovered from them by valueAt, as everywhere else on the piece.
+  const evaluate = (s: number, out: Float64Array | null, phis?: Float64Array): void => {
+    out?.fill(0);
     for (let o = 0; o < orders.length; o++) {
       const omega = orders[o] * s;
       fillDynamicStiffness(sys, springs, red, omega, zeta, scratch);
@@ -255,6 +265,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
             phis[base + 2 * nd + ne + el] = pi[a + 1] - pi[a];
           }
         }
+        if (out === null) continue;
         const tBase = e * nSeg;
         const sBase = stride + e * nSeg;
         for (let el = 0; el < ne; el++) {
@@ -275,6 +286,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
         }
       }
     }
+    if (out === null) return;
     for (let g = 0; g < nSeg; g++) {
       let t = 0;
       let sh = 0;
@@ -348,57 +360,107 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     segEnd[g] = el + 1;
   }
   const tol = options.peakTolerance ?? PEAK_SPEED_TOL;
-  const m = CHEB_POINTS;
-  const bw = baryWeights(m);
-  const tails = chebTailTables(m);
-  const lam = new Float64Array(m);
+  const levels = CHEB_LEVELS.map((m) => ({ m, weights: baryWeights(m), tails: chebTailTables(m) }));
+  const lam = new Float64Array(CHEB_LEVELS[CHEB_LEVELS.length - 1]);
   const nd = layout.dofCount;
-  /** Exact solves at the Chebyshev points of [lo, hi], halved until every interpolated rotation converges. */
-  const pieces = (lo: number, hi: number, depth: number, parentWorst: number, out: Piece[]): void => {
-    const nodes = chebPoints(lo, hi, m);
-    const rows: Float64Array[] = [];
-    const phis: Float64Array[] = [];
-    for (let j = 0; j < m; j++) {
-      let hit = solved.get(nodes[j]);
-      if (hit === undefined) {
-        hit = { row: new Float64Array(2 * stride), phis: new Float64Array(E * phiStride) };
-        evaluate(nodes[j], hit.row, hit.phis);
-        solved.set(nodes[j], hit);
+  // The rotations of the Chebyshev points, taken from the workspace in blocks (large arrays: one
+  // slab, kept warm between solves, rather than many chunks let go to the collector), and used
+  // again by the next run of pieces (`solved` is cleared: runs share no point).
+  const NODES_PER_BLOCK = 32;
+  const blocks: Float64Array[] = [];
+  let blockAt = -1;
+  let blockUsed = NODES_PER_BLOCK;
+  /** The rotations at speed s (an exact solve, or the one made there before: nested points share). */
+  const rotationsAt = (s: number): Float64Array => {
+    let hit = solved.get(s);
+    if (hit === undefined) {
+      if (blockUsed === NODES_PER_BLOCK) {
+        if (++blockAt === blocks.length) blocks.push(ws.f64(NODES_PER_BLOCK * E * phiStride));
+        blockUsed = 0;
       }
-      rows.push(hit.row);
-      phis.push(hit.phis);
+      hit = blocks[blockAt].subarray(blockUsed * E * phiStride, (blockUsed + 1) * E * phiStride);
+      blockUsed++;
+      evaluate(s, null, hit);
+      solved.set(s, hit);
     }
-    // The worst tail relative to its quantity's size (Δφ with a floor of 1e-15 of the largest Δφ).
+    return hit;
+  };
+  /**
+   * The worst Chebyshev tail of the rotations at a level's points, relative to its quantity's size
+   * (Δφ with a floor of 1e-15 of the largest Δφ): chebTail's sums for every quantity at once, the
+   * points in the outer loop (each point's rotations read in order), the same sums in the same order.
+   */
+  const acc1 = new Float64Array(phiStride);
+  const acc2 = new Float64Array(phiStride);
+  const accSize = new Float64Array(phiStride);
+  const worstTail = (phis: Float64Array[], tails: ReturnType<typeof chebTailTables>): number => {
+    const m = phis.length;
+    const { c1, c2 } = tails;
+    const norm = 2 / (m - 1);
     let worst = 0;
     for (let e = 0; e < E; e++) {
       const base = e * phiStride;
-      let scale = 0;
-      let dScale = 0;
+      acc1.fill(0);
+      acc2.fill(0);
+      accSize.fill(0);
       for (let j = 0; j < m; j++) {
         const f = phis[j];
-        for (let k = 0; k < 2 * nd; k++) scale = Math.max(scale, Math.abs(f[base + k]));
-        for (let k = 2 * nd; k < phiStride; k++) dScale = Math.max(dScale, Math.abs(f[base + k]));
+        const w1 = c1[j];
+        const w2 = c2[j];
+        for (let k = 0; k < phiStride; k++) {
+          const v = f[base + k];
+          acc1[k] += v * w1;
+          acc2[k] += v * w2;
+          const av = Math.abs(v);
+          if (av > accSize[k]) accSize[k] = av;
+        }
       }
-      if (scale > 0) for (let k = 0; k < 2 * nd; k++) worst = Math.max(worst, chebTail(phis, base + k, tails) / scale);
-      for (let k = base + 2 * nd; k < base + phiStride; k++) {
-        let size = 1e-15 * dScale;
-        for (let j = 0; j < m; j++) size = Math.max(size, Math.abs(phis[j][k]));
-        if (size > 0) worst = Math.max(worst, chebTail(phis, k, tails) / size);
+      let scale = 0;
+      let dScale = 0;
+      for (let k = 0; k < 2 * nd; k++) scale = Math.max(scale, accSize[k]);
+      for (let k = 2 * nd; k < phiStride; k++) dScale = Math.max(dScale, accSize[k]);
+      if (scale > 0) for (let k = 0; k < 2 * nd; k++) worst = Math.max(worst, (norm * (0.5 * Math.abs(acc1[k]) + Math.abs(acc2[k]))) / scale);
+      for (let k = 2 * nd; k < phiStride; k++) {
+        const size = Math.max(1e-15 * dScale, accSize[k]);
+        if (size > 0) worst = Math.max(worst, (norm * (0.5 * Math.abs(acc1[k]) + Math.abs(acc2[k]))) / size);
       }
     }
-    // Converged; or at the round-off of the solves themselves (halving no longer shrinks the tail
-    // fourfold: a plateau, not a resolved peak); or split enough.
-    if (worst <= INTERP_TOL || worst > NOISE_PLATEAU * parentWorst || depth >= MAX_SPLITS) {
-      out.push({ nodes, rows, phis });
-      return;
+    return worst;
+  };
+  /**
+   * Exact solves at the Chebyshev points of [lo, hi], the points doubled (nested: every earlier
+   * solve kept) while the tail shrinks, then halved, until every interpolated rotation converges.
+   */
+  const pieces = (lo: number, hi: number, depth: number, out: Piece[]): void => {
+    let prev = Infinity;
+    for (let l = 0; ; l++) {
+      const { m, weights, tails } = levels[l];
+      const nodes = chebPoints(lo, hi, m);
+      const phis: Float64Array[] = [];
+      for (let j = 0; j < m; j++) phis.push(rotationsAt(nodes[j]));
+      const worst = worstTail(phis, tails);
+      // Converged; or at the round-off of the solves themselves (doubling the points no longer
+      // shrinks a small tail fourfold: a plateau); or split enough.
+      const last = l === levels.length - 1;
+      const plateau = worst > NOISE_PLATEAU * prev && worst <= NOISE_CEILING;
+      if (worst <= INTERP_TOL || plateau || (last && depth >= MAX_SPLITS)) {
+        out.push({ nodes, weights, phis });
+        return;
+      }
+      if (last) break;
+      prev = worst;
     }
     const mid = 0.5 * (lo + hi);
-    pieces(lo, mid, depth + 1, worst, out);
-    pieces(mid, hi, depth + 1, worst, out);
+    pieces(lo, mid, depth + 1, out);
+    pieces(mid, hi, depth + 1, out);
   };
   /** Series p (a position in a row) at speed s from the rotations interpolated on piece `pc`. */
   const valueAt = (pc: Piece, p: number, s: number): number => {
-    baryCoefficients(pc.nodes, bw, s, lam);
+    // At a Chebyshev point, its own exact rotations (no interpolation).
+    const m = pc.nodes.length;
+    let at = -1;
+    for (let j = 0; j < m && at < 0; j++) if (pc.nodes[j] === s) at = j;
+    if (at < 0) baryCoefficients(pc.nodes, pc.weights, s, lam);
     const isShear = p >= stride;
     const q = isShear ? p - stride : p;
     const c = Math.floor(q / nSeg);
@@ -415,7 +477,13 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
         let ai = 0;
         let dr = 0;
         let di = 0;
-        for (let j = 0; j < m; j++) {
+        if (at >= 0) {
+          const f = pc.phis[at];
+          ar = f[base + a];
+          ai = f[base + nd + a];
+          dr = f[base + 2 * nd + el];
+          di = f[base + 2 * nd + ne + el];
+        } else for (let j = 0; j < m; j++) {
           const f = pc.phis[j];
           const l = lam[j];
           ar += l * f[base + a];
@@ -442,7 +510,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     }
     return total;
   };
-  const solved = new Map<number, { row: Float64Array; phis: Float64Array }>();
+  const solved = new Map<number, Float64Array>();
   // Brackets that overlap or touch (grid maxima two apart or closer) share one run of pieces.
   const order = [...jobs.keys()].sort((a, b) => a - b);
   for (let r = 0; r < order.length; ) {
@@ -450,13 +518,17 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
     let t = r;
     while (t + 1 < order.length && order[t + 1] <= order[t] + 2) t++;
     const list: Piece[] = [];
-    pieces(speeds[Math.max(0, order[r] - 1)], speeds[Math.min(nS - 1, order[t] + 1)], 0, Infinity, list);
+    solved.clear();
+    blockAt = -1;
+    blockUsed = NODES_PER_BLOCK;
+    pieces(speeds[Math.max(0, order[r] - 1)], speeds[Math.min(nS - 1, order[t] + 1)], 0, list);
     for (let u = r; u <= t; u++) {
       const i = order[u];
       const bLo = speeds[Math.max(0, i - 1)];
       const bHi = speeds[Math.min(nS - 1, i + 1)];
       for (const p of jobs.get(i)!) {
         for (const pc of list) {
+          const m = pc.nodes.length;
           const a = Math.max(pc.nodes[0], bLo);
           const b = Math.min(pc.nodes[m - 1], bHi);
           if (!(a < b)) continue;
@@ -466,7 +538,7 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
           for (let k = 0; k < m; k++) {
             if (pc.nodes[k] > a && pc.nodes[k] < b) {
               xs.push(pc.nodes[k]);
-              fs.push(pc.rows[k][p]);
+              fs.push(valueAt(pc, p, pc.nodes[k]));
             }
           }
           xs.push(b);
