@@ -24,7 +24,7 @@ import { recoverRaisers } from './raisers.js';
 import type { Workspace } from './workspace.js';
 import { solveDynamics, type DynamicsSolved } from './dynamics/modes.js';
 import { forcedResponse } from './dynamics/forced.js';
-import type { SegmentInertia } from './dynamics/forced-assembly.js';
+import { segmentInertia } from './dynamics/forced-assembly.js';
 import {
   abridgedWarning,
   assembledStateModel,
@@ -176,7 +176,7 @@ function withDynamics(
   const failing = dynamics.crossings.filter((c) => c.inRange).length;
   const staticShear = staticsOmitted ? null : (solved.cases?.envelope.layerMaxShear ?? solved.rec.layerMaxShear);
   const dyn = model.dynamics;
-  const forced = ws.stage(() => forcedResponse({ model, layout, dynamics: dyn, inertia: resolvedInertia(model), staticShear }, ws, { progress })) ?? undefined;
+  const forced = ws.stage(() => forcedResponse({ model, layout, dynamics: dyn, inertia: segmentInertia(model), staticShear }, ws, { progress })) ?? undefined;
   return {
     ...solved,
     dynamics,
@@ -186,22 +186,6 @@ function withDynamics(
   };
 }
 
-/** The shafts' own inertia per segment as normalise resolved it (ρ·Ip per length; a taper's density). */
-function resolvedInertia(model: ResolvedModel): SegmentInertia {
-  let n = 0;
-  for (const sh of model.shafts) n += sh.segments.length;
-  const perLength = new Float64Array(n);
-  const taperDensity = new Float64Array(n);
-  let g = 0;
-  for (const sh of model.shafts) {
-    for (const sg of sh.segments) {
-      if (sg.taper) taperDensity[g] = sg.taper.density ?? 0;
-      else perLength[g] = sg.rhoIp ?? 0;
-      g++;
-    }
-  }
-  return { perLength, taperDensity };
-}
 
 /**
  * A model free to spin, with dynamics (contract, binding reading): its dynamics are solved and its

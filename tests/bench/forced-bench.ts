@@ -14,7 +14,7 @@ import { normaliseModel } from '../../server/engine/normalise.js';
 import { buildStations } from '../../server/engine/stations.js';
 import { Workspace } from '../../server/engine/workspace.js';
 import { forcedResponse, type ForcedOptions } from '../../server/engine/dynamics/forced.js';
-import { segmentInertia } from '../../server/engine/dynamics/forced-assembly.js';
+import { inertiaFromDensity } from '../engine/forced-helpers.js';
 import type { ResolvedDynamics } from '../../server/engine/dynamics/types.js';
 import { calibrationLine } from './calibrate.js';
 
@@ -66,7 +66,7 @@ function run(per: number, options: ForcedOptions, repeats = 3): { ms: number; so
     ws.session(() => {
       const t0 = performance.now();
       const layout = buildStations(resolved, ws);
-      const fr = forcedResponse({ model: resolved, layout, dynamics, inertia: segmentInertia(resolved, () => 7850), staticShear: null }, ws, options);
+      const fr = forcedResponse({ model: resolved, layout, dynamics, inertia: inertiaFromDensity(resolved, () => 7850), staticShear: null }, ws, options);
       best = Math.min(best, performance.now() - t0);
       solves = fr!.solves;
       stations = layout.dofCount;

@@ -8,7 +8,8 @@ import { normaliseModel } from '../../server/engine/normalise.js';
 import { buildStations } from '../../server/engine/stations.js';
 import { Workspace } from '../../server/engine/workspace.js';
 import { forcedResponse, type ForcedOptions } from '../../server/engine/dynamics/forced.js';
-import { segmentInertia } from '../../server/engine/dynamics/forced-assembly.js';
+import type { SegmentInertia } from '../../server/engine/dynamics/forced-assembly.js';
+import type { ResolvedModel } from '../../server/engine/normalise.js';
 import type { ResolvedDynamics, ResolvedExcitation } from '../../server/engine/dynamics/types.js';
 
 export interface ForcedRun {
@@ -41,7 +42,7 @@ export function runForced(
   const ws = new Workspace();
   return ws.session(() => {
     const layout = buildStations(resolved, ws);
-    const inertia = segmentInertia(resolved, (id) => density[id] ?? null);
+    const inertia = inertiaFromDensity(resolved, (id) => density[id] ?? null);
     let layers = 0;
     for (const sh of resolved.shafts) for (const sg of sh.segments) layers += sg.layers.length;
     const fr = forcedResponse({ model: resolved, layout, dynamics, inertia, staticShear: options.staticShear ? options.staticShear(layers) : null }, ws, options);
@@ -74,4 +75,27 @@ export function runForced(
       solves: fr.solves,
     };
   });
+}
+
+/**
+ * Segment inertias from a density given per material here (kg/m³, null: massless), for models
+ * whose materials carry none (the engine reads ρ·Ip as normalise resolved it, forced-assembly.ts
+ * segmentInertia). Round layers: ρ·J of the ring; a non-circular shape: ρ·its polarMoment; a
+ * taper: ρ of its material.
+ */
+export function inertiaFromDensity(model: ResolvedModel, densityOf: (materialId: string) => number | null): SegmentInertia {
+  let n = 0;
+  for (const sh of model.shafts) n += sh.segments.length;
+  const perLength = new Float64Array(n);
+  const taperDensity = new Float64Array(n);
+  let g = 0;
+  for (const sh of model.shafts) {
+    for (const sg of sh.segments) {
+      if (sg.taper) taperDensity[g] = densityOf(sg.layers[0].materialId) ?? 0;
+      else if (sg.shape) perLength[g] = (densityOf(sg.layers[0].materialId) ?? 0) * (sg.shape.polarMoment ?? 0);
+      else for (const l of sg.layers) perLength[g] += (densityOf(l.materialId) ?? 0) * l.J;
+      g++;
+    }
+  }
+  return { perLength, taperDensity };
 }

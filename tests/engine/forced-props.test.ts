@@ -24,12 +24,11 @@ import { solveModel } from '../../server/engine/index.js';
 import { ModelError } from '../../shared-types/errors.js';
 import type { Model } from '../../shared-types/model.js';
 import { randomModel, Rng, segmentSpans } from './random-models.js';
-import { dynamicsOf, runForced } from './forced-helpers.js';
+import { dynamicsOf, inertiaFromDensity, runForced } from './forced-helpers.js';
 import { Value } from 'typebox/value';
 import { normaliseModel } from '../../server/engine/normalise.js';
 import { buildStations } from '../../server/engine/stations.js';
 import { forcedResponse } from '../../server/engine/dynamics/forced.js';
-import { segmentInertia } from '../../server/engine/dynamics/forced-assembly.js';
 import { forcedRecords, walkForcedResponse } from '../../server/engine/dynamics/forced-output.js';
 import { ForcedResponse } from '../../shared-types/forced-response.js';
 
@@ -380,7 +379,7 @@ describe('the written forced response', () => {
             { id: 'E1', shaft: 0, z: 0.9, amplitude: 20, order: 1 },
             { id: 'E2', shaft: 0, z: 0.4, amplitude: 5, order: 3 },
           ]),
-          inertia: segmentInertia(resolved, () => RHO),
+          inertia: inertiaFromDensity(resolved, () => RHO),
           staticShear: null,
         },
         ws,

@@ -69,11 +69,11 @@ export interface SegmentInertia {
 }
 
 /**
- * Segment inertias from a material density (kg/m³, null: none given, massless).
- * Round layers: ρ·J of the ring (its polar moment); a non-circular shape: ρ·its
- * polarMoment (massless when the shape gives none); a taper: ρ of its material.
+ * Segment inertias as normalise resolved them: a uniform segment's ρ·Ip per length summed over its
+ * layers (`rhoIp`: round layers ρ·J of the ring, a non-circular shape ρ·its polarMoment, 0 without
+ * a density), a taper's density (its ρ·Ip(z) varies along it).
  */
-export function segmentInertia(model: ResolvedModel, densityOf: (materialId: string) => number | null): SegmentInertia {
+export function segmentInertia(model: ResolvedModel): SegmentInertia {
   let n = 0;
   for (const sh of model.shafts) n += sh.segments.length;
   const perLength = new Float64Array(n);
@@ -81,9 +81,8 @@ export function segmentInertia(model: ResolvedModel, densityOf: (materialId: str
   let g = 0;
   for (const sh of model.shafts) {
     for (const sg of sh.segments) {
-      if (sg.taper) taperDensity[g] = densityOf(sg.layers[0].materialId) ?? 0;
-      else if (sg.shape) perLength[g] = (densityOf(sg.layers[0].materialId) ?? 0) * (sg.shape.polarMoment ?? 0);
-      else for (const l of sg.layers) perLength[g] += (densityOf(l.materialId) ?? 0) * l.J;
+      if (sg.taper) taperDensity[g] = sg.taper.density ?? 0;
+      else perLength[g] = sg.rhoIp ?? 0;
       g++;
     }
   }
