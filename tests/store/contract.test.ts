@@ -320,9 +320,17 @@ for (const backend of [sqliteBackend(), postgresBackend()]) {
       await expect(store.review({ id, revision: 2, state: 'approved', by: 'Dan', note: null })).rejects.toBeInstanceOf(ReviewRefusedError);
       await expect(store.review({ id, revision: 2, state: 'checked', by: ' ANN ', note: null })).rejects.toThrow(/authored/);
       await store.review({ id, revision: 2, state: 'checked', by: 'Bob', note: null });
-      await expect(store.review({ id, revision: 2, state: 'approved', by: 'bob', note: null })).rejects.toThrow(/checked this revision/);
+      await expect(store.review({ id, revision: 2, state: 'approved', by: 'ann', note: null })).rejects.toThrow(/authored/);
+      await expect(store.review({ id, revision: 2, state: 'checked', by: 'Cy', note: null })).rejects.toBeInstanceOf(ReviewRefusedError); // checked already
       expect((await store.get(id, 1))!.review.history).toHaveLength(1);
       expect((await store.get(id, 2))!.review.history.map((h) => h.state)).toEqual(['prepared', 'checked']);
+      // The checker may also approve (four eyes: only the author may not).
+      await store.review({ id, revision: 2, state: 'approved', by: 'bob', note: null });
+      expect((await store.get(id, 2))!.review.history.map((h) => [h.state, h.by])).toEqual([
+        ['prepared', 'ann'],
+        ['checked', 'Bob'],
+        ['approved', 'bob'],
+      ]);
     });
 
     it('review: concurrent changes of one revision from two stores: exactly one checks it, the other is refused', async () => {
