@@ -20,11 +20,12 @@ import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { calibrationLine } from './calibrate.js';
+import { anchorsDir } from './anchors.js';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 7);
 const STATIONS = Number(process.env.BENCH_STATIONS ?? 100_000);
-const anchors = process.env.SHAFTNET_BENCH_DIR ?? path.resolve(root, '..', '..', 'shared', 'bench');
+const anchors = anchorsDir();
 const cli = path.join(root, 'dist', 'server', 'cli.js');
 
 /** Node options the bin's first line gives ("#!/usr/bin/env -S node --opt"), as the installed command runs. */

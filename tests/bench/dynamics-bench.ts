@@ -13,12 +13,11 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { normaliseModel, solveResolved } from '../../server/engine/index.js';
 import { calibrationLine } from './calibrate.js';
+import { anchorsDir } from './anchors.js';
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
-const anchors = process.env.SHAFTNET_BENCH_DIR ?? path.resolve(root, '..', '..', 'shared', 'bench');
+const anchors = anchorsDir();
 const RUNS = 3;
 
 function generate(args: string[]): Record<string, unknown> {
