@@ -207,12 +207,12 @@ const CROSSING = rec<CrossingResult>('mode', 'order', 'speed', 'inRange');
 const FORCED = forcedRecords((...keys) => rec<Record<string, unknown>>(...keys));
 
 /**
- * What the walk writes with. Each value is the next field of the innermost
- * open object (named by its record) or the next item of the innermost open
- * list; `absent` leaves an optional field out.
+ * What a walk writes with, for records of type R (dynamics/forced-output.ts walks its part
+ * with it too). Each value is the next field of the innermost open object (named by its
+ * record) or the next item of the innermost open list; `absent` leaves an optional field out.
  */
-interface Writer {
-  open(r: Rec): void;
+export interface ValueWriter<R> {
+  open(r: R): void;
   list(): void;
   close(): void;
   num(x: number): void;
@@ -222,6 +222,10 @@ interface Writer {
   absent(): void;
   /** A list of the numbers a[from … to − 1]. */
   series(a: Float64Array, from: number, to: number): void;
+}
+
+/** What the solution's walk writes with. */
+interface Writer extends ValueWriter<Rec> {
   /** A list of strings. */
   strings(a: readonly string[]): void;
 }

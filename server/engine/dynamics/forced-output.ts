@@ -1,26 +1,15 @@
 /**
  * Writing the forced response (forced.ts's columns) through output.ts's writer: one walk,
  * every field named once in the order of shared-types/forced-response.ts, for both of
- * output.ts's writers (the object and the JSON text). output.ts keeps its record factory and
+ * output.ts's writers (the object and the JSON text), typed by its ValueWriter. output.ts keeps its record factory and
  * writer private; it hands them in: `forcedRecords(rec)` once at module level, then
  * `walkForcedResponse(fr, model, w, records)` at the `forcedResponse` field of the walk.
  */
 import type { ForcedCheck, ForcedExcitation, ForcedResponse, ForcedSegment } from '../../../shared-types/forced-response.js';
 import type { ResolvedModel } from '../normalise.js';
 import type { ForcedSolved } from './forced.js';
+import type { ValueWriter } from '../output.js';
 
-/** The part of output.ts's Writer the walk uses; R is its record type. */
-export interface ForcedWriter<R> {
-  open(r: R): void;
-  list(): void;
-  close(): void;
-  num(x: number): void;
-  optNum(x: number | null): void;
-  str(s: string): void;
-  bool(b: boolean): void;
-  absent(): void;
-  series(a: Float64Array, from: number, to: number): void;
-}
 
 // The key order of each object, typed against the schema (every field listed, none invented).
 type Keys<T> = ReadonlyArray<keyof T & string>;
@@ -54,7 +43,7 @@ export function forcedCheckOrder(fr: ForcedSolved): Int32Array {
 }
 
 /** Writes `forcedResponse` (an object) as the next value of the walk. */
-export function walkForcedResponse<R>(fr: ForcedSolved, model: ResolvedModel, w: ForcedWriter<R>, records: ForcedRecords<R>): void {
+export function walkForcedResponse<R>(fr: ForcedSolved, model: ResolvedModel, w: ValueWriter<R>, records: ForcedRecords<R>): void {
   const nS = fr.speeds.length;
   const nSeg = fr.segments;
   const E = fr.excitations.length;
