@@ -32,7 +32,8 @@ export function nonFiniteNumbers(value: unknown, path = ''): string[] {
  * contract wants a number. Null belongs only in: the torque beyond a shaft's
  * ends (torqueLeft of its first station, torqueRight of its last), and a
  * layer's allowableShear and shearYield when its material gives none, with
- * utilisation then null too. JSON writes NaN and ±Infinity as null, so any
+ * utilisation then null too; the overload's documented nulls; a rigid-body mode's strain shares;
+ * a forced-response check's static shear where the statics were omitted. JSON writes NaN and ±Infinity as null, so any
  * other null is a non-finite number that escaped.
  */
 export function misplacedNulls(solution: unknown): string[] {
@@ -72,6 +73,12 @@ function nullAllowed(root: unknown, p: string[]): boolean {
     if (p.length === 2 && (key === 'firstYieldFactor' || key === 'firstYield')) {
       return o.firstYieldFactor === null && o.firstYield === null && (o.collapseFactor === null || warned);
     }
+  }
+  // modes/k/energy/strain: a rigid-body mode has no strain shares (contract, binding reading).
+  if (p.length === 4 && p[0] === 'modes' && p[2] === 'energy' && key === 'strain') return (at(p.slice(0, 2)) as { rigidBody: boolean }).rigidBody === true;
+  // forcedResponse/checks/k/static: no static shear where the statics were omitted (a model free to spin).
+  if (p.length === 4 && p[0] === 'forcedResponse' && p[1] === 'checks' && key === 'static') {
+    return (at(['warnings']) as Array<{ code: string }>).some((w) => w.code === 'SN_STATICS_OMITTED');
   }
   return false;
 }

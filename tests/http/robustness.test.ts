@@ -18,7 +18,7 @@ afterAll(async () => {
   await t.close();
 });
 
-const bases = [demo('mixer-drive'), demo('gear-train-branches'), demo('stepped-two-material'), cantilever(3)];
+const bases = [demo('mixer-drive'), demo('gear-train-branches'), demo('stepped-two-material'), demo('tapered-bar-shoulder'), demo('geared-drive-vibration'), cantilever(3)];
 
 const weird = fc.oneof(
   fc.constantFrom(
