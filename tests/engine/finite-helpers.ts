@@ -10,7 +10,7 @@ import { QUANTITY_RANGE, UNITS, unitsOfKind, type QuantityKind } from '../../sha
 import { forEachQuantity, randomModel, Rng } from './random-models.js';
 
 /** The shipped demo models (invented), parsed. */
-export const DEMOS: readonly Model[] = ['mixer-drive', 'gear-train-branches', 'stepped-two-material'].map(
+export const DEMOS: readonly Model[] = ['mixer-drive', 'gear-train-branches', 'stepped-two-material', 'tapered-bar-shoulder', 'geared-drive-vibration'].map(
   (id) => JSON.parse(readFileSync(new URL(`../../server/demos/${id}.json`, import.meta.url), 'utf8')) as Model,
 );
 
