@@ -20,10 +20,9 @@
 import { ModelError } from '../../shared-types/errors.js';
 import type { Warning } from '../../shared-types/solution.js';
 import type { ResolvedCombination, ResolvedModel, ResolvedSegment } from './normalise.js';
-import { buildChecks, MAX_LISTED_CHECKS, elementRotation, elementTorque, quadraticRoots, type CheckColumns, type ShaftColumns } from './recover.js';
+import { buildChecks, MAX_LISTED_CHECKS, elementRotation, elementTorque, quadraticRoots, taperElementPeaks, type CheckColumns, type ShaftColumns, type TaperPeakColumns } from './recover.js';
 import { recoverRaisers, type RaiserColumns } from './raisers.js';
 import { distributedIntensities, type StationLayout } from './stations.js';
-import { taperElementState, taperTwistRatePeak } from './taper-element.js';
 import { Workspace } from './workspace.js';
 import type { Overload } from './overload.js';
 
@@ -250,6 +249,8 @@ export class Superposition {
   private readonly segPhiTo: Float64Array;
   private readonly segPeak: Float64Array;
   private readonly roots = new Float64Array(2);
+  /** φ min and max of a shaft, in and out of `taperElementPeaks`. */
+  private readonly phiRange = new Float64Array(2);
   /** True when every segment has an element (so the pass by station meets each). */
   private readonly spansCover: boolean;
 
@@ -740,9 +741,10 @@ export class Superposition {
    * included): the rules of `recoverShafts`, without its diagrams.
    */
   private segmentPeaks(): void {
-    const { model, layout, st, segPhiFrom, segPhiTo, segPeak, roots } = this;
+    const { model, layout, st, segPhiFrom, segPhiTo, segPeak, roots, phiRange } = this;
     const { z, shaftStart, elemSegment } = layout;
     const { phi, TL, TR, t1: T1s, t2: T2s, segMaxAbs: segMax, segAt, segRate, totalTwist } = st;
+    const peaks: TaperPeakColumns = { segMax, segAt, segPeak, segRate };
     segMax.fill(0);
     segPhiFrom.fill(Number.NaN);
     if (this.hasTaper) {
@@ -818,36 +820,11 @@ export class Superposition {
         const loaded = t1 !== 0 || t2 !== 0;
         const sg = this.segments[g];
         if (this.elemTaper[e] && sg.taper) {
-          const h = z[d + 1] - z[d];
-          const dt = t2 - t1;
-          const { state, input } = taperElementState(sg, sg.taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
-          if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
-          if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
-          if (loaded && dt !== 0) {
-            const x = (-t1 * h) / dt;
-            if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
-          }
-          if (state.peak.shear > segPeak[g]) {
-            segPeak[g] = state.peak.shear;
-            segAt[g] = z[d] + state.peak.z;
-          }
-          const rate = taperTwistRatePeak(input, sg.taper.G, state, t1, t2).rate;
-          if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
-          for (const p of [phi[d], phi[d + 1]]) {
-            if (p < phiMin) phiMin = p;
-            if (p > phiMax) phiMax = p;
-          }
-          if (loaded) {
-            const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
-            for (let r = 0; r < nr; r++) {
-              const x = roots[r];
-              if (x > 0 && x < h) {
-                const p = state.rotationAt(x);
-                if (p < phiMin) phiMin = p;
-                if (p > phiMax) phiMax = p;
-              }
-            }
-          }
+          phiRange[0] = phiMin;
+          phiRange[1] = phiMax;
+          taperElementPeaks(sg, sg.taper, g, z[d], z[d + 1], phi[d], phi[d + 1], T1, T2, t1, t2, peaks, phiRange, roots);
+          phiMin = phiRange[0];
+          phiMax = phiRange[1];
           continue;
         }
         const a1 = Math.abs(T1);

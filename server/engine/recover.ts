@@ -407,6 +407,8 @@ export function recoverShafts(
   const hasTaper = model.shafts.some((sh) => sh.segments.some((sg) => sg.taper));
   const segRate = ws.f64(hasTaper ? nSegments : 0).fill(Number.NaN);
   const segPeak = ws.f64(hasTaper ? nSegments : 0);
+  const peaks: TaperPeakColumns = { segMax, segAt, segPeak, segRate };
+  const phiRange = ws.f64(2);
 
   for (let s = 0; s < nShafts; s++) {
     const shaft = model.shafts[s];
@@ -435,37 +437,13 @@ export function recoverShafts(
       const t1 = elemT1[e];
       const t2 = elemT2[e];
       const dt = t2 - t1;
-      const loaded = t1 !== 0 || t2 !== 0;
       const T1 = TL[e];
       const T2 = TR[e];
-      const { state, input } = taperElementState(sg, taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
-      if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
-      if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
-      if (loaded && dt !== 0) {
-        const x = (-t1 * h) / dt;
-        if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
-      }
-      if (state.peak.shear > segPeak[g]) {
-        segPeak[g] = state.peak.shear;
-        segAt[g] = z[d] + state.peak.z;
-      }
-      const rate = taperTwistRatePeak(input, taper.G, state, t1, t2).rate;
-      if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
-      for (const p of [phi[d], phi[d + 1]]) {
-        if (p < phiMin) phiMin = p;
-        if (p > phiMax) phiMax = p;
-      }
-      if (loaded) {
-        const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
-        for (let r = 0; r < nr; r++) {
-          const x = roots[r];
-          if (x > 0 && x < h) {
-            const p = state.rotationAt(x);
-            if (p < phiMin) phiMin = p;
-            if (p > phiMax) phiMax = p;
-          }
-        }
-      }
+      phiRange[0] = phiMin;
+      phiRange[1] = phiMax;
+      const { state, input } = taperElementPeaks(sg, taper, g, z[d], z[d + 1], phi[d], phi[d + 1], T1, T2, t1, t2, peaks, phiRange, roots);
+      phiMin = phiRange[0];
+      phiMax = phiRange[1];
       const tauA = (T1 * input.dA) / 2 / polarMomentAt(input, 0);
       if (n === diagStart[s] || ((jumps[d] || startsSegment(e)) && (dT[n - 1] !== T1 || dTau[n - 1] !== tauA))) point(z[d], T1, phi[d], tauA);
       for (let m = 1; m <= nInterior; m++) {
@@ -569,6 +547,82 @@ export function recoverShafts(
     }
   }
   return { segBase, segMaxAbs: segMax, segAt, segTwist, segRate, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
+}
+
+/** The per-segment columns a tapered element's peaks go into (see `taperElementPeaks`). */
+export interface TaperPeakColumns {
+  /** Largest |T|, N·m. */
+  readonly segMax: Float64Array;
+  /** Where the peak shear stress lies, m. */
+  readonly segAt: Float64Array;
+  /** Peak shear stress, Pa. */
+  readonly segPeak: Float64Array;
+  /** Peak twist rate, rad/m (NaN until the segment's first element). */
+  readonly segRate: Float64Array;
+}
+
+/**
+ * One element of a tapered segment g from z0 to z1 (rotations φ0, φ1, left end torque T1, right T2,
+ * distributed torque t1 → t2): the one recovery of its peaks for the single solve and the
+ * combinations. Raises segMax[g] to |T| at the ends and where t(s) = 0 inside, segPeak[g] (and
+ * segAt[g]) to its peak shear stress, segRate[g] to its peak twist rate, and widens phiRange
+ * ([min, max], in and out) by φ at the ends and where T(s) = 0 inside. Returns the element's exact
+ * state for the diagram.
+ */
+export function taperElementPeaks(
+  sg: ResolvedSegment,
+  taper: ResolvedTaper,
+  g: number,
+  z0: number,
+  z1: number,
+  phi0: number,
+  phi1: number,
+  T1: number,
+  T2: number,
+  t1: number,
+  t2: number,
+  cols: TaperPeakColumns,
+  phiRange: Float64Array,
+  roots: Float64Array,
+): ReturnType<typeof taperElementState> {
+  const { segMax, segAt, segPeak, segRate } = cols;
+  const h = z1 - z0;
+  const dt = t2 - t1;
+  const loaded = t1 !== 0 || t2 !== 0;
+  const elem = taperElementState(sg, taper, z0, z1, phi0, phi1, T1, t1, t2);
+  const { state, input } = elem;
+  if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
+  if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
+  if (loaded && dt !== 0) {
+    const x = (-t1 * h) / dt;
+    if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
+  }
+  if (state.peak.shear > segPeak[g]) {
+    segPeak[g] = state.peak.shear;
+    segAt[g] = z0 + state.peak.z;
+  }
+  const rate = taperTwistRatePeak(input, taper.G, state, t1, t2).rate;
+  if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
+  let phiMin = phiRange[0];
+  let phiMax = phiRange[1];
+  for (const p of [phi0, phi1]) {
+    if (p < phiMin) phiMin = p;
+    if (p > phiMax) phiMax = p;
+  }
+  if (loaded) {
+    const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+    for (let r = 0; r < nr; r++) {
+      const x = roots[r];
+      if (x > 0 && x < h) {
+        const p = state.rotationAt(x);
+        if (p < phiMin) phiMin = p;
+        if (p > phiMax) phiMax = p;
+      }
+    }
+  }
+  phiRange[0] = phiMin;
+  phiRange[1] = phiMax;
+  return elem;
 }
 
 /** Interior diagram points per shaft at most. */
