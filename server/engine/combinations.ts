@@ -34,8 +34,11 @@ import type { Overload } from './overload.js';
  */
 export const ALL_ITEMS_UP_TO = 100_000;
 
-/** The results of one load state that are linear in its loads (a column of the superposition). */
-export interface StateColumn {
+/**
+ * The results that are linear in the loads: those of one load state (a column of the superposition)
+ * and those of a combination (the columns' weighted sum).
+ */
+export interface LinearResults {
   /** Rotation of every dof, rad. */
   readonly phi: Float64Array;
   /** Element end torques T(z+) at the left, T(z−) at the right end, N·m. */
@@ -51,6 +54,10 @@ export interface StateColumn {
   readonly meshB: Float64Array;
   readonly couplingA: Float64Array;
   readonly couplingB: Float64Array;
+}
+
+/** The results of one load state that are linear in its loads (a column of the superposition). */
+export interface StateColumn extends LinearResults {
   /** Per shaft: Σ torques with its sign (the equilibrium residual before its absolute value). */
   readonly sums: Float64Array;
 }
@@ -197,18 +204,7 @@ export function columnWeights(c: ResolvedCombination): Float64Array {
 }
 
 /** One combination's results, evaluated from the columns: scratch arrays overwritten by the next evaluation. */
-export interface CombinationState extends Pick<ShaftColumns, 'segMaxAbs' | 'segAt' | 'segTwist' | 'segRate' | 'layerMaxShear' | 'totalTwist'> {
-  readonly phi: Float64Array;
-  readonly TL: Float64Array;
-  readonly TR: Float64Array;
-  readonly t1: Float64Array;
-  readonly t2: Float64Array;
-  readonly reaction: Float64Array;
-  readonly meshForce: Float64Array;
-  readonly meshA: Float64Array;
-  readonly meshB: Float64Array;
-  readonly couplingA: Float64Array;
-  readonly couplingB: Float64Array;
+export interface CombinationState extends LinearResults, Pick<ShaftColumns, 'segMaxAbs' | 'segAt' | 'segTwist' | 'segRate' | 'layerMaxShear' | 'totalTwist'> {
   /** Per shaft: |Σ torques|, N·m. */
   readonly residual: Float64Array;
   maxResidual: number;
