@@ -350,6 +350,21 @@ function sectionChanges(segments: readonly ResolvedSegment[], a: number, b: numb
   return a !== b && (segments[a].shearFactor !== segments[b].shearFactor || segments[a].taper !== undefined || segments[b].taper !== undefined);
 }
 
+/**
+ * Segments and layers numbered across all shafts (as in `Recovered`): shaft s has segments
+ * segBase[s] … segBase[s + 1] − 1, and global segment g has layers layerBase[g] … layerBase[g + 1] − 1.
+ */
+export function globalNumbering(model: ResolvedModel, ws: Workspace): { segBase: Int32Array; layerBase: Int32Array } {
+  const nShafts = model.shafts.length;
+  const segBase = ws.i32(nShafts + 1);
+  for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
+  const layerBase = ws.i32(segBase[nShafts] + 1);
+  for (let s = 0, g = 0; s < nShafts; s++) {
+    for (const sg of model.shafts[s].segments) layerBase[g + 1] = layerBase[g++] + sg.layers.length;
+  }
+  return { segBase, layerBase };
+}
+
 /** Per segment, per layer and per shaft extremes, and the diagrams, of every shaft. */
 export function recoverShafts(
   model: ResolvedModel,
@@ -363,14 +378,8 @@ export function recoverShafts(
   const { TL, TR } = ends;
   const { z, shaftStart, elemSegment, elemT1, elemT2 } = layout;
   const nShafts = model.shafts.length;
-  // Global numbering of segments and layers.
-  const segBase = ws.i32(nShafts + 1);
-  for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
+  const { segBase, layerBase } = globalNumbering(model, ws);
   const nSegments = segBase[nShafts];
-  const layerBase = ws.i32(nSegments + 1);
-  for (let s = 0, g = 0; s < nShafts; s++) {
-    for (const sg of model.shafts[s].segments) layerBase[g + 1] = layerBase[g++] + sg.layers.length;
-  }
   // Diagram: breakpoints (two at a jump) plus interior points of loaded elements,
   // at most DIAGRAM_INTERIOR_BUDGET of them per shaft: with that many elements the
   // breakpoints alone already trace the curve. Room for the most points a shaft can have.
