@@ -20,7 +20,7 @@
 import { ModelError } from '../../shared-types/errors.js';
 import type { Warning } from '../../shared-types/solution.js';
 import type { ResolvedCombination, ResolvedModel, ResolvedSegment } from './normalise.js';
-import { buildChecks, MAX_LISTED_CHECKS, elementRotation, elementTorque, quadraticRoots, taperElementPeaks, type CheckColumns, type ShaftColumns, type TaperPeakColumns } from './recover.js';
+import { buildChecks, MAX_LISTED_CHECKS, loadedElementPeaks, taperElementPeaks, type CheckColumns, type ShaftColumns, type TaperPeakColumns } from './recover.js';
 import { recoverRaisers, type RaiserColumns } from './raisers.js';
 import { distributedIntensities, type StationLayout } from './stations.js';
 import { Workspace } from './workspace.js';
@@ -840,27 +840,11 @@ export class Superposition {
         if (p1 < phiMin) phiMin = p1;
         if (p1 > phiMax) phiMax = p1;
         if (loaded) {
-          const h = z[d + 1] - z[d];
-          const dt = t2 - t1;
-          if (dt !== 0) {
-            const x = (-t1 * h) / dt;
-            if (x > 0 && x < h) {
-              const T = elementTorque(T1, t1, dt, h, x);
-              if (Math.abs(T) > segMax[g]) {
-                segMax[g] = Math.abs(T);
-                segAt[g] = z[d] + x;
-              }
-            }
-          }
-          const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
-          for (let r = 0; r < nr; r++) {
-            const x = roots[r];
-            if (x > 0 && x < h) {
-              const p = elementRotation(p0, T1, t1, dt, h, sg.rigidity, x);
-              if (p < phiMin) phiMin = p;
-              if (p > phiMax) phiMax = p;
-            }
-          }
+          phiRange[0] = phiMin;
+          phiRange[1] = phiMax;
+          loadedElementPeaks(g, z[d], z[d + 1] - z[d], p0, T1, t1, t2, sg.rigidity, segMax, segAt, phiRange, roots);
+          phiMin = phiRange[0];
+          phiMax = phiRange[1];
         }
       }
       totalTwist[s] = phiMax - phiMin;

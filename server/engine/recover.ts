@@ -498,28 +498,11 @@ export function recoverShafts(
       if (n === diagStart[s] || ((jumps[d] || startsSegment(e)) && (dT[n - 1] !== T1 || dTau[n - 1] !== c * T1))) point(z[d], T1, phi[d], c * T1);
       if (t1 !== 0 || t2 !== 0) {
         const dt = t2 - t1;
-        // Interior extreme of T where t(s) = 0.
-        if (dt !== 0) {
-          const x = (-t1 * h) / dt;
-          if (x > 0 && x < h) {
-            const T = elementTorque(T1, t1, dt, h, x);
-            if (Math.abs(T) > segMax[g]) {
-              segMax[g] = Math.abs(T);
-              segAt[g] = z[d] + x;
-            }
-          }
-        }
-        // Interior extremes of φ where T(s) = 0.
-        const na = -dt / (2 * h);
-        const nr = quadraticRoots(na, -t1, T1, roots);
-        for (let r = 0; r < nr; r++) {
-          const x = roots[r];
-          if (x > 0 && x < h) {
-            const p = elementRotation(phi[d], T1, t1, dt, h, gj, x);
-            if (p < phiMin) phiMin = p;
-            if (p > phiMax) phiMax = p;
-          }
-        }
+        phiRange[0] = phiMin;
+        phiRange[1] = phiMax;
+        loadedElementPeaks(g, z[d], h, phi[d], T1, t1, t2, gj, segMax, segAt, phiRange, roots);
+        phiMin = phiRange[0];
+        phiMax = phiRange[1];
         for (let m = 1; m <= nInterior; m++) {
           const x = (h * m) / (nInterior + 1);
           const T = elementTorque(T1, t1, dt, h, x);
@@ -556,6 +539,50 @@ export function recoverShafts(
     }
   }
   return { segBase, segMaxAbs: segMax, segAt, segTwist, segRate, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
+}
+
+/**
+ * The interior peaks of a uniform element of segment g (rigidity gj) from z0, of length h, under a
+ * distributed torque t1 → t2 (not both zero), for the single solve and the combinations: raises
+ * segMax[g] (and segAt[g]) to |T| where t(s) = 0 inside, and widens phiRange ([min, max], in and
+ * out) by φ where T(s) = 0 inside.
+ */
+export function loadedElementPeaks(
+  g: number,
+  z0: number,
+  h: number,
+  phi0: number,
+  T1: number,
+  t1: number,
+  t2: number,
+  gj: number,
+  segMax: Float64Array,
+  segAt: Float64Array,
+  phiRange: Float64Array,
+  roots: Float64Array,
+): void {
+  const dt = t2 - t1;
+  // Interior extreme of T where t(s) = 0.
+  if (dt !== 0) {
+    const x = (-t1 * h) / dt;
+    if (x > 0 && x < h) {
+      const T = elementTorque(T1, t1, dt, h, x);
+      if (Math.abs(T) > segMax[g]) {
+        segMax[g] = Math.abs(T);
+        segAt[g] = z0 + x;
+      }
+    }
+  }
+  // Interior extremes of φ where T(s) = 0.
+  const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+  for (let r = 0; r < nr; r++) {
+    const x = roots[r];
+    if (x > 0 && x < h) {
+      const p = elementRotation(phi0, T1, t1, dt, h, gj, x);
+      if (p < phiRange[0]) phiRange[0] = p;
+      if (p > phiRange[1]) phiRange[1] = p;
+    }
+  }
 }
 
 /** The per-segment columns a tapered element's peaks go into (see `taperElementPeaks`). */
