@@ -20,10 +20,9 @@
 import { ModelError } from '../../shared-types/errors.js';
 import type { Warning } from '../../shared-types/solution.js';
 import type { ResolvedCombination, ResolvedModel, ResolvedSegment } from './normalise.js';
-import { buildChecks, MAX_LISTED_CHECKS, elementRotation, elementTorque, quadraticRoots, type CheckColumns, type ShaftColumns } from './recover.js';
+import { buildChecks, MAX_LISTED_CHECKS, loadedElementPeaks, taperElementPeaks, type CheckColumns, type ShaftColumns, type TaperPeakColumns } from './recover.js';
 import { recoverRaisers, type RaiserColumns } from './raisers.js';
 import { distributedIntensities, type StationLayout } from './stations.js';
-import { taperElementState, taperTwistRatePeak } from './taper-element.js';
 import { Workspace } from './workspace.js';
 import type { Overload } from './overload.js';
 
@@ -35,8 +34,11 @@ import type { Overload } from './overload.js';
  */
 export const ALL_ITEMS_UP_TO = 100_000;
 
-/** The results of one load state that are linear in its loads (a column of the superposition). */
-export interface StateColumn {
+/**
+ * The results that are linear in the loads: those of one load state (a column of the superposition)
+ * and those of a combination (the columns' weighted sum).
+ */
+export interface LinearResults {
   /** Rotation of every dof, rad. */
   readonly phi: Float64Array;
   /** Element end torques T(z+) at the left, T(z−) at the right end, N·m. */
@@ -52,6 +54,10 @@ export interface StateColumn {
   readonly meshB: Float64Array;
   readonly couplingA: Float64Array;
   readonly couplingB: Float64Array;
+}
+
+/** The results of one load state that are linear in its loads (a column of the superposition). */
+export interface StateColumn extends LinearResults {
   /** Per shaft: Σ torques with its sign (the equilibrium residual before its absolute value). */
   readonly sums: Float64Array;
 }
@@ -198,18 +204,7 @@ export function columnWeights(c: ResolvedCombination): Float64Array {
 }
 
 /** One combination's results, evaluated from the columns: scratch arrays overwritten by the next evaluation. */
-export interface CombinationState extends Pick<ShaftColumns, 'segMaxAbs' | 'segAt' | 'segTwist' | 'segRate' | 'layerMaxShear' | 'totalTwist'> {
-  readonly phi: Float64Array;
-  readonly TL: Float64Array;
-  readonly TR: Float64Array;
-  readonly t1: Float64Array;
-  readonly t2: Float64Array;
-  readonly reaction: Float64Array;
-  readonly meshForce: Float64Array;
-  readonly meshA: Float64Array;
-  readonly meshB: Float64Array;
-  readonly couplingA: Float64Array;
-  readonly couplingB: Float64Array;
+export interface CombinationState extends LinearResults, Pick<ShaftColumns, 'segMaxAbs' | 'segAt' | 'segTwist' | 'segRate' | 'layerMaxShear' | 'totalTwist'> {
   /** Per shaft: |Σ torques|, N·m. */
   readonly residual: Float64Array;
   maxResidual: number;
@@ -250,6 +245,8 @@ export class Superposition {
   private readonly segPhiTo: Float64Array;
   private readonly segPeak: Float64Array;
   private readonly roots = new Float64Array(2);
+  /** φ min and max of a shaft, in and out of `taperElementPeaks`. */
+  private readonly phiRange = new Float64Array(2);
   /** True when every segment has an element (so the pass by station meets each). */
   private readonly spansCover: boolean;
 
@@ -740,9 +737,10 @@ export class Superposition {
    * included): the rules of `recoverShafts`, without its diagrams.
    */
   private segmentPeaks(): void {
-    const { model, layout, st, segPhiFrom, segPhiTo, segPeak, roots } = this;
+    const { model, layout, st, segPhiFrom, segPhiTo, segPeak, roots, phiRange } = this;
     const { z, shaftStart, elemSegment } = layout;
     const { phi, TL, TR, t1: T1s, t2: T2s, segMaxAbs: segMax, segAt, segRate, totalTwist } = st;
+    const peaks: TaperPeakColumns = { segMax, segAt, segPeak, segRate };
     segMax.fill(0);
     segPhiFrom.fill(Number.NaN);
     if (this.hasTaper) {
@@ -818,36 +816,11 @@ export class Superposition {
         const loaded = t1 !== 0 || t2 !== 0;
         const sg = this.segments[g];
         if (this.elemTaper[e] && sg.taper) {
-          const h = z[d + 1] - z[d];
-          const dt = t2 - t1;
-          const { state, input } = taperElementState(sg, sg.taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
-          if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
-          if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
-          if (loaded && dt !== 0) {
-            const x = (-t1 * h) / dt;
-            if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
-          }
-          if (state.peak.shear > segPeak[g]) {
-            segPeak[g] = state.peak.shear;
-            segAt[g] = z[d] + state.peak.z;
-          }
-          const rate = taperTwistRatePeak(input, sg.taper.G, state, t1, t2).rate;
-          if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
-          for (const p of [phi[d], phi[d + 1]]) {
-            if (p < phiMin) phiMin = p;
-            if (p > phiMax) phiMax = p;
-          }
-          if (loaded) {
-            const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
-            for (let r = 0; r < nr; r++) {
-              const x = roots[r];
-              if (x > 0 && x < h) {
-                const p = state.rotationAt(x);
-                if (p < phiMin) phiMin = p;
-                if (p > phiMax) phiMax = p;
-              }
-            }
-          }
+          phiRange[0] = phiMin;
+          phiRange[1] = phiMax;
+          taperElementPeaks(sg, sg.taper, g, z[d], z[d + 1], phi[d], phi[d + 1], T1, T2, t1, t2, peaks, phiRange, roots);
+          phiMin = phiRange[0];
+          phiMax = phiRange[1];
           continue;
         }
         const a1 = Math.abs(T1);
@@ -867,27 +840,11 @@ export class Superposition {
         if (p1 < phiMin) phiMin = p1;
         if (p1 > phiMax) phiMax = p1;
         if (loaded) {
-          const h = z[d + 1] - z[d];
-          const dt = t2 - t1;
-          if (dt !== 0) {
-            const x = (-t1 * h) / dt;
-            if (x > 0 && x < h) {
-              const T = elementTorque(T1, t1, dt, h, x);
-              if (Math.abs(T) > segMax[g]) {
-                segMax[g] = Math.abs(T);
-                segAt[g] = z[d] + x;
-              }
-            }
-          }
-          const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
-          for (let r = 0; r < nr; r++) {
-            const x = roots[r];
-            if (x > 0 && x < h) {
-              const p = elementRotation(p0, T1, t1, dt, h, sg.rigidity, x);
-              if (p < phiMin) phiMin = p;
-              if (p > phiMax) phiMax = p;
-            }
-          }
+          phiRange[0] = phiMin;
+          phiRange[1] = phiMax;
+          loadedElementPeaks(g, z[d], z[d + 1] - z[d], p0, T1, t1, t2, sg.rigidity, segMax, segAt, phiRange, roots);
+          phiMin = phiRange[0];
+          phiMax = phiRange[1];
         }
       }
       totalTwist[s] = phiMax - phiMin;

@@ -350,6 +350,21 @@ function sectionChanges(segments: readonly ResolvedSegment[], a: number, b: numb
   return a !== b && (segments[a].shearFactor !== segments[b].shearFactor || segments[a].taper !== undefined || segments[b].taper !== undefined);
 }
 
+/**
+ * Segments and layers numbered across all shafts (as in `Recovered`): shaft s has segments
+ * segBase[s] … segBase[s + 1] − 1, and global segment g has layers layerBase[g] … layerBase[g + 1] − 1.
+ */
+export function globalNumbering(model: ResolvedModel, ws: Workspace): { segBase: Int32Array; layerBase: Int32Array } {
+  const nShafts = model.shafts.length;
+  const segBase = ws.i32(nShafts + 1);
+  for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
+  const layerBase = ws.i32(segBase[nShafts] + 1);
+  for (let s = 0, g = 0; s < nShafts; s++) {
+    for (const sg of model.shafts[s].segments) layerBase[g + 1] = layerBase[g++] + sg.layers.length;
+  }
+  return { segBase, layerBase };
+}
+
 /** Per segment, per layer and per shaft extremes, and the diagrams, of every shaft. */
 export function recoverShafts(
   model: ResolvedModel,
@@ -363,14 +378,8 @@ export function recoverShafts(
   const { TL, TR } = ends;
   const { z, shaftStart, elemSegment, elemT1, elemT2 } = layout;
   const nShafts = model.shafts.length;
-  // Global numbering of segments and layers.
-  const segBase = ws.i32(nShafts + 1);
-  for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
+  const { segBase, layerBase } = globalNumbering(model, ws);
   const nSegments = segBase[nShafts];
-  const layerBase = ws.i32(nSegments + 1);
-  for (let s = 0, g = 0; s < nShafts; s++) {
-    for (const sg of model.shafts[s].segments) layerBase[g + 1] = layerBase[g++] + sg.layers.length;
-  }
   // Diagram: breakpoints (two at a jump) plus interior points of loaded elements,
   // at most DIAGRAM_INTERIOR_BUDGET of them per shaft: with that many elements the
   // breakpoints alone already trace the curve. Room for the most points a shaft can have.
@@ -407,6 +416,8 @@ export function recoverShafts(
   const hasTaper = model.shafts.some((sh) => sh.segments.some((sg) => sg.taper));
   const segRate = ws.f64(hasTaper ? nSegments : 0).fill(Number.NaN);
   const segPeak = ws.f64(hasTaper ? nSegments : 0);
+  const peaks: TaperPeakColumns = { segMax, segAt, segPeak, segRate };
+  const phiRange = ws.f64(2);
 
   for (let s = 0; s < nShafts; s++) {
     const shaft = model.shafts[s];
@@ -435,37 +446,13 @@ export function recoverShafts(
       const t1 = elemT1[e];
       const t2 = elemT2[e];
       const dt = t2 - t1;
-      const loaded = t1 !== 0 || t2 !== 0;
       const T1 = TL[e];
       const T2 = TR[e];
-      const { state, input } = taperElementState(sg, taper, z[d], z[d + 1], phi[d], phi[d + 1], T1, t1, t2);
-      if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
-      if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
-      if (loaded && dt !== 0) {
-        const x = (-t1 * h) / dt;
-        if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
-      }
-      if (state.peak.shear > segPeak[g]) {
-        segPeak[g] = state.peak.shear;
-        segAt[g] = z[d] + state.peak.z;
-      }
-      const rate = taperTwistRatePeak(input, taper.G, state, t1, t2).rate;
-      if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
-      for (const p of [phi[d], phi[d + 1]]) {
-        if (p < phiMin) phiMin = p;
-        if (p > phiMax) phiMax = p;
-      }
-      if (loaded) {
-        const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
-        for (let r = 0; r < nr; r++) {
-          const x = roots[r];
-          if (x > 0 && x < h) {
-            const p = state.rotationAt(x);
-            if (p < phiMin) phiMin = p;
-            if (p > phiMax) phiMax = p;
-          }
-        }
-      }
+      phiRange[0] = phiMin;
+      phiRange[1] = phiMax;
+      const { state, input } = taperElementPeaks(sg, taper, g, z[d], z[d + 1], phi[d], phi[d + 1], T1, T2, t1, t2, peaks, phiRange, roots);
+      phiMin = phiRange[0];
+      phiMax = phiRange[1];
       const tauA = (T1 * input.dA) / 2 / polarMomentAt(input, 0);
       if (n === diagStart[s] || ((jumps[d] || startsSegment(e)) && (dT[n - 1] !== T1 || dTau[n - 1] !== tauA))) point(z[d], T1, phi[d], tauA);
       for (let m = 1; m <= nInterior; m++) {
@@ -511,28 +498,11 @@ export function recoverShafts(
       if (n === diagStart[s] || ((jumps[d] || startsSegment(e)) && (dT[n - 1] !== T1 || dTau[n - 1] !== c * T1))) point(z[d], T1, phi[d], c * T1);
       if (t1 !== 0 || t2 !== 0) {
         const dt = t2 - t1;
-        // Interior extreme of T where t(s) = 0.
-        if (dt !== 0) {
-          const x = (-t1 * h) / dt;
-          if (x > 0 && x < h) {
-            const T = elementTorque(T1, t1, dt, h, x);
-            if (Math.abs(T) > segMax[g]) {
-              segMax[g] = Math.abs(T);
-              segAt[g] = z[d] + x;
-            }
-          }
-        }
-        // Interior extremes of φ where T(s) = 0.
-        const na = -dt / (2 * h);
-        const nr = quadraticRoots(na, -t1, T1, roots);
-        for (let r = 0; r < nr; r++) {
-          const x = roots[r];
-          if (x > 0 && x < h) {
-            const p = elementRotation(phi[d], T1, t1, dt, h, gj, x);
-            if (p < phiMin) phiMin = p;
-            if (p > phiMax) phiMax = p;
-          }
-        }
+        phiRange[0] = phiMin;
+        phiRange[1] = phiMax;
+        loadedElementPeaks(g, z[d], h, phi[d], T1, t1, t2, gj, segMax, segAt, phiRange, roots);
+        phiMin = phiRange[0];
+        phiMax = phiRange[1];
         for (let m = 1; m <= nInterior; m++) {
           const x = (h * m) / (nInterior + 1);
           const T = elementTorque(T1, t1, dt, h, x);
@@ -569,6 +539,126 @@ export function recoverShafts(
     }
   }
   return { segBase, segMaxAbs: segMax, segAt, segTwist, segRate, layerBase, layerMaxShear, totalTwist, diagStart, diagCount, dZ, dT, dPhi, dTau };
+}
+
+/**
+ * The interior peaks of a uniform element of segment g (rigidity gj) from z0, of length h, under a
+ * distributed torque t1 → t2 (not both zero), for the single solve and the combinations: raises
+ * segMax[g] (and segAt[g]) to |T| where t(s) = 0 inside, and widens phiRange ([min, max], in and
+ * out) by φ where T(s) = 0 inside.
+ */
+export function loadedElementPeaks(
+  g: number,
+  z0: number,
+  h: number,
+  phi0: number,
+  T1: number,
+  t1: number,
+  t2: number,
+  gj: number,
+  segMax: Float64Array,
+  segAt: Float64Array,
+  phiRange: Float64Array,
+  roots: Float64Array,
+): void {
+  const dt = t2 - t1;
+  // Interior extreme of T where t(s) = 0.
+  if (dt !== 0) {
+    const x = (-t1 * h) / dt;
+    if (x > 0 && x < h) {
+      const T = elementTorque(T1, t1, dt, h, x);
+      if (Math.abs(T) > segMax[g]) {
+        segMax[g] = Math.abs(T);
+        segAt[g] = z0 + x;
+      }
+    }
+  }
+  // Interior extremes of φ where T(s) = 0.
+  const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+  for (let r = 0; r < nr; r++) {
+    const x = roots[r];
+    if (x > 0 && x < h) {
+      const p = elementRotation(phi0, T1, t1, dt, h, gj, x);
+      if (p < phiRange[0]) phiRange[0] = p;
+      if (p > phiRange[1]) phiRange[1] = p;
+    }
+  }
+}
+
+/** The per-segment columns a tapered element's peaks go into (see `taperElementPeaks`). */
+export interface TaperPeakColumns {
+  /** Largest |T|, N·m. */
+  readonly segMax: Float64Array;
+  /** Where the peak shear stress lies, m. */
+  readonly segAt: Float64Array;
+  /** Peak shear stress, Pa. */
+  readonly segPeak: Float64Array;
+  /** Peak twist rate, rad/m (NaN until the segment's first element). */
+  readonly segRate: Float64Array;
+}
+
+/**
+ * One element of a tapered segment g from z0 to z1 (rotations φ0, φ1, left end torque T1, right T2,
+ * distributed torque t1 → t2): the one recovery of its peaks for the single solve and the
+ * combinations. Raises segMax[g] to |T| at the ends and where t(s) = 0 inside, segPeak[g] (and
+ * segAt[g]) to its peak shear stress, segRate[g] to its peak twist rate, and widens phiRange
+ * ([min, max], in and out) by φ at the ends and where T(s) = 0 inside. Returns the element's exact
+ * state for the diagram.
+ */
+export function taperElementPeaks(
+  sg: ResolvedSegment,
+  taper: ResolvedTaper,
+  g: number,
+  z0: number,
+  z1: number,
+  phi0: number,
+  phi1: number,
+  T1: number,
+  T2: number,
+  t1: number,
+  t2: number,
+  cols: TaperPeakColumns,
+  phiRange: Float64Array,
+  roots: Float64Array,
+): ReturnType<typeof taperElementState> {
+  const { segMax, segAt, segPeak, segRate } = cols;
+  const h = z1 - z0;
+  const dt = t2 - t1;
+  const loaded = t1 !== 0 || t2 !== 0;
+  const elem = taperElementState(sg, taper, z0, z1, phi0, phi1, T1, t1, t2);
+  const { state, input } = elem;
+  if (Math.abs(T1) > segMax[g]) segMax[g] = Math.abs(T1);
+  if (Math.abs(T2) > segMax[g]) segMax[g] = Math.abs(T2);
+  if (loaded && dt !== 0) {
+    const x = (-t1 * h) / dt;
+    if (x > 0 && x < h) segMax[g] = Math.max(segMax[g], Math.abs(elementTorque(T1, t1, dt, h, x)));
+  }
+  if (state.peak.shear > segPeak[g]) {
+    segPeak[g] = state.peak.shear;
+    segAt[g] = z0 + state.peak.z;
+  }
+  const rate = taperTwistRatePeak(input, taper.G, state, t1, t2).rate;
+  if (!(rate <= segRate[g])) segRate[g] = Number.isNaN(segRate[g]) ? rate : Math.max(segRate[g], rate);
+  let phiMin = phiRange[0];
+  let phiMax = phiRange[1];
+  for (const p of [phi0, phi1]) {
+    if (p < phiMin) phiMin = p;
+    if (p > phiMax) phiMax = p;
+  }
+  if (loaded) {
+    const nr = quadraticRoots(-dt / (2 * h), -t1, T1, roots);
+    for (let r = 0; r < nr; r++) {
+      const x = roots[r];
+      if (x > 0 && x < h) {
+        const p = state.rotationAt(x);
+        if (p < phiMin) phiMin = p;
+        if (p > phiMax) phiMax = p;
+      }
+    }
+  }
+  phiRange[0] = phiMin;
+  phiRange[1] = phiMax;
+  return elem;
 }
 
 /** Interior diagram points per shaft at most. */

@@ -14,6 +14,7 @@ import type { Model } from '../../shared-types/model.js';
 import type { Solution } from '../../shared-types/solution.js';
 import { solveModel, solveModelJson } from '../../server/engine/index.js';
 import { randomModel, Rng } from './random-models.js';
+import { fixedFixedChain } from '../helpers/long-chain.js';
 
 // The tests edit models as plain JSON.
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
@@ -345,23 +346,11 @@ describe('many combinations: each item listed under the combination that governs
     const rng = new Rng(4242);
     const segments = Array.from({ length: 60 }, (_, k) => ({ length: 0.05, section: k % 3 ? 'a' : 'b', material: 'steel' }));
     const torques = Array.from({ length: 30 }, (_, k) => ({ id: `t${k}`, case: CASES[k % 3], shaft: 's', at: 0.1 * k + 0.025, torque: rng.range(-500, 500) }));
-    return {
-      format: 'shaftnet/1',
-      name: 'Many combinations (invented)',
-      materials: [{ id: 'steel', G: 79.3e9, allowableShear: 55e6 }],
-      sections: [
-        { id: 'a', shape: 'solid', d: 0.04 },
-        { id: 'b', shape: 'hollow', d: 0.05, di: 0.03 },
-      ],
-      shafts: [{ id: 's', segments }],
-      supports: [
-        { id: 'A', shaft: 's', at: 0, kind: 'fixed' },
-        { id: 'B', shaft: 's', at: 3, kind: 'fixed' },
-      ],
+    return fixedFixedChain('Many combinations (invented)', segments, 3, {
       torques,
       loadCases: CASES.map((id) => ({ id })),
       combinations: Array.from({ length: n }, (_, k) => ({ id: `k${k}`, factors: Object.fromEntries(CASES.map((c) => [c, rng.range(-1.5, 1.5)])) })),
-    };
+    });
   }
 
   it('2,000 combinations × 60 segments (over 100,000 items): abridged, every listed number that of its combination', () => {

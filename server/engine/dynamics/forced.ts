@@ -41,6 +41,7 @@ import type { StationLayout } from '../stations.js';
 import { elasticParts } from '../assemble.js';
 import { reduceConstraints } from '../constraints.js';
 import { ldlSymbolic } from '../sparse-solver.js';
+import { globalNumbering } from '../recover.js';
 import type { Workspace } from '../workspace.js';
 import type { ResolvedDynamics, ResolvedExcitation } from './types.js';
 import { ComplexPivotError, complexLdlNumeric, complexLdlSolve, type ComplexLdlFactor } from './complex-ldl.js';
@@ -184,15 +185,12 @@ export function forcedResponse(input: ForcedInput, ws: Workspace, options: Force
   const sym = ldlSymbolic({ n, Ap: csc.Ap, Ai: csc.Ai, Ax: csc.Axr }, ws);
 
   const nShafts = model.shafts.length;
-  const segBase = ws.i32(nShafts + 1);
-  for (let s = 0; s < nShafts; s++) segBase[s + 1] = segBase[s] + model.shafts[s].segments.length;
+  const { segBase, layerBase } = globalNumbering(model, ws);
   const nSeg = segBase[nShafts];
-  const layerBase = ws.i32(nSeg + 1);
   const segShearFactor = ws.f64(nSeg);
   const segTaper = ws.u8(nSeg);
   for (let s = 0, g = 0; s < nShafts; s++) {
     for (const sg of model.shafts[s].segments) {
-      layerBase[g + 1] = layerBase[g] + sg.layers.length;
       segShearFactor[g] = sg.shearFactor;
       segTaper[g] = sg.taper ? 1 : 0;
       g++;
