@@ -28,7 +28,7 @@ import { StoreConnectError, StoreUnavailableError } from './store-errors.js';
 import { newModelId } from './sqlite-store.js';
 import type { ReviewEntry, ReviewState } from '../../shared-types/library.js';
 import { currentState, samePerson } from './review-rules.js';
-import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, newKeyInfo, preparedEntry, reviewChange, type KeyRow } from './store-common.js';
+import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ReviewRow } from './store-common.js';
 import {
   KeyNameTakenError,
   ModelNotFoundError,
@@ -471,7 +471,7 @@ async function historyOf(
   fault: (err: unknown) => unknown = (err) => err,
 ): Promise<ReviewEntry[]> {
   const history: ReviewEntry[] = [preparedEntry(rev)];
-  let res: pg.QueryResult<{ state: ReviewState; actor: string; at: string; note: string | null }>;
+  let res: pg.QueryResult<ReviewRow>;
   try {
     res = await q.query(named('reviews', [id, rev.revision]));
   } catch (err) {

@@ -20,7 +20,7 @@ import { randomBytes } from 'node:crypto';
 import Database from 'better-sqlite3';
 import type { ReviewEntry, ReviewState } from '../../shared-types/library.js';
 import { currentState, samePerson } from './review-rules.js';
-import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, newKeyInfo, preparedEntry, reviewChange, type KeyRow } from './store-common.js';
+import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ReviewRow } from './store-common.js';
 import {
   KeyNameTakenError,
   ModelNotFoundError,
@@ -120,13 +120,6 @@ interface RevisionRow {
   message: string;
   created: string;
   review_state?: ReviewState;
-}
-
-interface ReviewRow {
-  state: ReviewState;
-  actor: string;
-  at: string;
-  note: string | null;
 }
 
 /**

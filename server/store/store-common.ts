@@ -1,10 +1,10 @@
 /**
  * What the SQLite and the PostgreSQL store share, so that both map rows to the
  * wire alike and apply one review rule set: the stored key's row and its wire
- * forms, the review state of a revision in SQL (the same text in both
- * dialects), and a review change checked against the rules.
+ * forms, a review change's row, the review state of a revision in SQL (the
+ * same text in both dialects), and a review change checked against the rules.
  */
-import type { KeyRole, ReviewEntry } from '../../shared-types/library.js';
+import type { KeyRole, ReviewEntry, ReviewState } from '../../shared-types/library.js';
 import { reviewRefusal } from './review-rules.js';
 import { ReviewRefusedError, type KeyInfo, type KeyRecord, type NewKey, type ReviewInput } from './store.js';
 
@@ -36,6 +36,14 @@ export function keyRecord(row: KeyRow): KeyRecord {
 /** The info of a key just added (not revoked). */
 export function newKeyInfo(key: NewKey): KeyInfo {
   return { id: key.id, name: key.name, role: key.role, created: key.created, revoked: null };
+}
+
+/** A review change as both stores read it (the reviews table's own columns). */
+export interface ReviewRow {
+  state: ReviewState;
+  actor: string;
+  at: string;
+  note: string | null;
 }
 
 /** SQL for the review state of a revision: its last review change, else prepared. */
