@@ -28,7 +28,7 @@ import { StoreConnectError, StoreUnavailableError } from './store-errors.js';
 import { newModelId } from './sqlite-store.js';
 import type { ReviewEntry, ReviewState } from '../../shared-types/library.js';
 import { currentState, samePerson } from './review-rules.js';
-import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ReviewRow } from './store-common.js';
+import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, modelSummary, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ModelRowCommon, type ReviewRow } from './store-common.js';
 import {
   KeyNameTakenError,
   ModelNotFoundError,
@@ -79,14 +79,8 @@ export function isConnectionLoss(err: unknown): boolean {
   return /Connection terminated|connection timeout|timeout exceeded when trying to connect|Client has encountered a connection error|Client was closed|not queryable/i.test(msg);
 }
 
-interface ModelRow {
-  id: string;
-  name: string;
-  updated: string;
-  author: string;
-  revision: number;
+interface ModelRow extends ModelRowCommon {
   archived: boolean;
-  review_state: ReviewState;
 }
 
 export interface PgStoreOptions {
@@ -312,7 +306,7 @@ export class PgStore implements AsyncModelStore {
       q === ''
         ? await this.run<ModelRow>('list', [filter.archived])
         : await this.run<ModelRow>('search', [filter.archived, '%' + q.replace(/[\\%_]/g, (ch) => '\\' + ch) + '%']);
-    return rows.rows.map((r) => ({ id: r.id, name: r.name, author: r.author, updated: r.updated, revision: r.revision, archived: r.archived, reviewState: r.review_state }));
+    return rows.rows.map((r) => modelSummary(r, r.archived));
   }
 
   async get(id: string, revision?: number): Promise<StoredRevision | undefined> {

@@ -20,7 +20,7 @@ import { randomBytes } from 'node:crypto';
 import Database from 'better-sqlite3';
 import type { ReviewEntry, ReviewState } from '../../shared-types/library.js';
 import { currentState, samePerson } from './review-rules.js';
-import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ReviewRow } from './store-common.js';
+import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, modelSummary, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ModelRowCommon, type ReviewRow } from './store-common.js';
 import {
   KeyNameTakenError,
   ModelNotFoundError,
@@ -103,14 +103,8 @@ export function newModelId(): string {
   return id;
 }
 
-interface ModelRow {
-  id: string;
-  name: string;
-  updated: string;
-  author: string;
-  revision: number;
+interface ModelRow extends ModelRowCommon {
   archived: number;
-  review_state?: ReviewState;
 }
 
 interface RevisionRow {
@@ -746,13 +740,5 @@ export class SqliteStore implements ModelStore {
 }
 
 function summary(row: ModelRow): ModelSummary {
-  return {
-    id: row.id,
-    name: row.name,
-    author: row.author,
-    updated: row.updated,
-    revision: row.revision,
-    archived: row.archived === 1,
-    reviewState: row.review_state ?? 'prepared',
-  };
+  return modelSummary(row, row.archived === 1);
 }

@@ -1,12 +1,36 @@
 /**
  * What the SQLite and the PostgreSQL store share, so that both map rows to the
- * wire alike and apply one review rule set: the stored key's row and its wire
- * forms, a review change's row, the review state of a revision in SQL (the
+ * wire alike and apply one review rule set: a model's row and its listing line,
+ * the stored key's row and its wire forms, a review change's row, the review state of a revision in SQL (the
  * same text in both dialects), and a review change checked against the rules.
  */
 import type { KeyRole, ReviewEntry, ReviewState } from '../../shared-types/library.js';
 import { reviewRefusal } from './review-rules.js';
-import { ReviewRefusedError, type KeyInfo, type KeyRecord, type NewKey, type ReviewInput } from './store.js';
+import { ReviewRefusedError, type KeyInfo, type KeyRecord, type ModelSummary, type NewKey, type ReviewInput } from './store.js';
+
+/** A row of the models table as both stores select it, but `archived` (each dialect has its own type for it). */
+export interface ModelRowCommon {
+  id: string;
+  name: string;
+  updated: string;
+  author: string;
+  revision: number;
+  /** Selected by the listings; absent where only the row itself is read. */
+  review_state?: ReviewState;
+}
+
+/** A model's line of the listing; a row read without its review state is prepared. */
+export function modelSummary(row: ModelRowCommon, archived: boolean): ModelSummary {
+  return {
+    id: row.id,
+    name: row.name,
+    author: row.author,
+    updated: row.updated,
+    revision: row.revision,
+    archived,
+    reviewState: row.review_state ?? 'prepared',
+  };
+}
 
 /** A row of the keys table, as both stores select it. */
 export interface KeyRow {
