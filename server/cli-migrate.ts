@@ -28,6 +28,7 @@ import { DATABASE_FILE, LibraryOpenError, openSqliteStore } from './store/sqlite
 import { openPgStore, type PgStore } from './store/pg-store.js';
 import { SchemaRefusedError } from './store/pg-migrations.js';
 import { StoreConnectError, StoreUnavailableError } from './store/store-errors.js';
+import { KEY_COLUMNS, type KeyRow as StoredKeyRow, type ReviewRow as StoredReviewRow } from './store/store-common.js';
 
 export const MIGRATE_USAGE = `usage: shaftnet migrate --from DIR --to postgres://USER@HOST:PORT/DATABASE [--force]
   --from DIR   the data directory that holds the SQLite library (${DATABASE_FILE})
@@ -81,25 +82,15 @@ interface RevisionRow {
   created: string;
 }
 
-interface ReviewRow {
+/** A review change with the revision it belongs to. */
+interface ReviewRow extends StoredReviewRow {
   model_id: string;
   revision: number;
   seq: number;
-  state: string;
-  actor: string;
-  at: string;
-  note: string | null;
 }
 
-interface KeyRow {
-  id: string;
-  name: string;
-  role: string;
-  created: string;
-  revoked: string | null;
-  /** SHA-256 (hex) of "salt|hash|params". */
-  sha256: string;
-}
+/** A key's fields, and the SHA-256 (hex) of "salt|hash|params" in place of them. */
+type KeyRow = Omit<StoredKeyRow, 'salt' | 'hash' | 'params'> & { sha256: string };
 
 /** Everything the check compares, from one side. */
 interface Snapshot {
@@ -159,7 +150,7 @@ function readSource(db: Database.Database): Snapshot {
   const reviews = new Map<string, ReviewRow>();
   for (const r of db.prepare('SELECT model_id, revision, seq, state, actor, at, note FROM reviews').all() as ReviewRow[]) reviews.set(reviewKey(r), r);
   const keys = new Map<string, KeyRow>();
-  for (const k of db.prepare('SELECT id, name, role, created, revoked, salt, hash, params FROM keys').all() as Array<Omit<KeyRow, 'sha256'> & { salt: string; hash: string; params: string }>) {
+  for (const k of db.prepare(`SELECT ${KEY_COLUMNS} FROM keys`).all() as StoredKeyRow[]) {
     keys.set(k.id, { id: k.id, name: k.name, role: k.role, created: k.created, revoked: k.revoked, sha256: sha256(`${k.salt}|${k.hash}|${k.params}`) });
   }
   return { models, revisions, reviews, keys, meta };

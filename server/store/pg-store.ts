@@ -26,12 +26,12 @@ import { describeTarget } from './pg-target.js';
 export { describeTarget };
 import { StoreConnectError, StoreUnavailableError } from './store-errors.js';
 import { newModelId } from './sqlite-store.js';
-import type { KeyRole, ReviewEntry, ReviewState } from '../../shared-types/library.js';
-import { currentState, reviewRefusal, samePerson } from './review-rules.js';
+import type { ReviewEntry, ReviewState } from '../../shared-types/library.js';
+import { currentState, samePerson } from './review-rules.js';
+import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, modelSummary, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ModelRowCommon, type ReviewRow } from './store-common.js';
 import {
   KeyNameTakenError,
   ModelNotFoundError,
-  ReviewRefusedError,
   ReviewStaleError,
   RevisionNotFoundError,
   StaleRevisionError,
@@ -79,30 +79,9 @@ export function isConnectionLoss(err: unknown): boolean {
   return /Connection terminated|connection timeout|timeout exceeded when trying to connect|Client has encountered a connection error|Client was closed|not queryable/i.test(msg);
 }
 
-interface ModelRow {
-  id: string;
-  name: string;
-  updated: string;
-  author: string;
-  revision: number;
+interface ModelRow extends ModelRowCommon {
   archived: boolean;
-  review_state: ReviewState;
 }
-
-interface KeyRow {
-  id: string;
-  name: string;
-  role: KeyRole;
-  created: string;
-  revoked: string | null;
-  salt: string;
-  hash: string;
-  params: string;
-}
-
-/** The review state of a revision: its last review change, else prepared (as in the SQLite store). */
-const STATE_OF = (model: string, revision: string) =>
-  `COALESCE((SELECT state FROM reviews r WHERE r.model_id = ${model} AND r.revision = ${revision} ORDER BY r.seq DESC LIMIT 1), 'prepared')`;
 
 export interface PgStoreOptions {
   /** Connections in this process's pool (default 10). */
@@ -180,9 +159,9 @@ const SQL = {
   reviews: 'SELECT state, actor, at, note FROM reviews WHERE model_id = $1 AND revision = $2 ORDER BY seq',
   insertReview: 'INSERT INTO reviews (model_id, revision, seq, state, actor, at, note) VALUES ($1, $2, $3, $4, $5, $6, $7)',
   insertKey: 'INSERT INTO keys (id, name, role, created, revoked, salt, hash, params) VALUES ($1, $2, $3, $4, NULL, $5, $6, $7)',
-  keys: 'SELECT id, name, role, created, revoked, salt, hash, params FROM keys ORDER BY created, id',
-  keyById: 'SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE id = $1',
-  activeKeys: 'SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE revoked IS NULL',
+  keys: `SELECT ${KEY_COLUMNS} FROM keys ORDER BY created, id`,
+  keyById: `SELECT ${KEY_COLUMNS} FROM keys WHERE id = $1`,
+  activeKeys: `SELECT ${KEY_COLUMNS} FROM keys WHERE revoked IS NULL`,
   revokeKey: 'UPDATE keys SET revoked = $1 WHERE id = $2 AND revoked IS NULL',
   anyKey: 'SELECT 1 AS one FROM keys LIMIT 1',
   keysLock: 'SELECT pg_advisory_xact_lock($1)',
@@ -327,7 +306,7 @@ export class PgStore implements AsyncModelStore {
       q === ''
         ? await this.run<ModelRow>('list', [filter.archived])
         : await this.run<ModelRow>('search', [filter.archived, '%' + q.replace(/[\\%_]/g, (ch) => '\\' + ch) + '%']);
-    return rows.rows.map((r) => ({ id: r.id, name: r.name, author: r.author, updated: r.updated, revision: r.revision, archived: r.archived, reviewState: r.review_state }));
+    return rows.rows.map((r) => modelSummary(r, r.archived));
   }
 
   async get(id: string, revision?: number): Promise<StoredRevision | undefined> {
@@ -375,12 +354,9 @@ export class PgStore implements AsyncModelStore {
       const current = row.rows[0].revision;
       if (current !== input.revision) throw new ReviewStaleError(input.id, input.revision, current);
       const history = await historyOf(c, input.id, rev);
-      const refusal = reviewRefusal(history, input.state, input.by);
-      if (refusal) throw new ReviewRefusedError(refusal.kind, refusal.message);
-      const note = input.note === null || input.note.trim() === '' ? null : input.note;
-      const at = new Date().toISOString();
-      await c.query(named('insertReview', [input.id, input.revision, history.length, input.state, input.by, at, note]));
-      history.push({ state: input.state, by: input.by, at, note });
+      const change = reviewChange(history, input);
+      await c.query(named('insertReview', [input.id, input.revision, history.length, change.state, change.by, change.at, change.note]));
+      history.push(change);
       return { id: input.id, revision: input.revision, state: input.state, history };
     });
   }
@@ -391,7 +367,7 @@ export class PgStore implements AsyncModelStore {
       const live = await c.query<KeyRow>(named('activeKeys', []));
       if (live.rows.some((k) => samePerson(k.name, key.name))) throw new KeyNameTakenError(key.name);
       await c.query(named('insertKey', [key.id, key.name, key.role, key.created, key.salt, key.hash, key.params]));
-      return { id: key.id, name: key.name, role: key.role, created: key.created, revoked: null };
+      return newKeyInfo(key);
     });
   }
 
@@ -401,7 +377,7 @@ export class PgStore implements AsyncModelStore {
 
   async keyRecord(id: string): Promise<KeyRecord | undefined> {
     const row = (await this.run<KeyRow>('keyById', [id])).rows[0];
-    return row && { ...keyInfo(row), salt: row.salt, hash: row.hash, params: row.params };
+    return row && keyRecord(row);
   }
 
   async revokeKey(idOrName: string, at: string): Promise<KeyInfo | undefined> {
@@ -481,10 +457,6 @@ export class PgStore implements AsyncModelStore {
   }
 }
 
-function keyInfo(row: KeyRow): KeyInfo {
-  return { id: row.id, name: row.name, role: row.role, created: row.created, revoked: row.revoked };
-}
-
 /** A revision's review history, oldest first: the save (prepared), then every change. */
 async function historyOf(
   q: Queryable | pg.Pool,
@@ -492,8 +464,8 @@ async function historyOf(
   rev: { revision: number; author: string; created: string },
   fault: (err: unknown) => unknown = (err) => err,
 ): Promise<ReviewEntry[]> {
-  const history: ReviewEntry[] = [{ state: 'prepared', by: rev.author, at: rev.created, note: null }];
-  let res: pg.QueryResult<{ state: ReviewState; actor: string; at: string; note: string | null }>;
+  const history: ReviewEntry[] = [preparedEntry(rev)];
+  let res: pg.QueryResult<ReviewRow>;
   try {
     res = await q.query(named('reviews', [id, rev.revision]));
   } catch (err) {

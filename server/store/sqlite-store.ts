@@ -18,12 +18,12 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import Database from 'better-sqlite3';
-import type { KeyRole, ReviewEntry, ReviewState } from '../../shared-types/library.js';
-import { currentState, reviewRefusal, samePerson } from './review-rules.js';
+import type { ReviewEntry, ReviewState } from '../../shared-types/library.js';
+import { currentState, samePerson } from './review-rules.js';
+import { KEY_COLUMNS, STATE_OF, keyInfo, keyRecord, modelSummary, newKeyInfo, preparedEntry, reviewChange, type KeyRow, type ModelRowCommon, type ReviewRow } from './store-common.js';
 import {
   KeyNameTakenError,
   ModelNotFoundError,
-  ReviewRefusedError,
   ReviewStaleError,
   RevisionNotFoundError,
   StaleRevisionError,
@@ -92,10 +92,6 @@ CREATE TABLE IF NOT EXISTS keys (
 );
 `;
 
-/** The review state of a revision: its last review change, else prepared. */
-const STATE_OF = (model: string, revision: string) =>
-  `COALESCE((SELECT state FROM reviews r WHERE r.model_id = ${model} AND r.revision = ${revision} ORDER BY r.seq DESC LIMIT 1), 'prepared')`;
-
 // 32 symbols without look-alikes (no l, o, 0, 1): ids read well in /m/:id links.
 const ID_ALPHABET = 'abcdefghijkmnpqrstuvwxyz23456789';
 
@@ -107,14 +103,8 @@ export function newModelId(): string {
   return id;
 }
 
-interface ModelRow {
-  id: string;
-  name: string;
-  updated: string;
-  author: string;
-  revision: number;
+interface ModelRow extends ModelRowCommon {
   archived: number;
-  review_state?: ReviewState;
 }
 
 interface RevisionRow {
@@ -124,24 +114,6 @@ interface RevisionRow {
   message: string;
   created: string;
   review_state?: ReviewState;
-}
-
-interface ReviewRow {
-  state: ReviewState;
-  actor: string;
-  at: string;
-  note: string | null;
-}
-
-interface KeyRow {
-  id: string;
-  name: string;
-  role: KeyRole;
-  created: string;
-  revoked: string | null;
-  salt: string;
-  hash: string;
-  params: string;
 }
 
 /**
@@ -527,9 +499,9 @@ export class SqliteStore implements ModelStore {
       insertKey: db.prepare(
         'INSERT INTO keys (id, name, role, created, revoked, salt, hash, params) VALUES (?, ?, ?, ?, NULL, ?, ?, ?)',
       ),
-      keys: db.prepare<[], KeyRow>('SELECT id, name, role, created, revoked, salt, hash, params FROM keys ORDER BY created, id'),
-      keyById: db.prepare<[string], KeyRow>('SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE id = ?'),
-      activeKeys: db.prepare<[], KeyRow>('SELECT id, name, role, created, revoked, salt, hash, params FROM keys WHERE revoked IS NULL'),
+      keys: db.prepare<[], KeyRow>(`SELECT ${KEY_COLUMNS} FROM keys ORDER BY created, id`),
+      keyById: db.prepare<[string], KeyRow>(`SELECT ${KEY_COLUMNS} FROM keys WHERE id = ?`),
+      activeKeys: db.prepare<[], KeyRow>(`SELECT ${KEY_COLUMNS} FROM keys WHERE revoked IS NULL`),
       revokeKey: db.prepare('UPDATE keys SET revoked = ? WHERE id = ? AND revoked IS NULL'),
       anyKey: db.prepare<[], { one: number }>('SELECT 1 AS one FROM keys LIMIT 1'),
       setArchived: db.prepare('UPDATE models SET archived = ? WHERE id = ?'),
@@ -568,19 +540,16 @@ export class SqliteStore implements ModelStore {
       if (!rev) throw new RevisionNotFoundError(input.id, input.revision);
       if (row.revision !== input.revision) throw new ReviewStaleError(input.id, input.revision, row.revision);
       const history = this.history(input.id, rev);
-      const refusal = reviewRefusal(history, input.state, input.by);
-      if (refusal) throw new ReviewRefusedError(refusal.kind, refusal.message);
-      const note = input.note === null || input.note.trim() === '' ? null : input.note;
-      const at = new Date().toISOString();
-      this.stmts.insertReview.run(input.id, input.revision, history.length, input.state, input.by, at, note);
-      history.push({ state: input.state, by: input.by, at, note });
+      const change = reviewChange(history, input);
+      this.stmts.insertReview.run(input.id, input.revision, history.length, change.state, change.by, change.at, change.note);
+      history.push(change);
       return { id: input.id, revision: input.revision, state: input.state, history };
     });
 
     this.addKeyTx = db.transaction((key: NewKey): KeyInfo => {
       if (this.stmts.activeKeys.all().some((k) => samePerson(k.name, key.name))) throw new KeyNameTakenError(key.name);
       this.stmts.insertKey.run(key.id, key.name, key.role, key.created, key.salt, key.hash, key.params);
-      return { id: key.id, name: key.name, role: key.role, created: key.created, revoked: null };
+      return newKeyInfo(key);
     });
 
     this.revokeKeyTx = db.transaction((idOrName: string, at: string): KeyInfo | undefined => {
@@ -703,7 +672,7 @@ export class SqliteStore implements ModelStore {
 
   /** A revision's review history, oldest first: the save (prepared), then every change. */
   private history(id: string, rev: Pick<RevisionRow, 'revision' | 'author' | 'created'>): ReviewEntry[] {
-    const history: ReviewEntry[] = [{ state: 'prepared', by: rev.author, at: rev.created, note: null }];
+    const history: ReviewEntry[] = [preparedEntry(rev)];
     for (const r of this.stmts.reviews.all(id, rev.revision)) history.push({ state: r.state, by: r.actor, at: r.at, note: r.note });
     return history;
   }
@@ -722,7 +691,7 @@ export class SqliteStore implements ModelStore {
 
   keyRecord(id: string): KeyRecord | undefined {
     const row = this.read(() => this.stmts.keyById.get(id));
-    return row && { ...keyInfo(row), salt: row.salt, hash: row.hash, params: row.params };
+    return row && keyRecord(row);
   }
 
   revokeKey(idOrName: string, at: string): KeyInfo | undefined {
@@ -771,17 +740,5 @@ export class SqliteStore implements ModelStore {
 }
 
 function summary(row: ModelRow): ModelSummary {
-  return {
-    id: row.id,
-    name: row.name,
-    author: row.author,
-    updated: row.updated,
-    revision: row.revision,
-    archived: row.archived === 1,
-    reviewState: row.review_state ?? 'prepared',
-  };
-}
-
-function keyInfo(row: KeyRow): KeyInfo {
-  return { id: row.id, name: row.name, role: row.role, created: row.created, revoked: row.revoked };
+  return modelSummary(row, row.archived === 1);
 }

@@ -22,6 +22,7 @@ import { fileURLToPath } from 'node:url';
 import { pgAvailability, startPgCluster } from '../helpers/pg-cluster.js';
 import { spawnServer, type ServerProcess } from '../helpers/server-process.js';
 import { calibrationLine } from './calibrate.js';
+import { figuresLine, measureWriters, type WriterFigures } from './save-writers.js';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 5);
 const WRITERS = Number(process.env.BENCH_WRITERS ?? 8);
@@ -35,29 +36,17 @@ async function send(url: string, method: string, body: unknown): Promise<{ id: s
   return (await r.json()) as { id: string; revision: number };
 }
 
-async function measure(instances: readonly ServerProcess[]): Promise<{ perSecond: number; p50: number; p99: number; saves: number }> {
-  const latencies: number[] = [];
-  const deadline = performance.now() + SECONDS * 1000;
-  const t0 = performance.now();
-  await Promise.all(
-    Array.from({ length: WRITERS }, async (_, w) => {
-      const base = instances[w % instances.length].url;
-      let { id, revision } = await send(`${base}/api/models`, 'POST', { model: demo, author: 'bench', message: 'start' });
-      for (let k = 0; performance.now() < deadline; k++) {
-        const s = performance.now();
-        ({ id, revision } = await send(`${base}/api/models/${id}`, 'PUT', { model: { ...demo, notes: `bench ${w} save ${k}` }, author: 'bench', baseRevision: revision }));
-        latencies.push(performance.now() - s);
-      }
-    }),
+function measure(instances: readonly ServerProcess[]): Promise<WriterFigures> {
+  const base = (w: number) => instances[w % instances.length].url;
+  return measureWriters(
+    WRITERS,
+    SECONDS,
+    (w) => send(`${base(w)}/api/models`, 'POST', { model: demo, author: 'bench', message: 'start' }),
+    (w, k, { id, revision }) => send(`${base(w)}/api/models/${id}`, 'PUT', { model: { ...demo, notes: `bench ${w} save ${k}` }, author: 'bench', baseRevision: revision }),
   );
-  const elapsed = (performance.now() - t0) / 1000;
-  latencies.sort((a, b) => a - b);
-  const at = (q: number) => latencies[Math.min(latencies.length - 1, Math.floor(q * latencies.length))] ?? NaN;
-  return { perSecond: latencies.length / elapsed, p50: at(0.5), p99: at(0.99), saves: latencies.length };
 }
 
-const line = (label: string, r: { perSecond: number; p50: number; p99: number; saves: number }) =>
-  `${label.padEnd(52)} ${r.perSecond.toFixed(0).padStart(7)} saves/s   p50 ${r.p50.toFixed(2).padStart(7)} ms   p99 ${r.p99.toFixed(2).padStart(7)} ms   (${r.saves} saves)`;
+const line = (label: string, r: WriterFigures) => figuresLine(label, r, 52, 7);
 
 if (!fs.existsSync(mainJs)) throw new Error('dist/server/main.js is missing: npm run build first');
 const pg = pgAvailability();

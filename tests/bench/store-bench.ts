@@ -22,6 +22,7 @@ import { openPgStore } from '../../server/store/pg-store.js';
 import { openSqliteStore } from '../../server/store/sqlite-store.js';
 import { pgAvailability, startPgCluster } from '../helpers/pg-cluster.js';
 import { calibrationLine } from './calibrate.js';
+import { figuresLine, measureWriters, type WriterFigures } from './save-writers.js';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 5);
 const WRITERS = Number(process.env.BENCH_WRITERS ?? 8);
@@ -29,28 +30,16 @@ const root = fileURLToPath(new URL('../../', import.meta.url));
 const demo = JSON.parse(fs.readFileSync(path.join(root, 'server/demos/mixer-drive.json'), 'utf8')) as Record<string, unknown>;
 
 /** One writer per entry of `writers` saving on its own model until the time is up: saves per second and p50/p99 ms. */
-async function measure(store: AsyncModelStore, writers: number): Promise<{ perSecond: number; p50: number; p99: number; saves: number }> {
-  const latencies: number[] = [];
-  const deadline = performance.now() + SECONDS * 1000;
-  const t0 = performance.now();
-  await Promise.all(
-    Array.from({ length: writers }, async (_, w) => {
-      let { id, revision } = await store.create({ model: demo, name: `bench ${w}`, author: 'bench', message: 'start' });
-      for (let k = 0; performance.now() < deadline; k++) {
-        const s = performance.now();
-        ({ id, revision } = await store.save(id, revision, { model: { ...demo, benchCounter: k }, name: `bench ${w}`, author: 'bench', message: `save ${k}` }));
-        latencies.push(performance.now() - s);
-      }
-    }),
+function measure(store: AsyncModelStore, writers: number): Promise<WriterFigures> {
+  return measureWriters(
+    writers,
+    SECONDS,
+    (w) => store.create({ model: demo, name: `bench ${w}`, author: 'bench', message: 'start' }),
+    (w, k, { id, revision }) => store.save(id, revision, { model: { ...demo, benchCounter: k }, name: `bench ${w}`, author: 'bench', message: `save ${k}` }),
   );
-  const elapsed = (performance.now() - t0) / 1000;
-  latencies.sort((a, b) => a - b);
-  const at = (q: number) => latencies[Math.min(latencies.length - 1, Math.floor(q * latencies.length))] ?? NaN;
-  return { perSecond: latencies.length / elapsed, p50: at(0.5), p99: at(0.99), saves: latencies.length };
 }
 
-const line = (label: string, r: { perSecond: number; p50: number; p99: number; saves: number }) =>
-  `${label.padEnd(44)} ${r.perSecond.toFixed(0).padStart(7)} saves/s   p50 ${r.p50.toFixed(2).padStart(6)} ms   p99 ${r.p99.toFixed(2).padStart(6)} ms   (${r.saves} saves)`;
+const line = (label: string, r: WriterFigures) => figuresLine(label, r, 44, 6);
 
 console.log(calibrationLine());
 console.log(`model: ${JSON.stringify(demo).length} characters of JSON per save; ${SECONDS} s per phase`);
