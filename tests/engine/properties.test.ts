@@ -572,33 +572,41 @@ function expectSameMaps(got: Map<string, number>, want: Map<string, number>, tol
   }
 }
 
+/**
+ * Superposition and homogeneity on one model (linearity of the statics, no source needed): the loads
+ * split at random into A and B solve to the sum of their solutions, and every load times c = −2.5
+ * (an arbitrary factor) to c times the solution.
+ */
+function expectLinear(model: Model, seed: number): void {
+  const rng = new Rng(seed + 7);
+  const inA = new Set<string>();
+  for (const t of [...(model.torques ?? []), ...(model.distributedTorques ?? [])]) if (rng.chance(0.5)) inA.add(t.id);
+  const only = (keep: (id: string) => boolean, factor = 1): Model => ({
+    ...model,
+    torques: (model.torques ?? []).filter((t) => keep(t.id)).map((t) => (t.torque !== undefined ? { ...t, torque: factor * (t.torque as number) } : { ...t, power: factor * (t.power as number) })),
+    distributedTorques: (model.distributedTorques ?? [])
+      .filter((d) => keep(d.id))
+      .map((d) => ({ ...d, start: factor * (d.start as number), end: factor * (d.end as number) })),
+  });
+  const points = structuralPoints(model);
+  const both = linearParts(solveModel(model), points);
+  const a = linearParts(solveModel(only((id) => inA.has(id))), points);
+  const b = linearParts(solveModel(only((id) => !inA.has(id))), points);
+  const sum = (x: Map<string, number>, y: Map<string, number>) => new Map([...x].map(([k, v]) => [k, v + (y.get(k) as number)]));
+  expectSameMaps(sum(a.rotation, b.rotation), both.rotation, 1e-10, 'rotation');
+  expectSameMaps(sum(a.torque, b.torque), both.torque, 1e-10, 'torque');
+
+  // Homogeneity: c = −2.5 is an arbitrary factor.
+  const c = -2.5;
+  const scaled = linearParts(solveModel(only(() => true, c)), points);
+  const times = (x: Map<string, number>) => new Map([...x].map(([k, v]) => [k, c * v]));
+  expectSameMaps(scaled.rotation, times(both.rotation), 1e-10, 'scaled rotation');
+  expectSameMaps(scaled.torque, times(both.torque), 1e-10, 'scaled torque');
+}
+
 describe('superposition', () => {
   it.each(seeds(7000, 60))('seed %i: solution(A + B) = solution(A) + solution(B), and solution(c A) = c solution(A)', (seed) => {
-    const model = randomModel(seed, { imposed: false });
-    const rng = new Rng(seed + 7);
-    const inA = new Set<string>();
-    for (const t of [...(model.torques ?? []), ...(model.distributedTorques ?? [])]) if (rng.chance(0.5)) inA.add(t.id);
-    const only = (keep: (id: string) => boolean, factor = 1): Model => ({
-      ...model,
-      torques: (model.torques ?? []).filter((t) => keep(t.id)).map((t) => (t.torque !== undefined ? { ...t, torque: factor * (t.torque as number) } : { ...t, power: factor * (t.power as number) })),
-      distributedTorques: (model.distributedTorques ?? [])
-        .filter((d) => keep(d.id))
-        .map((d) => ({ ...d, start: factor * (d.start as number), end: factor * (d.end as number) })),
-    });
-    const points = structuralPoints(model);
-    const both = linearParts(solveModel(model), points);
-    const a = linearParts(solveModel(only((id) => inA.has(id))), points);
-    const b = linearParts(solveModel(only((id) => !inA.has(id))), points);
-    const sum = (x: Map<string, number>, y: Map<string, number>) => new Map([...x].map(([k, v]) => [k, v + (y.get(k) as number)]));
-    expectSameMaps(sum(a.rotation, b.rotation), both.rotation, 1e-10, 'rotation');
-    expectSameMaps(sum(a.torque, b.torque), both.torque, 1e-10, 'torque');
-
-    // Homogeneity: c = −2.5 is an arbitrary factor.
-    const c = -2.5;
-    const scaled = linearParts(solveModel(only(() => true, c)), points);
-    const times = (x: Map<string, number>) => new Map([...x].map(([k, v]) => [k, c * v]));
-    expectSameMaps(scaled.rotation, times(both.rotation), 1e-10, 'scaled rotation');
-    expectSameMaps(scaled.torque, times(both.torque), 1e-10, 'scaled torque');
+    expectLinear(randomModel(seed, { imposed: false }), seed);
   });
 });
 
@@ -802,28 +810,7 @@ describe('with new shapes, tapers and stress raisers', () => {
   });
 
   it.each(seeds(14000, 60))('seed %i: superposition and homogeneity', (seed) => {
-    const model = randomModel(seed, { imposed: false, shapes: true });
-    const rng = new Rng(seed + 7);
-    const inA = new Set<string>();
-    for (const t of [...(model.torques ?? []), ...(model.distributedTorques ?? [])]) if (rng.chance(0.5)) inA.add(t.id);
-    const only = (keep: (id: string) => boolean, factor = 1): Model => ({
-      ...model,
-      torques: (model.torques ?? []).filter((t) => keep(t.id)).map((t) => (t.torque !== undefined ? { ...t, torque: factor * (t.torque as number) } : { ...t, power: factor * (t.power as number) })),
-      distributedTorques: (model.distributedTorques ?? [])
-        .filter((d) => keep(d.id))
-        .map((d) => ({ ...d, start: factor * (d.start as number), end: factor * (d.end as number) })),
-    });
-    const points = structuralPoints(model);
-    const both = linearParts(solveModel(model), points);
-    const a = linearParts(solveModel(only((id) => inA.has(id))), points);
-    const b = linearParts(solveModel(only((id) => !inA.has(id))), points);
-    const sum = (x: Map<string, number>, y: Map<string, number>) => new Map([...x].map(([k, v]) => [k, v + (y.get(k) as number)]));
-    expectSameMaps(sum(a.rotation, b.rotation), both.rotation, 1e-10, 'rotation');
-    expectSameMaps(sum(a.torque, b.torque), both.torque, 1e-10, 'torque');
-    const c = -2.5;
-    const scaled = linearParts(solveModel(only(() => true, c)), points);
-    expectSameMaps(scaled.rotation, new Map([...both.rotation].map(([k, v]) => [k, c * v])), 1e-10, 'scaled rotation');
-    expectSameMaps(scaled.torque, new Map([...both.torque].map(([k, v]) => [k, c * v])), 1e-10, 'scaled torque');
+    expectLinear(randomModel(seed, { imposed: false, shapes: true }), seed);
   });
 
   it.each(seeds(15000, 80))('seed %i: splitting a segment (a taper into two sub-tapers) changes nothing at the original stations', (seed) => {
