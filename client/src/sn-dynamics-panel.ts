@@ -23,6 +23,9 @@ import './sn-table.js';
 
 type Row = Record<string, unknown>;
 
+/** The fields of /dynamics that hold a rate (a speed or a frequency). */
+const RATE_FIELDS: ReadonlySet<string> = new Set(['/dynamics/speed/min', '/dynamics/speed/max', '/dynamics/maxFrequency']);
+
 /**
  * The editor's dynamics panel: adds or removes the model's `dynamics` and edits
  * it: the modes (the lowest N, or all up to a frequency), the reference shaft
@@ -247,8 +250,9 @@ export class SnDynamicsPanel extends LitElement {
     return Boolean(this.problems[pointer] ?? this.rateProblem(pointer)) || this.serverMessages(pointer).length > 0;
   }
 
-  /** A stored rate that does not read ("fast"), said beside its field. */
+  /** A stored rate that does not read ("fast"), said beside its field (rate fields only: a shaft id or the orders are no rate). */
   private rateProblem(pointer: string): string | undefined {
+    if (!RATE_FIELDS.has(pointer)) return undefined;
     const stored = getAt(this.model, pointer);
     if (stored === undefined || readRate(stored) !== null) return undefined;
     return parseRateInput(String(stored), 'rpm').problem;

@@ -114,7 +114,7 @@ export class SnEditor extends LitElement {
       ${this.section('Distributed torques', 'distributedTorques', 'distributed torque', (m.distributedTorques ?? []) as Row[], distributedColumns(shafts, cases), 'Linear from start (at "from") to end (at "to").')}
       ${this.section('Gear meshes', 'gearMeshes', 'gear mesh', (m.gearMeshes ?? []) as Row[], gearColumns(shafts), 'Pitch radius, or teeth with the mesh module. Blank stiffness = rigid. Opposite: external pair; same: internal, belt or chain.')}
       ${this.section('Couplings', 'couplings', 'coupling', (m.couplings ?? []) as Row[], couplingColumns(shafts), 'Blank stiffness = rigid. Misfit: angular mismatch at assembly.')}
-      ${this.section('Discs', 'discs', 'disc', (m.discs ?? []) as Row[], discColumns(shafts), 'Mass inertia, drawn on the schematic (kept for modal analysis).')}
+      ${this.section('Discs', 'discs', 'disc', (m.discs ?? []) as Row[], discColumns(shafts), 'Mass inertia, drawn on the schematic; it counts in the dynamics (natural frequencies, forced response).')}
       ${this.section('Stress raisers', 'stressRaisers', 'stress raiser', stressRaisersOf(m) as unknown as Row[], raiserColumns(shafts), 'A shoulder (at a diameter step: its factor from the fillet radius) or a factor you give (keyseat, cross hole). The local peak is checked beside the nominal stress.')}
       <sn-dynamics-panel .model=${m} .system=${this.system} .errors=${this.errors} .selected=${this.selected}></sn-dynamics-panel>
       <details open>

@@ -352,6 +352,10 @@ describe.runIf(hasBrowser)('the dynamics panel in Chromium', () => {
     expect(await field('/dynamics/speed/max').inputValue()).toBe('1800');
     expect(await field('/dynamics/orders').inputValue()).toBe('1, 2');
     expect(await field('/dynamics/margin').inputValue()).toBe('10');
+    // A new dynamics object is valid: no field is marked, no message is shown (the shaft id and the
+    // orders are not rates to be read as such).
+    expect(await page.locator(`${panel} [aria-invalid="true"]`).count()).toBe(0);
+    expect(await page.locator(`${panel} .msg`).count()).toBe(0);
 
     // In Hz: 600 rpm = 10 Hz, 1800 rpm = 30 Hz (60 rpm = 1 Hz); a plain number is then read in Hz.
     await page.locator(`${panel} select[aria-label="Unit of the running speed"]`).selectOption('Hz');
